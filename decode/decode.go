@@ -1,0 +1,242 @@
+// Package decode turns delivered audio files into streams of PCM samples for
+// the loudness engine.
+//
+// Every container (WAV/RF64/BW64, FLAC, MP3, AIFF) lives in a sub-package that
+// registers itself with Register from an init function, the way image/png
+// registers with package image. A caller imports the formats it wants for
+// their side effect and opens files with Open or New; the format is detected
+// from the file's content (magic bytes), never from its extension.
+//
+// Decoding is streaming: New reads only the header, and ReadFrames then fills
+// a caller-owned buffer block by block, so memory does not grow with the
+// length of the file. Samples are float64, interleaved, scaled so that integer
+// full scale is ±1.0 (float files may exceed it and are passed on as they
+// are).
+package decode
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"sync"
+)
+
+// SampleFormat says how the file stores its samples.
+type SampleFormat string
+
+// The sample formats a file may declare.
+const (
+	Int   SampleFormat = "int"
+	Float SampleFormat = "float"
+)
+
+// Info describes a stream as its header declares it. Decoders fill it before
+// the first sample is read.
+type Info struct {
+	// Container is the detected file type: "wav", "rf64", "bw64", "flac",
+	// "mp3", "aiff" or "aifc".
+	Container string
+	// Codec names the sample coding inside the container, e.g. "pcm",
+	// "ieee-float", "flac", "mpeg-1 layer 3".
+	Codec string
+	// SampleRate is in hertz.
+	SampleRate int
+	// Channels is the number of interleaved channels ReadFrames delivers.
+	Channels int
+	// Layout holds one label per channel in stream order (see layout.go), or
+	// nil when the file says nothing about its layout; callers then fall back
+	// to DefaultLayout.
+	Layout []string
+	// ChannelMask is the WAVE_FORMAT_EXTENSIBLE dwChannelMask (or the FLAC
+	// tag of the same name), 0 when absent.
+	ChannelMask uint32
+	// BitsPerSample is the number of significant bits per sample (the
+	// "valid bits" of an extensible WAV, 16 for a decoded MP3).
+	BitsPerSample int
+	// SampleFormat is Int or Float.
+	SampleFormat SampleFormat
+	// Frames is the length in sample frames the header declares, or -1 when
+	// the header does not say (the true length is what ReadFrames returns).
+	Frames int64
+	// BitRate is the average coded bit rate in bits per second for
+	// compressed formats, 0 otherwise.
+	BitRate int
+	// Mode is a format-specific description of the channel coding, e.g.
+	// "joint stereo" for MP3; empty when it adds nothing.
+	Mode string
+	// Bext holds the Broadcast Wave extension chunk when the file has one.
+	Bext *Bext
+}
+
+// Decoder streams the samples of one file.
+type Decoder interface {
+	// Info returns the stream description read from the header.
+	Info() Info
+	// ReadFrames decodes up to len(dst)/Channels frames into dst as
+	// interleaved samples and returns the number of frames written.
+	// len(dst) must be a multiple of Channels. At the clean end of the
+	// stream it returns 0, io.EOF. When the file is damaged it returns the
+	// frames it could still decode together with an *IntegrityError, and
+	// io.EOF after that.
+	ReadFrames(dst []float64) (int, error)
+}
+
+// Noter is implemented by decoders that learn things while decoding that the
+// user must be told (e.g. an MP3 decoder that clipped samples). Notes is
+// called after ReadFrames returned io.EOF.
+type Noter interface {
+	Notes() []string
+}
+
+// Source is what a decoder reads from: *os.File and *bytes.Reader are both
+// Sources.
+type Source interface {
+	io.Reader
+	io.ReaderAt
+	io.Seeker
+}
+
+// Format is a container that can be detected and decoded.
+type Format struct {
+	// Name is the container name used in Info.Container (the primary one
+	// when a format has variants).
+	Name string
+	// Match reports whether the content looks like this format. It may read
+	// anywhere in r but must be cheap and must not panic on any input.
+	Match func(r io.ReaderAt, size int64) bool
+	// New reads the header from src (positioned at offset 0; size bytes
+	// long) and returns a Decoder ready for ReadFrames.
+	New func(src Source, size int64) (Decoder, error)
+}
+
+var (
+	formatsMu sync.RWMutex
+	formats   []Format
+)
+
+// Register makes a format known to New and Open. Formats are tried in the
+// order they were registered.
+func Register(f Format) {
+	formatsMu.Lock()
+	defer formatsMu.Unlock()
+	formats = append(formats, f)
+}
+
+// Formats returns the names of the registered formats.
+func Formats() []string {
+	formatsMu.RLock()
+	defer formatsMu.RUnlock()
+	names := make([]string, len(formats))
+	for i, f := range formats {
+		names[i] = f.Name
+	}
+	return names
+}
+
+// ErrUnknownFormat is returned by New when no registered format matches the
+// content.
+var ErrUnknownFormat = errors.New("not a recognised audio file")
+
+// New detects the format of src and returns its decoder.
+func New(src Source) (Decoder, error) {
+	size, err := src.Seek(0, io.SeekEnd)
+	if err != nil {
+		return nil, err
+	}
+	if size == 0 {
+		return nil, &FormatError{Format: "audio", Offset: 0, Problem: "file is empty"}
+	}
+	formatsMu.RLock()
+	fs := append([]Format(nil), formats...)
+	formatsMu.RUnlock()
+	for _, f := range fs {
+		if !f.Match(src, size) {
+			continue
+		}
+		if _, err := src.Seek(0, io.SeekStart); err != nil {
+			return nil, err
+		}
+		return f.New(src, size)
+	}
+	return nil, ErrUnknownFormat
+}
+
+// File is an open audio file: a Decoder plus the file it reads.
+type File struct {
+	Decoder
+	f *os.File
+}
+
+// Open opens the named file and detects its format. Errors name the file.
+func Open(path string) (*File, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	st, err := f.Stat()
+	if err != nil {
+		f.Close()
+		return nil, err
+	}
+	if st.IsDir() {
+		f.Close()
+		return nil, fmt.Errorf("%s: is a directory", path)
+	}
+	d, err := New(f)
+	if err != nil {
+		f.Close()
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return &File{Decoder: d, f: f}, nil
+}
+
+// Close closes the underlying file.
+func (f *File) Close() error { return f.f.Close() }
+
+// Notes returns the decoder's notes when it keeps any.
+func (f *File) Notes() []string {
+	if n, ok := f.Decoder.(Noter); ok {
+		return n.Notes()
+	}
+	return nil
+}
+
+// FormatError reports a header or structure the decoder cannot read.
+type FormatError struct {
+	Format  string // e.g. "wav"
+	Offset  int64  // byte offset of the problem
+	Problem string // what was expected and what was found
+}
+
+func (e *FormatError) Error() string {
+	return fmt.Sprintf("invalid %s file at byte %d: %s", e.Format, e.Offset, e.Problem)
+}
+
+// UnsupportedError reports a file that is well-formed but uses a coding
+// kweigh does not measure (µ-law, ADPCM, 32-bit FLAC, MPEG-2.5 …).
+type UnsupportedError struct {
+	Format string // container, e.g. "wav"
+	What   string // e.g. "µ-law (format tag 0x0007)"
+}
+
+func (e *UnsupportedError) Error() string {
+	return fmt.Sprintf("unsupported %s: %s", e.Format, e.What)
+}
+
+// IntegrityError reports damaged audio found while decoding: truncated data,
+// a CRC or checksum mismatch. The frames delivered before it are valid and
+// may be measured, but the result must be flagged as coming from a damaged
+// file.
+type IntegrityError struct {
+	Format  string
+	Offset  int64 // byte offset where the damage was found (-1 if unknown)
+	Problem string
+}
+
+func (e *IntegrityError) Error() string {
+	if e.Offset < 0 {
+		return fmt.Sprintf("damaged %s file: %s", e.Format, e.Problem)
+	}
+	return fmt.Sprintf("damaged %s file at byte %d: %s", e.Format, e.Offset, e.Problem)
+}

@@ -1,0 +1,49 @@
+package rules
+
+import "github.com/kweigh/kweigh/measure"
+
+// Verdict is the outcome of one check or of a whole file.
+type Verdict string
+
+// Verdicts, from best to worst. A file's verdict is the worst of its checks;
+// Error means the file could not be measured.
+const (
+	Pass  Verdict = "pass"
+	Warn  Verdict = "warn"
+	Fail  Verdict = "fail"
+	Error Verdict = "error"
+)
+
+// Check is one judged requirement.
+type Check struct {
+	// ID is stable and machine-readable, e.g. "integrated", "true_peak",
+	// "sample_rate", "trailing_silence".
+	ID      string  `json:"id"`
+	Verdict Verdict `json:"verdict"`
+	// Measured is a number (float64, in Unit) or a string (e.g. "mp3");
+	// nil when the figure is undefined.
+	Measured any    `json:"measured"`
+	Unit     string `json:"unit,omitempty"`
+	// Limit says what the spec requires, in words and numbers,
+	// e.g. "-23.0 LUFS ±1.0 LU" or "≤ -1.0 dBTP".
+	Limit string `json:"limit"`
+	// Reason is one line in plain words.
+	Reason string `json:"reason"`
+}
+
+// Result is a Measurement judged against a spec. Its JSON form is the
+// measurement's keys plus spec, verdict, checks, suggested_gain_db.
+type Result struct {
+	*measure.Measurement
+	Spec    string  `json:"spec"`
+	Verdict Verdict `json:"verdict"`
+	Checks  []Check `json:"checks"`
+	// SuggestedGainDB is the gain that brings integrated loudness to the
+	// spec's target; nil when no change is needed or no figure exists.
+	SuggestedGainDB *float64 `json:"suggested_gain_db"`
+	// LimiterReductionDB is how much peak reduction a limiter would need
+	// after that gain to keep the true peak under the ceiling; nil when none.
+	LimiterReductionDB *float64 `json:"limiter_reduction_db"`
+	// Advice is the fix in one or two plain sentences.
+	Advice string `json:"advice,omitempty"`
+}
