@@ -52,6 +52,10 @@ type Measurement struct {
 	// Error is set when the file could not be measured at all; the other
 	// fields are then zero.
 	Error string `json:"error,omitempty"`
+	// Err is the error behind Error, for callers that need to tell kinds
+	// apart (errors.Is(m.Err, decode.ErrUnknownFormat)); not part of the
+	// JSON record.
+	Err error `json:"-"`
 
 	// Series is the engine's 10 Hz time series, kept for plots; not part of
 	// the JSON record.

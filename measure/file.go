@@ -1,0 +1,224 @@
+package measure
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+
+	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/loudness"
+)
+
+// Options tune a measurement. The zero value measures with the file's own
+// layout and the default hygiene thresholds.
+type Options struct {
+	// Layout overrides the channel layout (labels in stream order) for
+	// files whose header is wrong or silent about it; its length must match
+	// the file's channel count.
+	Layout []string
+	// SilenceThresholdDBFS sets the silence level; 0 means
+	// DefaultSilenceThresholdDBFS.
+	SilenceThresholdDBFS float64
+	// ClipRunMinSamples sets the shortest clipping run; 0 means
+	// DefaultClipRunMinSamples.
+	ClipRunMinSamples int
+	// KeepSeries keeps the 10 Hz time series in Measurement.Series (for
+	// plots).
+	KeepSeries bool
+}
+
+// blockFrames is how many frames are decoded and metered at a time: large
+// enough to amortise calls, small enough to stay in cache (64 KiB of float64
+// per stereo block).
+const blockFrames = 4096
+
+// File measures the file at path. It never returns nil: a file that cannot
+// be measured yields a Measurement whose Error names the problem.
+func File(path string, opt Options) *Measurement {
+	f, err := decode.Open(path)
+	if err != nil {
+		return &Measurement{Path: path, Error: errorText(path, err), Err: err, Notes: []string{}}
+	}
+	defer f.Close()
+	m := Stream(path, f, opt)
+	if m.Error == "" {
+		m.Notes = append(m.Notes, f.Notes()...)
+	}
+	return m
+}
+
+// errorText makes sure an error message names the file once.
+func errorText(path string, err error) string {
+	msg := err.Error()
+	if len(msg) >= len(path) && msg[:len(path)] == path {
+		return msg
+	}
+	return path + ": " + msg
+}
+
+// Stream measures an open decoder; path is used for the record and for
+// error messages only.
+func Stream(path string, d decode.Decoder, opt Options) *Measurement {
+	info := d.Info()
+	m := &Measurement{
+		Path:          path,
+		Format:        info.Container,
+		Codec:         info.Codec,
+		SampleRateHz:  info.SampleRate,
+		Channels:      info.Channels,
+		BitsPerSample: info.BitsPerSample,
+		SampleFormat:  string(info.SampleFormat),
+		Mode:          info.Mode,
+		Bext:          info.Bext,
+		Notes:         []string{},
+	}
+	if info.BitRate > 0 {
+		m.BitRateKbps = math.Round(float64(info.BitRate)/100) / 10
+	}
+	fail := func(err error) *Measurement {
+		m.Error = errorText(path, err)
+		m.Err = err
+		return m
+	}
+	if info.Channels <= 0 || info.SampleRate <= 0 {
+		return fail(fmt.Errorf("header declares %d channels at %d Hz", info.Channels, info.SampleRate))
+	}
+
+	layout, source, err := chooseLayout(info, opt.Layout)
+	if err != nil {
+		return fail(err)
+	}
+	m.ChannelLayout, m.LayoutSource = layout, source
+	if source == "default" && info.Channels > 2 {
+		m.Notes = append(m.Notes, fmt.Sprintf("the file does not declare its channel layout; assumed %v by channel count (override with a layout option)", layout))
+	}
+	weights, err := loudness.Weights(layout)
+	if err != nil {
+		return fail(err)
+	}
+	meter, err := loudness.NewMeter(info.SampleRate, weights)
+	if err != nil {
+		return fail(err)
+	}
+
+	silence := opt.SilenceThresholdDBFS
+	if silence == 0 {
+		silence = DefaultSilenceThresholdDBFS
+	}
+	clipRun := opt.ClipRunMinSamples
+	if clipRun <= 0 {
+		clipRun = DefaultClipRunMinSamples
+	}
+	hyg := newHygiene(info.Channels, info.SampleRate, info.BitsPerSample, info.SampleFormat == decode.Float, layout, silence, clipRun)
+
+	buf := make([]float64, blockFrames*info.Channels)
+	var frames int64
+	for {
+		n, err := d.ReadFrames(buf)
+		if n > 0 {
+			block := buf[:n*info.Channels]
+			if i := firstNonFinite(block); i >= 0 {
+				at := frames + int64(i/info.Channels)
+				return fail(fmt.Errorf("sample %d of channel %s (%.3f s) is %v: the file holds invalid floating-point audio and cannot be measured",
+					at, layout[i%info.Channels], float64(at)/float64(info.SampleRate), block[i]))
+			}
+			meter.Write(block)
+			hyg.write(block)
+			frames += int64(n)
+		}
+		if err == io.EOF {
+			break
+		}
+		var damage *decode.IntegrityError
+		if errors.As(err, &damage) {
+			m.Damaged = damage.Error()
+			break
+		}
+		if err != nil {
+			return fail(err)
+		}
+		if n == 0 {
+			return fail(errors.New("decoder made no progress"))
+		}
+	}
+
+	r := meter.Result()
+	m.DurationS = float64(frames) / float64(info.SampleRate)
+	if info.Frames >= 0 && frames != info.Frames && m.Damaged == "" {
+		m.Notes = append(m.Notes, fmt.Sprintf("header declares %d frames but %d were decoded", info.Frames, frames))
+	}
+	fillLoudness(m, r)
+	m.Signal = hyg.finish(info.SampleRate, layout, silence)
+	if opt.KeepSeries {
+		s := r.Series
+		m.Series = &s
+	}
+	return m
+}
+
+// chooseLayout picks the user's layout, then the file's, then the default
+// by channel count.
+func chooseLayout(info decode.Info, user []string) ([]string, string, error) {
+	switch {
+	case user != nil:
+		if len(user) != info.Channels {
+			return nil, "", fmt.Errorf("the layout option names %d channels but the file has %d", len(user), info.Channels)
+		}
+		return user, "user", nil
+	case len(info.Layout) == info.Channels:
+		return info.Layout, "file", nil
+	default:
+		return decode.DefaultLayout(info.Channels), "default", nil
+	}
+}
+
+// firstNonFinite returns the index of the first NaN or ±Inf sample, or -1.
+func firstNonFinite(v []float64) int {
+	for i, x := range v {
+		// x-x is NaN for both NaN and ±Inf, 0 otherwise.
+		if x-x != 0 {
+			return i
+		}
+	}
+	return -1
+}
+
+// fillLoudness copies the engine's result into the record, turning
+// undefined readings into nulls with notes.
+func fillLoudness(m *Measurement, r loudness.Result) {
+	m.IntegratedLUFS = reading(m, "integrated loudness", r.Integrated)
+	m.LoudnessRangeLU = reading(m, "loudness range", r.LoudnessRange)
+	m.MaxMomentaryLUFS = reading(m, "maximum momentary loudness", r.MaxMomentary)
+	m.MaxShortTermLUFS = reading(m, "maximum short-term loudness", r.MaxShortTerm)
+	m.TruePeakDBTP = peak(r.MaxTruePeak())
+	m.SamplePeakDBFS = peak(r.MaxSamplePeak())
+	if m.TruePeakDBTP == nil {
+		m.Notes = append(m.Notes, "no true or sample peak: the audio is digital silence")
+	}
+	m.ChannelTruePeakDBTP = make([]*float64, len(r.TruePeak))
+	for i, p := range r.TruePeak {
+		m.ChannelTruePeakDBTP[i] = peak(p)
+	}
+	m.ChannelSamplePeakDBFS = make([]*float64, len(r.SamplePeak))
+	for i, p := range r.SamplePeak {
+		m.ChannelSamplePeakDBFS[i] = peak(p)
+	}
+}
+
+func reading(m *Measurement, what string, r loudness.Reading) *float64 {
+	if !r.Defined {
+		m.Notes = append(m.Notes, fmt.Sprintf("no %s: %s", what, r.Why))
+		return nil
+	}
+	v := r.Value
+	return &v
+}
+
+func peak(linear float64) *float64 {
+	if linear <= 0 {
+		return nil
+	}
+	v := loudness.DB(linear)
+	return &v
+}

@@ -1,0 +1,277 @@
+package measure
+
+import (
+	"math"
+)
+
+// Defaults for the signal-hygiene probes. None of them has a published
+// source: they are common practice in delivery QC.
+const (
+	// DefaultSilenceThresholdDBFS: audio whose sample peak stays below this
+	// counts as silence (common practice, no published source).
+	DefaultSilenceThresholdDBFS = -60.0
+	// DefaultClipRunMinSamples: a run of this many consecutive full-scale
+	// samples counts as clipping (common practice, no published source: a
+	// single full-scale sample may be a legitimate peak).
+	DefaultClipRunMinSamples = 3
+	// correlationWindowS is the window for MinWindowCorrelation, the same 3 s
+	// as short-term loudness so a phase problem is judged over a stretch a
+	// listener would notice.
+	correlationWindowS = 3
+)
+
+// hygiene accumulates the non-loudness QC figures over a stream in one pass.
+// It keeps a fixed amount of state per channel, whatever the file's length.
+type hygiene struct {
+	channels     int
+	clipLevel    float64 // |x| at or above this is a full-scale sample
+	silenceLevel float64 // linear sample-peak threshold for silence
+	lsb          float64 // one quantisation step, for the dual-mono test
+	clipRunMin   int64
+
+	frames       int64
+	firstLoud    int64 // first frame with any channel ≥ silenceLevel, -1 if none
+	lastLoud     int64 // last such frame
+	sum          []float64
+	peak         []float64
+	run          []int64
+	clipped      int64
+	clipRuns     int64
+	longestRun   int64
+	left, right  int // indices of the front L/R pair, -1 if none
+	pair         pairStats
+	window       pairStats
+	windowFrames int64
+	minWindow    float64
+	haveWindow   bool
+	maxDiff      float64
+}
+
+// pairStats holds the running sums for a Pearson correlation of two
+// channels.
+type pairStats struct {
+	n                     float64
+	sl, sr, sll, srr, slr float64
+}
+
+func (p *pairStats) correlation() (float64, bool) {
+	if p.n < 2 {
+		return 0, false
+	}
+	cov := p.slr - p.sl*p.sr/p.n
+	vl := p.sll - p.sl*p.sl/p.n
+	vr := p.srr - p.sr*p.sr/p.n
+	if vl <= 0 || vr <= 0 {
+		return 0, false
+	}
+	c := cov / math.Sqrt(vl*vr)
+	return math.Max(-1, math.Min(1, c)), true
+}
+
+func newHygiene(channels, sampleRate, bits int, float bool, layout []string, silenceDBFS float64, clipRunMin int) *hygiene {
+	h := &hygiene{
+		channels:     channels,
+		silenceLevel: math.Pow(10, silenceDBFS/20),
+		clipRunMin:   int64(clipRunMin),
+		firstLoud:    -1,
+		lastLoud:     -1,
+		sum:          make([]float64, channels),
+		peak:         make([]float64, channels),
+		run:          make([]int64, channels),
+		left:         -1,
+		right:        -1,
+		windowFrames: int64(sampleRate) * correlationWindowS,
+		minWindow:    1,
+	}
+	if float || bits <= 0 {
+		h.clipLevel = 1.0
+		h.lsb = 1.0 / (1 << 23) // a 24-bit step: float deliveries are mastered at ≤ 24 bits
+	} else {
+		full := math.Ldexp(1, bits-1)
+		h.clipLevel = (full - 1) / full
+		h.lsb = 1 / full
+	}
+	for i, l := range layout {
+		switch l {
+		case "L":
+			h.left = i
+		case "R":
+			h.right = i
+		}
+	}
+	if h.left < 0 || h.right < 0 {
+		h.left, h.right = -1, -1
+	}
+	return h
+}
+
+// write takes interleaved frames.
+func (h *hygiene) write(buf []float64) {
+	nc := h.channels
+	frames := len(buf) / nc
+	for c := 0; c < nc; c++ {
+		sum, peak, run := h.sum[c], h.peak[c], h.run[c]
+		for i := c; i < len(buf); i += nc {
+			x := buf[i]
+			sum += x
+			a := math.Abs(x)
+			if a > peak {
+				peak = a
+			}
+			if a >= h.clipLevel {
+				h.clipped++
+				run++
+			} else if run > 0 {
+				h.endRun(run)
+				run = 0
+			}
+		}
+		h.sum[c], h.peak[c], h.run[c] = sum, peak, run
+	}
+	h.trackLoudness(buf, frames)
+	if h.left >= 0 {
+		h.trackPair(buf, frames)
+	}
+	h.frames += int64(frames)
+}
+
+func (h *hygiene) endRun(run int64) {
+	if run >= h.clipRunMin {
+		h.clipRuns++
+	}
+	if run > h.longestRun {
+		h.longestRun = run
+	}
+}
+
+// trackLoudness finds the first and last frame whose sample peak reaches the
+// silence threshold.
+func (h *hygiene) trackLoudness(buf []float64, frames int) {
+	nc := h.channels
+	thr := h.silenceLevel
+	if h.firstLoud < 0 {
+		for f := 0; f < frames; f++ {
+			if anyAbove(buf[f*nc:(f+1)*nc], thr) {
+				h.firstLoud = h.frames + int64(f)
+				break
+			}
+		}
+		if h.firstLoud < 0 {
+			return
+		}
+	}
+	for f := frames - 1; f >= 0; f-- {
+		if anyAbove(buf[f*nc:(f+1)*nc], thr) {
+			if last := h.frames + int64(f); last > h.lastLoud {
+				h.lastLoud = last
+			}
+			return
+		}
+	}
+}
+
+func anyAbove(frame []float64, thr float64) bool {
+	for _, x := range frame {
+		if x >= thr || x <= -thr {
+			return true
+		}
+	}
+	return false
+}
+
+// trackPair accumulates the L/R correlation over the file and over 3 s
+// windows, and the largest L−R difference for the dual-mono test.
+func (h *hygiene) trackPair(buf []float64, frames int) {
+	nc, li, ri := h.channels, h.left, h.right
+	for f := 0; f < frames; f++ {
+		l, r := buf[f*nc+li], buf[f*nc+ri]
+		if d := math.Abs(l - r); d > h.maxDiff {
+			h.maxDiff = d
+		}
+		w := &h.window
+		w.n++
+		w.sl += l
+		w.sr += r
+		w.sll += l * l
+		w.srr += r * r
+		w.slr += l * r
+		if int64(w.n) == h.windowFrames {
+			h.closeWindow()
+		}
+	}
+}
+
+// closeWindow folds the current window into the whole-file sums and, when
+// both channels carry signal, into the minimum window correlation.
+func (h *hygiene) closeWindow() {
+	w := &h.window
+	p := &h.pair
+	p.n += w.n
+	p.sl += w.sl
+	p.sr += w.sr
+	p.sll += w.sll
+	p.srr += w.srr
+	p.slr += w.slr
+	// A window counts only when both channels reach the silence threshold
+	// in RMS terms; a correlation of near-silence is noise.
+	floor := h.silenceLevel * h.silenceLevel * w.n
+	if w.sll > floor && w.srr > floor {
+		if c, ok := w.correlation(); ok {
+			if !h.haveWindow || c < h.minWindow {
+				h.minWindow = c
+			}
+			h.haveWindow = true
+		}
+	}
+	*w = pairStats{}
+}
+
+// finish returns the findings. layout labels the silent channels.
+func (h *hygiene) finish(sampleRate int, layout []string, silenceDBFS float64) Signal {
+	for c := range h.run {
+		if h.run[c] > 0 {
+			h.endRun(h.run[c])
+			h.run[c] = 0
+		}
+	}
+	if h.window.n > 0 {
+		h.closeWindow()
+	}
+	s := Signal{
+		SilenceThresholdDBFS: silenceDBFS,
+		ClippedSamples:       h.clipped,
+		ClipRuns:             h.clipRuns,
+		ClipRunMinSamples:    int(h.clipRunMin),
+		LongestClipRun:       h.longestRun,
+		DCOffset:             make([]float64, h.channels),
+		SilentChannels:       []string{},
+	}
+	rate := float64(sampleRate)
+	if h.firstLoud < 0 {
+		s.LeadingSilenceS = float64(h.frames) / rate
+		s.TrailingSilenceS = float64(h.frames) / rate
+	} else {
+		s.LeadingSilenceS = float64(h.firstLoud) / rate
+		s.TrailingSilenceS = float64(h.frames-1-h.lastLoud) / rate
+	}
+	for c := 0; c < h.channels; c++ {
+		if h.frames > 0 {
+			s.DCOffset[c] = h.sum[c] / float64(h.frames)
+		}
+		if h.peak[c] < h.silenceLevel {
+			s.SilentChannels = append(s.SilentChannels, layout[c])
+		}
+	}
+	if h.left >= 0 {
+		if c, ok := h.pair.correlation(); ok {
+			s.Correlation = &c
+		}
+		if h.haveWindow {
+			m := h.minWindow
+			s.MinWindowCorrelation = &m
+		}
+		s.DualMono = h.channels == 2 && h.frames > 0 && h.maxDiff <= h.lsb &&
+			h.peak[h.left] >= h.silenceLevel
+	}
+	return s
+}
