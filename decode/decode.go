@@ -207,11 +207,20 @@ type FormatError struct {
 	Format  string // e.g. "wav"
 	Offset  int64  // byte offset of the problem
 	Problem string // what was expected and what was found
+	// Err is the underlying error, if any (io.ErrUnexpectedEOF when the
+	// file ends inside a structure); errors.Is sees through to it.
+	Err error
 }
 
 func (e *FormatError) Error() string {
+	if e.Err != nil {
+		return fmt.Sprintf("invalid %s file at byte %d: %s: %v", e.Format, e.Offset, e.Problem, e.Err)
+	}
 	return fmt.Sprintf("invalid %s file at byte %d: %s", e.Format, e.Offset, e.Problem)
 }
+
+// Unwrap returns the underlying error.
+func (e *FormatError) Unwrap() error { return e.Err }
 
 // UnsupportedError reports a file that is well-formed but uses a coding
 // kweigh does not measure (µ-law, ADPCM, 32-bit FLAC, MPEG-2.5 …).
