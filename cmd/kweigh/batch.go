@@ -1,0 +1,177 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strings"
+
+	"github.com/urfave/cli/v3"
+
+	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/reports"
+)
+
+// batchOptions are the options measure and check share.
+type batchOptions struct {
+	format reports.Format
+	output string // file for the chosen format; stdout then gets text
+	jobs   int
+	layout []string
+	report string // HTML report file
+	plots  string // folder for standalone SVG plots
+	colour bool
+}
+
+func batchFlags(formats []reports.Format) []cli.Flag {
+	names := make([]string, len(formats))
+	for i, f := range formats {
+		names[i] = string(f)
+	}
+	return []cli.Flag{
+		&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "text", Usage: "output format: " + strings.Join(names, ", ")},
+		&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the chosen format to `FILE`; the terminal still gets the text report"},
+		&cli.IntFlag{Name: "jobs", Aliases: []string{"j"}, Value: runtime.NumCPU(), Usage: "files measured at once"},
+		&cli.StringFlag{Name: "layout", Usage: "channel layout for files without (or with a wrong) one: mono, stereo, 5.0, 5.1, 7.1 or labels like L,R,C,LFE,Ls,Rs"},
+		&cli.StringFlag{Name: "report", Usage: "also write a self-contained HTML QC page to `FILE`"},
+		&cli.StringFlag{Name: "plots", Usage: "also write each file's loudness plot as an SVG into `DIR`"},
+	}
+}
+
+func readBatchOptions(cmd *cli.Command, formats []reports.Format) (batchOptions, error) {
+	var o batchOptions
+	f, err := reports.ParseFormat(cmd.String("format"))
+	if err != nil {
+		return o, usageError{err}
+	}
+	allowed := false
+	for _, a := range formats {
+		allowed = allowed || a == f
+	}
+	if !allowed {
+		return o, usagef("--format %s is not available for %s", f, cmd.Name)
+	}
+	o.format = f
+	o.output = cmd.String("output")
+	o.jobs = cmd.Int("jobs")
+	if o.jobs < 1 {
+		return o, usagef("--jobs must be at least 1")
+	}
+	if l := cmd.String("layout"); l != "" {
+		if o.layout, err = decode.ParseLayout(l); err != nil {
+			return o, usageError{err}
+		}
+	}
+	o.report = cmd.String("report")
+	o.plots = cmd.String("plots")
+	o.colour = isTerminal(cmd.Root().Writer) && os.Getenv("NO_COLOR") == ""
+	if cmd.Args().Len() == 0 {
+		return o, usagef("name at least one file or folder")
+	}
+	return o, nil
+}
+
+// measureOptions turns batch options into the measurement's.
+func (o batchOptions) measureOptions() measure.Options {
+	return measure.Options{Layout: o.layout, KeepSeries: o.report != "" || o.plots != ""}
+}
+
+// outputs opens where the records go: the chosen format to --output (or
+// stdout), and text to stdout when --output is given. close flushes both.
+type outputs struct {
+	file    *os.File
+	primary io.Writer
+	console io.Writer // nil when the primary output is stdout
+}
+
+func openOutputs(o batchOptions, stdout io.Writer) (*outputs, error) {
+	if o.output == "" {
+		return &outputs{primary: stdout}, nil
+	}
+	f, err := os.Create(o.output)
+	if err != nil {
+		return nil, usageError{fmt.Errorf("--output: %w", err)}
+	}
+	return &outputs{file: f, primary: f, console: stdout}, nil
+}
+
+func (o *outputs) close() error {
+	if o.file != nil {
+		return o.file.Close()
+	}
+	return nil
+}
+
+// orderedEmitter hands results on in index order as soon as every earlier
+// one is in, so text and document output is stable but still progressive.
+type orderedEmitter[T any] struct {
+	next    int
+	pending map[int]T
+	emit    func(T)
+}
+
+func newOrderedEmitter[T any](emit func(T)) *orderedEmitter[T] {
+	return &orderedEmitter[T]{pending: map[int]T{}, emit: emit}
+}
+
+func (e *orderedEmitter[T]) add(i int, r T) {
+	e.pending[i] = r
+	for {
+		r, ok := e.pending[e.next]
+		if !ok {
+			return
+		}
+		delete(e.pending, e.next)
+		e.emit(r)
+		e.next++
+	}
+}
+
+// measureTarget measures one collected file.
+func measureTarget(t target, opt measure.Options) *measure.Measurement {
+	if t.walkErr != nil {
+		return &measure.Measurement{Path: t.path, Error: fmt.Sprintf("%s: %v", t.path, t.walkErr), Err: t.walkErr, Notes: []string{}}
+	}
+	return measure.File(t.path, opt)
+}
+
+// skipped reports whether a measurement is of a non-audio file found by
+// walking a folder: such files are left out with a note on stderr.
+func skipped(t target, m *measure.Measurement) bool {
+	return !t.explicit && m.Err != nil && isNotAudio(m.Err)
+}
+
+func noteSkipped(stderr io.Writer, paths []string) {
+	if len(paths) == 0 {
+		return
+	}
+	fmt.Fprintf(stderr, "kweigh: skipped %d file(s) that are not audio: %s\n", len(paths), strings.Join(paths, ", "))
+}
+
+func fileExists(path string) bool {
+	st, err := os.Stat(path)
+	return err == nil && !st.IsDir()
+}
+
+// writePlotsAndReport writes the optional HTML page and SVG plots.
+func ensureDir(dir string) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("--plots: %w", err)
+	}
+	return nil
+}
+
+// plotName is the SVG file name for a measured file: its path with
+// separators replaced, so files of the same name in different folders do
+// not overwrite each other.
+func plotName(path string) string {
+	clean := filepath.ToSlash(filepath.Clean(path))
+	clean = strings.TrimLeft(strings.ReplaceAll(clean, "../", ""), "/")
+	return strings.NewReplacer("/", "__", ":", "_").Replace(clean) + ".svg"
+}
+
+var _ = context.Background

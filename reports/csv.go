@@ -1,0 +1,192 @@
+package reports
+
+import (
+	"encoding/csv"
+	"io"
+	"strconv"
+	"strings"
+
+	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/rules"
+)
+
+// column is one CSV column: its header and how a record fills it.
+type column[T any] struct {
+	header string
+	cell   func(T) string
+}
+
+// measurementColumns are the columns a measurement fills, in order, after
+// the path. Cells are empty for a file that could not be measured.
+var measurementColumns = []column[*measure.Measurement]{
+	{"format", func(m *measure.Measurement) string { return m.Format }},
+	{"codec", func(m *measure.Measurement) string { return m.Codec }},
+	{"sample_rate_hz", func(m *measure.Measurement) string { return strconv.Itoa(m.SampleRateHz) }},
+	{"channels", func(m *measure.Measurement) string { return strconv.Itoa(m.Channels) }},
+	{"channel_layout", func(m *measure.Measurement) string { return strings.Join(m.ChannelLayout, ";") }},
+	{"bits_per_sample", func(m *measure.Measurement) string { return strconv.Itoa(m.BitsPerSample) }},
+	{"sample_format", func(m *measure.Measurement) string { return m.SampleFormat }},
+	{"duration_s", func(m *measure.Measurement) string { return fixed(m.DurationS, 3) }},
+	{"integrated_lufs", func(m *measure.Measurement) string { return csvFigure(m.IntegratedLUFS) }},
+	{"loudness_range_lu", func(m *measure.Measurement) string { return csvFigure(m.LoudnessRangeLU) }},
+	{"true_peak_dbtp", func(m *measure.Measurement) string { return csvFigure(m.TruePeakDBTP) }},
+	{"sample_peak_dbfs", func(m *measure.Measurement) string { return csvFigure(m.SamplePeakDBFS) }},
+	{"max_momentary_lufs", func(m *measure.Measurement) string { return csvFigure(m.MaxMomentaryLUFS) }},
+	{"max_short_term_lufs", func(m *measure.Measurement) string { return csvFigure(m.MaxShortTermLUFS) }},
+}
+
+// resultColumns are the check columns after the measurement's.
+var resultColumns = []column[*rules.Result]{
+	{"suggested_gain_db", func(r *rules.Result) string { return csvFigure(r.SuggestedGainDB) }},
+	{"limiter_reduction_db", func(r *rules.Result) string { return csvFigure(r.LimiterReductionDB) }},
+	{"failed_checks", func(r *rules.Result) string { return checkIDs(r.Checks, rules.Fail, rules.Error) }},
+	{"warned_checks", func(r *rules.Result) string { return checkIDs(r.Checks, rules.Warn) }},
+}
+
+// csvFigure writes a dB figure with two decimals; empty when undefined.
+func csvFigure(p *float64) string {
+	if !defined(p) {
+		return ""
+	}
+	return fixed(*p, 2)
+}
+
+func checkIDs(checks []rules.Check, verdicts ...rules.Verdict) string {
+	var ids []string
+	for _, c := range checks {
+		for _, v := range verdicts {
+			if c.Verdict == v {
+				ids = append(ids, c.ID)
+				break
+			}
+		}
+	}
+	return strings.Join(ids, ";")
+}
+
+// MeasureColumns returns the header of the measure CSV format: path, the
+// stream facts, duration_s, the six loudness and peak figures, then damaged,
+// error and notes.
+func MeasureColumns() []string {
+	h := []string{"path"}
+	for _, c := range measurementColumns {
+		h = append(h, c.header)
+	}
+	return append(h, "damaged", "error", "notes")
+}
+
+// CheckColumns returns the header of the check CSV format: path, spec,
+// verdict, the measure columns' stream facts and figures,
+// suggested_gain_db, limiter_reduction_db, failed_checks (ids of failed
+// checks and checks in error), warned_checks, then damaged, error and notes.
+func CheckColumns() []string {
+	h := []string{"path", "spec", "verdict"}
+	for _, c := range measurementColumns {
+		h = append(h, c.header)
+	}
+	for _, c := range resultColumns {
+		h = append(h, c.header)
+	}
+	return append(h, "damaged", "error", "notes")
+}
+
+// csvTable writes rows through encoding/csv, the header before the first
+// row (or at Close when there are none).
+type csvTable struct {
+	sink
+	csv    *csv.Writer
+	header []string
+	headed bool
+}
+
+func newCSVTable(w io.Writer, header []string) *csvTable {
+	t := &csvTable{sink: newSink(w, CSV), header: header}
+	t.csv = csv.NewWriter(t.buf)
+	return t
+}
+
+func (t *csvTable) row(cells []string) error {
+	if err := t.ready(); err != nil {
+		return err
+	}
+	if !t.headed {
+		t.headed = true
+		t.fail(t.csv.Write(t.header))
+	}
+	t.fail(t.csv.Write(cells))
+	return t.err
+}
+
+func (t *csvTable) finish() error {
+	if t.closed {
+		return ErrClosed
+	}
+	if t.err == nil && !t.headed {
+		t.headed = true
+		t.fail(t.csv.Write(t.header))
+	}
+	t.csv.Flush()
+	t.fail(t.csv.Error())
+	return t.close()
+}
+
+// measurementCells fills the measurement columns, empty when m is nil or
+// could not be measured.
+func measurementCells(m *measure.Measurement) []string {
+	cells := make([]string, len(measurementColumns))
+	if m == nil || m.Error != "" {
+		return cells
+	}
+	for i, c := range measurementColumns {
+		cells[i] = c.cell(m)
+	}
+	return cells
+}
+
+// trailingCells fills damaged, error and notes.
+func trailingCells(m *measure.Measurement) []string {
+	if m == nil {
+		return []string{"", "no measurement", ""}
+	}
+	return []string{m.Damaged, m.Error, strings.Join(m.Notes, " | ")}
+}
+
+// measureCSV writes one row per measurement.
+type measureCSV struct{ table *csvTable }
+
+func newMeasureCSV(w io.Writer) *measureCSV {
+	return &measureCSV{table: newCSVTable(w, MeasureColumns())}
+}
+
+func (w *measureCSV) Write(m *measure.Measurement) error {
+	if m == nil {
+		return w.table.fail(errNilRecord)
+	}
+	row := append([]string{m.Path}, measurementCells(m)...)
+	return w.table.row(append(row, trailingCells(m)...))
+}
+
+// Close flushes; the CSV format has no summary row.
+func (w *measureCSV) Close(Summary) error { return w.table.finish() }
+
+// checkCSV writes one row per result.
+type checkCSV struct{ table *csvTable }
+
+func newCheckCSV(w io.Writer) *checkCSV {
+	return &checkCSV{table: newCSVTable(w, CheckColumns())}
+}
+
+func (w *checkCSV) Write(r *rules.Result) error {
+	if r == nil {
+		return w.table.fail(errNilRecord)
+	}
+	row := []string{measurementPath(r.Measurement), r.Spec, string(fileVerdict(r))}
+	row = append(row, measurementCells(r.Measurement)...)
+	for _, c := range resultColumns {
+		row = append(row, c.cell(r))
+	}
+	return w.table.row(append(row, trailingCells(r.Measurement)...))
+}
+
+// Close flushes; the CSV format has no summary row.
+func (w *checkCSV) Close(Summary) error { return w.table.finish() }

@@ -1,0 +1,90 @@
+package reports
+
+import (
+	"fmt"
+	"strings"
+	"time"
+
+	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/rules"
+)
+
+// Summary totals a run. Build it with Add (check) or AddMeasurement
+// (measure) as the records come in, set Elapsed, and pass it to Close.
+type Summary struct {
+	Files  int
+	Passed int
+	Warned int
+	Failed int
+	// Errors counts files that could not be measured or checked.
+	Errors int
+	// AudioSeconds is the total duration of the files measured.
+	AudioSeconds float64
+	// Elapsed is the wall time of the run; zero when unknown.
+	Elapsed time.Duration
+}
+
+// Add counts one check result.
+func (s *Summary) Add(r *rules.Result) {
+	s.Files++
+	switch {
+	case r.Verdict == rules.Error || r.Measurement == nil || r.Measurement.Error != "":
+		s.Errors++
+	case r.Verdict == rules.Fail:
+		s.Failed++
+	case r.Verdict == rules.Warn:
+		s.Warned++
+	default:
+		s.Passed++
+	}
+	if r.Measurement != nil && r.Measurement.Error == "" {
+		s.AudioSeconds += r.DurationS
+	}
+}
+
+// AddMeasurement counts one measurement.
+func (s *Summary) AddMeasurement(m *measure.Measurement) {
+	s.Files++
+	if m.Error != "" {
+		s.Errors++
+		return
+	}
+	s.AudioSeconds += m.DurationS
+}
+
+// Measured returns the number of files that could be measured.
+func (s Summary) Measured() int { return s.Files - s.Errors }
+
+// String returns the check summary in one line, e.g.
+// "2 passed, 1 warned, 1 failed, 0 errors · 4 files, 1:52:10.4 of audio checked in 3.2 s".
+func (s Summary) String() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "%d passed, %d warned, %d failed, %s · %s, %s of audio checked",
+		s.Passed, s.Warned, s.Failed, plural(s.Errors, "error"), plural(s.Files, "file"), clockDuration(s.AudioSeconds))
+	if s.Elapsed > 0 {
+		fmt.Fprintf(&b, " in %s", wallTime(s.Elapsed))
+	}
+	return b.String()
+}
+
+// MeasureString returns the measure summary in one line, e.g.
+// "3 files measured, 1 could not be · 1:52:10.4 of audio in 3.2 s".
+func (s Summary) MeasureString() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s measured", plural(s.Measured(), "file"))
+	if s.Errors > 0 {
+		fmt.Fprintf(&b, ", %d could not be", s.Errors)
+	}
+	fmt.Fprintf(&b, " · %s of audio", clockDuration(s.AudioSeconds))
+	if s.Elapsed > 0 {
+		fmt.Fprintf(&b, " in %s", wallTime(s.Elapsed))
+	}
+	return b.String()
+}
+
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
+}
