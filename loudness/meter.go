@@ -1,14 +1,9 @@
-// Package loudness is kweigh's measurement engine: ITU-R BS.1770-4/5
-// K-weighting, gated integrated loudness, momentary and short-term loudness
-// (EBU Tech 3341), loudness range (EBU Tech 3342) and oversampled true peak
-// (BS.1770 Annex 2). It works on interleaved float64 samples and knows
-// nothing of files.
-//
-// SKELETON: the API below is the contract the rest of kweigh builds on; the
-// engine helper fills in the implementation.
 package loudness
 
-import "math"
+import (
+	"fmt"
+	"math"
+)
 
 // Reading is a figure the standard may leave undefined (a file shorter than
 // one gating block has no integrated loudness; all-silent audio is below the
@@ -36,6 +31,15 @@ type Result struct {
 	TruePeak   []float64
 	SamplePeak []float64
 
+	// Oversampling is the true-peak oversampling factor used (4, 2 or 1).
+	Oversampling int
+
+	// NonFinite counts NaN and ±Inf samples written. The meter measured
+	// each of them as 0 (silence) so that one bad sample cannot poison the
+	// filter state for the rest of the stream; when NonFinite is not zero
+	// the figures describe damaged audio and a caller should say so.
+	NonFinite int64
+
 	// Series holds the 10 Hz time series behind the figures above.
 	Series Series
 }
@@ -60,6 +64,13 @@ func maxOf(v []float64) float64 {
 // ends at (i+1)·100 ms. A value is NaN where the window is not yet full (the
 // first 3 momentary and 29 short-term updates) and -Inf where the window is
 // digital silence.
+//
+// At sample rates where 100 ms is not a whole number of samples (11 025 Hz:
+// 1102.5), block k ends at sample round(k·rate/10), halves rounded up, so
+// the blocks alternate in length and never drift. A final block shorter
+// than 100 ms appears in no series; its peaks still count in the Result.
+// Interpolated true-peak values are attributed to the block of the newest
+// input sample they use (a lag of about 5.5 input samples).
 type Series struct {
 	// Momentary is the 400 ms loudness in LUFS at each 100 ms step.
 	Momentary []float32
@@ -78,8 +89,37 @@ func DB(linear float64) float64 { return 20 * math.Log10(linear) }
 
 // Meter accumulates one stream. Build it once per stream with NewMeter, feed
 // it with Write, read it with Result.
+//
+// It keeps, per 100 ms block, the weighted K-filtered energy and the peaks
+// (24 bytes), and per channel a few kilobytes of working buffer: memory grows
+// with duration by about 1 MB per hour and not at all with sample rate or
+// channel count beyond that.
 type Meter struct {
-	// implementation by the engine
+	rate     int
+	channels int
+	weights  []float64
+	filters  []KWeighting
+	peaks    []*TruePeak
+
+	frames       int64 // frames written
+	nextBoundary int64 // frame index where the current 100 ms block ends
+	nonFinite    int64
+
+	// The current, unfinished 100 ms block.
+	energy     float64   // Σ weight·Σy² over channels
+	blockTrue  []float64 // per channel true peak (linear)
+	blockPeak  []float64 // per channel sample peak (linear)
+	streamTrue []float64 // per channel, finished blocks only
+	streamPeak []float64
+
+	blocks []block // finished 100 ms blocks
+}
+
+// block is what the meter keeps of one finished 100 ms block.
+type block struct {
+	energy     float64 // Σ weight·Σy² over channels (not yet a mean)
+	truePeak   float64 // linear, highest over channels
+	samplePeak float64
 }
 
 // NewMeter returns a meter for interleaved frames of len(weights) channels at
@@ -87,21 +127,195 @@ type Meter struct {
 // in stream order (see Weights); a weight of 0 excludes the channel from
 // loudness (LFE) but not from true and sample peak.
 func NewMeter(sampleRate int, weights []float64) (*Meter, error) {
-	panic("not implemented")
+	if err := checkRate(sampleRate); err != nil {
+		return nil, err
+	}
+	if len(weights) == 0 {
+		return nil, fmt.Errorf("loudness: no channels")
+	}
+	for i, w := range weights {
+		if !(w >= 0) || math.IsInf(w, 0) {
+			return nil, fmt.Errorf("loudness: channel %d: weight %v is not a finite non-negative number", i+1, w)
+		}
+	}
+	n := len(weights)
+	m := &Meter{
+		rate:       sampleRate,
+		channels:   n,
+		weights:    append([]float64(nil), weights...),
+		filters:    make([]KWeighting, n),
+		peaks:      make([]*TruePeak, n),
+		blockTrue:  make([]float64, n),
+		blockPeak:  make([]float64, n),
+		streamTrue: make([]float64, n),
+		streamPeak: make([]float64, n),
+	}
+	k := NewKWeighting(sampleRate)
+	for c := range n {
+		m.filters[c] = k
+		m.peaks[c], _ = NewTruePeak(sampleRate) // rate checked above
+	}
+	m.Reset()
+	return m, nil
+}
+
+// boundary returns the frame index where 100 ms block k starts:
+// round(k·rate/10), halves up.
+func (m *Meter) boundary(k int64) int64 { return (k*int64(m.rate) + 5) / 10 }
+
+// Reset makes the meter ready for a new stream with the same configuration.
+func (m *Meter) Reset() {
+	for c := range m.channels {
+		m.filters[c].Reset()
+		m.peaks[c].Reset()
+	}
+	m.frames, m.nonFinite, m.energy = 0, 0, 0
+	m.nextBoundary = m.boundary(1)
+	clear(m.blockTrue)
+	clear(m.blockPeak)
+	clear(m.streamTrue)
+	clear(m.streamPeak)
+	m.blocks = m.blocks[:0]
 }
 
 // Write feeds interleaved frames. len(frames) must be a multiple of the
-// channel count; Write panics otherwise.
-func (m *Meter) Write(frames []float64) { panic("not implemented") }
+// channel count; Write panics otherwise. NaN and ±Inf samples are measured
+// as 0 and counted in Result.NonFinite.
+func (m *Meter) Write(frames []float64) {
+	nch := m.channels
+	if len(frames)%nch != 0 {
+		panic(fmt.Sprintf("loudness: Meter.Write: %d samples is not a whole number of %d-channel frames", len(frames), nch))
+	}
+	for len(frames) > 0 {
+		n := min(int64(len(frames)/nch), chunkFrames, m.nextBoundary-m.frames)
+		m.process(frames[:int(n)*nch], int(n))
+		frames = frames[int(n)*nch:]
+		m.frames += n
+		if m.frames == m.nextBoundary {
+			m.finishBlock()
+		}
+	}
+}
+
+// process measures n ≤ chunkFrames frames that lie inside one 100 ms
+// block, one channel at a time.
+func (m *Meter) process(frames []float64, n int) {
+	nch := m.channels
+	for c := range nch {
+		tp := m.peaks[c]
+		in := tp.input(n)
+		var peak uint64 // bits of max|v|: see maxAbs
+		j := c
+		for i := range in {
+			v := frames[j]
+			j += nch
+			if v-v != 0 { // NaN or ±Inf
+				v = 0
+				m.nonFinite++
+			}
+			in[i] = v
+			if a := math.Float64bits(v) &^ signBit; a > peak {
+				peak = a
+			}
+		}
+		m.blockPeak[c] = max(m.blockPeak[c], math.Float64frombits(peak))
+		if w := m.weights[c]; w > 0 {
+			m.energy += w * m.filters[c].Energy(in)
+		}
+		m.blockTrue[c] = tp.peakBuffered(n, m.blockTrue[c])
+	}
+}
+
+// finishBlock closes the current 100 ms block.
+func (m *Meter) finishBlock() {
+	b := block{energy: m.energy}
+	for c := range m.channels {
+		b.truePeak = max(b.truePeak, m.blockTrue[c])
+		b.samplePeak = max(b.samplePeak, m.blockPeak[c])
+		m.streamTrue[c] = max(m.streamTrue[c], m.blockTrue[c])
+		m.streamPeak[c] = max(m.streamPeak[c], m.blockPeak[c])
+	}
+	m.blocks = append(m.blocks, b)
+	m.energy = 0
+	clear(m.blockTrue)
+	clear(m.blockPeak)
+	m.nextBoundary = m.boundary(int64(len(m.blocks)) + 1)
+}
+
+// Window lengths in 100 ms blocks.
+const (
+	momentaryBlocks = 4  // 400 ms
+	shortTermBlocks = 30 // 3 s
+)
+
+// windowEnergies returns, for every window of size consecutive finished
+// 100 ms blocks, the weighted mean square Σ weight·zᵢ of the window.
+func (m *Meter) windowEnergies(size int) []float64 {
+	if len(m.blocks) < size {
+		return nil
+	}
+	z := make([]float64, len(m.blocks)-size+1)
+	for j := range z {
+		sum := 0.0
+		for _, b := range m.blocks[j : j+size] {
+			sum += b.energy
+		}
+		samples := m.boundary(int64(j+size)) - m.boundary(int64(j))
+		z[j] = sum / float64(samples)
+	}
+	return z
+}
 
 // Result returns the measurement of everything written so far. It may be
 // called more than once.
-func (m *Meter) Result() Result { panic("not implemented") }
+func (m *Meter) Result() Result {
+	r := Result{
+		SampleRate:   m.rate,
+		Channels:     m.channels,
+		Frames:       m.frames,
+		Oversampling: m.peaks[0].Factor(),
+		NonFinite:    m.nonFinite,
+		TruePeak:     make([]float64, m.channels),
+		SamplePeak:   make([]float64, m.channels),
+	}
+	for c := range m.channels {
+		tp := max(m.streamTrue[c], m.blockTrue[c])
+		r.TruePeak[c] = m.peaks[c].Flush(tp)
+		r.SamplePeak[c] = max(m.streamPeak[c], m.blockPeak[c])
+	}
 
-// Reset makes the meter ready for a new stream with the same configuration.
-func (m *Meter) Reset() { panic("not implemented") }
+	momentary := m.windowEnergies(momentaryBlocks)
+	shortTerm := m.windowEnergies(shortTermBlocks)
+	r.Integrated = gatedLoudness(momentary)
+	r.LoudnessRange = loudnessRange(shortTerm)
+	r.MaxMomentary = maxLoudness(momentary, whyTooShortBlock, whySilentBlocks)
+	r.MaxShortTerm = maxLoudness(shortTerm, whyTooShortShort, whySilentWindows)
 
-// Weights returns the BS.1770 channel weight for each label (see package
-// decode's label constants): 1.0 for front channels, 1.41 for surrounds,
-// 0 for LFE, and the BS.1770-4/5 position rule for the rest.
-func Weights(labels []string) ([]float64, error) { panic("not implemented") }
+	n := len(m.blocks)
+	s := Series{
+		Momentary:  seriesOf(momentary, n),
+		ShortTerm:  seriesOf(shortTerm, n),
+		TruePeak:   make([]float32, n),
+		SamplePeak: make([]float32, n),
+	}
+	for i, b := range m.blocks {
+		s.TruePeak[i] = float32(DB(b.truePeak))
+		s.SamplePeak[i] = float32(DB(b.samplePeak))
+	}
+	r.Series = s
+	return r
+}
+
+// seriesOf turns the energies of windows ending at blocks n−len(z)…n−1 into
+// n loudness values, NaN before the first full window.
+func seriesOf(z []float64, n int) []float32 {
+	out := make([]float32, n)
+	lead := n - len(z)
+	for i := range lead {
+		out[i] = float32(math.NaN())
+	}
+	for j, v := range z {
+		out[lead+j] = float32(loudnessOf(v))
+	}
+	return out
+}

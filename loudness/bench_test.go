@@ -1,0 +1,133 @@
+package loudness
+
+import (
+	"fmt"
+	"testing"
+)
+
+// benchSeconds is the length of the benchmark signal.
+const benchSeconds = 10
+
+// benchSignals are the 48 kHz stereo inputs the benchmarks run on: a
+// programme-like signal at realistic levels, and dense near-full-scale noise
+// on which the true-peak skip almost never applies (the honest worst case).
+func benchSignals() []struct {
+	name   string
+	frames []float64
+} {
+	const rate = 48000
+	n := benchSeconds * rate
+	return []struct {
+		name   string
+		frames []float64
+	}{
+		{"programme", interleave(musicLike(1, n, rate), musicLike(2, n, rate))},
+		{"dense-full-scale", interleave(denseFullScale(3, n), denseFullScale(4, n))},
+	}
+}
+
+// realtimeClock starts measuring a benchmark loop; call report after it.
+// It reports how many seconds of audio one second of work measures: against
+// wall time ("x-realtime") and against the CPU time of the benchmark's own
+// thread ("x-realtime-cpu"; Linux only), which on a shared machine is the
+// fair one-core figure.
+func realtimeClock(b *testing.B) (report func(audioSeconds float64)) {
+	unlock := lockThread()
+	b.ResetTimer()
+	start := threadCPU()
+	return func(audioSeconds float64) {
+		cpu := threadCPU() - start
+		b.StopTimer()
+		unlock()
+		audio := audioSeconds * float64(b.N)
+		b.ReportMetric(audio/b.Elapsed().Seconds(), "x-realtime")
+		if cpu > 0 {
+			b.ReportMetric(audio/cpu.Seconds(), "x-realtime-cpu")
+		}
+	}
+}
+
+// BenchmarkMeter48kStereo is the whole measurement (K-weighting, gating,
+// momentary, short-term, loudness range, 4× true peak, sample peak) of
+// 48 kHz stereo, written in blocks of 4096 frames as a decoder would.
+func BenchmarkMeter48kStereo(b *testing.B) {
+	for _, sig := range benchSignals() {
+		b.Run(sig.name, func(b *testing.B) {
+			m, err := NewMeter(48000, []float64{1, 1})
+			if err != nil {
+				b.Fatal(err)
+			}
+			b.SetBytes(int64(len(sig.frames) * 3)) // as 24-bit PCM
+			report := realtimeClock(b)
+			for range b.N {
+				m.Reset()
+				for f := sig.frames; len(f) > 0; {
+					n := min(len(f), 2*4096)
+					m.Write(f[:n])
+					f = f[n:]
+				}
+				r := m.Result()
+				if !r.Integrated.Defined {
+					b.Fatal("no integrated loudness")
+				}
+			}
+			report(benchSeconds)
+		})
+	}
+}
+
+// BenchmarkKWeighting48k is the K-weighting energy kernel alone on one
+// channel.
+func BenchmarkKWeighting48k(b *testing.B) {
+	x := musicLike(1, benchSeconds*48000, 48000)
+	k := NewKWeighting(48000)
+	b.SetBytes(int64(len(x) * 8))
+	report := realtimeClock(b)
+	var sink float64
+	for range b.N {
+		for f := x; len(f) > 0; {
+			n := min(len(f), chunkFrames)
+			sink += k.Energy(f[:n])
+			f = f[n:]
+		}
+	}
+	_ = sink
+	report(benchSeconds) // per channel
+}
+
+// BenchmarkTruePeak is the true-peak detector alone on one channel, at 4×
+// (48 kHz) and 2× (96 kHz), on both signals.
+func BenchmarkTruePeak(b *testing.B) {
+	for _, rate := range []int{48000, 96000} {
+		for _, sig := range []struct {
+			name string
+			x    []float64
+		}{
+			{"programme", musicLike(1, benchSeconds*rate, rate)},
+			{"dense-full-scale", denseFullScale(3, benchSeconds*rate)},
+		} {
+			b.Run(fmt.Sprintf("%dHz/%s", rate, sig.name), func(b *testing.B) {
+				tp, err := NewTruePeak(rate)
+				if err != nil {
+					b.Fatal(err)
+				}
+				b.SetBytes(int64(len(sig.x) * 8))
+				report := realtimeClock(b)
+				for range b.N {
+					tp.Reset()
+					// A fresh floor per 100 ms, as the meter does.
+					peak := 0.0
+					for f := sig.x; len(f) > 0; {
+						n := min(len(f), rate/10)
+						peak = max(peak, tp.Peak(f[:n], 0))
+						f = f[n:]
+					}
+					if peak == 0 {
+						b.Fatal("no peak")
+					}
+				}
+				report(benchSeconds) // per channel
+			})
+		}
+	}
+}

@@ -1,0 +1,84 @@
+// Package loudness is kweigh's measurement engine: ITU-R BS.1770-4/5
+// K-weighting, gated integrated loudness, momentary and short-term loudness
+// (EBU Tech 3341), loudness range (EBU Tech 3342) and oversampled true peak
+// (BS.1770 Annex 2). It works on interleaved float64 samples and knows
+// nothing of files.
+//
+// # K-weighting
+//
+// Each channel passes two biquads in series, a high shelf of about +4 dB
+// above 2 kHz (the acoustic effect of the head) and a high-pass near 38 Hz
+// (the "revised low-frequency B" curve):
+//
+//	H(z) = (b0 + b1·z⁻¹ + b2·z⁻²) / (1 + a1·z⁻¹ + a2·z⁻²)
+//
+// BS.1770 publishes the coefficients for 48 kHz only. NewKWeighting designs
+// them for any rate by the bilinear transform with K = tan(π·fc/fs):
+//
+//	shelf:     a0 = 1 + K/Q + K²
+//	           b0 = (Vh + Vb·K/Q + K²)/a0   b1 = 2(K² − Vh)/a0
+//	           b2 = (Vh − Vb·K/Q + K²)/a0   a1 = 2(K² − 1)/a0   a2 = (1 − K/Q + K²)/a0
+//	high-pass: b = 1, −2, 1                  a1, a2 as above with its own fc, Q
+//
+// with fc = 1681.97 Hz, Q = 0.70718, Vh = +4.0 dB, Vb = Vh^0.49967 for the
+// shelf and fc = 38.135 Hz, Q = 0.50033 for the high-pass. At 48 kHz this
+// reproduces the published table to about 1e-15.
+//
+// # Loudness of an interval
+//
+// With zᵢ the mean square of K-weighted channel i over the interval and Gᵢ
+// its weight (1.0 front, 1.41 surround, LFE left out; see Weights):
+//
+//	L = −0.691 + 10·log10(Σᵢ Gᵢ·zᵢ)  LKFS (= LUFS)
+//
+// The constant makes a 997 Hz sine at 0 dBFS in one front channel read
+// −3.01 LKFS.
+//
+// # Integrated loudness (gating)
+//
+// The stream is cut into 400 ms blocks every 100 ms (75 % overlap) from its
+// start; a last, incomplete block is dropped. Blocks at or below −70 LKFS
+// (absolute gate) are discarded; of the rest, those at or below the
+// loudness of their power mean less 10 LU (relative gate) are discarded;
+// the integrated loudness is the loudness of the power mean of what is
+// left. With no block left there is no value: Reading.Defined is false.
+//
+// # Momentary, short-term and loudness range
+//
+// Momentary loudness is L over the last 400 ms, short-term over the last
+// 3 s, both ungated and updated every 100 ms (Series). The loudness range
+// (EBU Tech 3342) takes the short-term values, drops those at or below
+// −70 LUFS, then those at or below their power mean less 20 LU, and is the
+// difference between the 95th and 10th percentiles of the rest, taken by
+// nearest rank (index round((n−1)·p) in the sorted values).
+//
+// The meter keeps, per 100 ms block, only the weighted sum of squares and
+// the peaks, and builds every window from those; at rates where 100 ms is
+// not a whole number of samples, block k ends at sample round(k·fs/10).
+//
+// # True peak
+//
+// The signal is oversampled 4× below 88.2 kHz, 2× from 88.2 kHz and not at
+// all from 176.4 kHz by the 48-tap, 4-phase interpolator of BS.1770 Annex 2;
+// the true peak is the largest magnitude of the oversampled signal (the
+// Annex's −12.04 dB pre-attenuation only protects fixed-point arithmetic
+// and is not needed in float64). The 2× interpolator uses phases 0 and 2 of
+// the same table: it reads the same interpolated waveform at half the
+// density. The interpolator lets through up to ≈0.2 dB of ripple and, at
+// 4× and 48 kHz, can miss up to 0.47 dB of a 20 kHz peak between its
+// points; EBU Tech 3341 allows +0.2/−0.4 dB.
+//
+// Speed comes from two exact shortcuts. Phases 3 and 2 are phases 0 and 1
+// reversed, so sums and differences of mirrored input pairs give two phases
+// from one set of products. And a run of input whose 12-sample
+// neighbourhood has magnitudes at most m cannot interpolate above
+// m·maxₖΣₜ|hₖ[t]|; when that bound is below the highest value already found
+// in the current 100 ms block, the run is skipped. Plain reference
+// implementations in the tests check that neither changes a result.
+//
+// # Bad samples
+//
+// Float input may exceed full scale and is measured as it is. NaN and ±Inf
+// samples are measured as 0 and counted in Result.NonFinite, so that one
+// bad sample cannot poison the filter state for the rest of the stream.
+package loudness
