@@ -6,7 +6,7 @@
 // kweigh's own loudness engine, and written as WAV, or encoded with Debian's
 // `flac` and `lame` (apt-get install flac lame).
 //
-//	go run testdata/demo/make-demo.go
+//	go run testdata/make-demo.go
 //
 // The files are committed, so running the demo needs only Go; rerun this only
 // to change them. See testdata/demo/README.md for what each file shows.
@@ -32,8 +32,8 @@ const seconds = 8.0
 func main() {
 	log.SetFlags(0)
 	dir := filepath.Join("testdata", "demo")
-	if _, err := os.Stat(filepath.Join(dir, "make-demo.go")); err != nil {
-		log.Fatal("run from the repository root: go run testdata/demo/make-demo.go")
+	if _, err := os.Stat(filepath.Join("testdata", "make-demo.go")); err != nil {
+		log.Fatal("run from the repository root: go run testdata/make-demo.go")
 	}
 	radio := filepath.Join(dir, "harbourlight-radio")
 	pods := filepath.Join(dir, "northgate-podcasts")
@@ -48,7 +48,7 @@ func main() {
 	ep08 := level(music(48000, 2, 8), -18.6)
 	// Declares the loudness it had before the last bus change: -23.0.
 	writeWAV(filepath.Join(radio, "tidewater-evenings-ep08.wav"), 48000, 24, ep08, bextFor(ep08, 48000, "Tidewater Evenings ep. 8 - final mix", -23.0))
-	promo := peaky(level(music(48000, 2, 9), -23.0), 48000)
+	promo := peaky(level(music(48000, 2, 9), -24.0), 48000)
 	writeWAV(filepath.Join(radio, "harbour-lights-promo.wav"), 48000, 24, promo, nil)
 	ep09 := level(music(44100, 2, 10), -23.0)
 	writeWAV(filepath.Join(radio, "tidewater-evenings-ep09.wav"), 44100, 24, ep09, nil)

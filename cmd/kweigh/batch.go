@@ -1,7 +1,6 @@
 package main
 
 import (
-	"context"
 	"fmt"
 	"io"
 	"os"
@@ -157,7 +156,7 @@ func fileExists(path string) bool {
 	return err == nil && !st.IsDir()
 }
 
-// writePlotsAndReport writes the optional HTML page and SVG plots.
+// ensureDir makes the --plots folder.
 func ensureDir(dir string) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("--plots: %w", err)
@@ -173,5 +172,3 @@ func plotName(path string) string {
 	clean = strings.TrimLeft(strings.ReplaceAll(clean, "../", ""), "/")
 	return strings.NewReplacer("/", "__", ":", "_").Replace(clean) + ".svg"
 }
-
-var _ = context.Background

@@ -1,0 +1,269 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"path/filepath"
+	"strings"
+	"sync"
+	"time"
+
+	"github.com/urfave/cli/v3"
+
+	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/reports"
+	"github.com/kweigh/kweigh/rules"
+)
+
+func checkCommand() *cli.Command {
+	flags := append(batchFlags(reports.CheckFormats()),
+		&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec: a built-in id (see 'kweigh specs') or a TOML `FILE`; a kweigh.toml in a file's folder (or a folder above it, up to the path named) takes precedence"},
+		&cli.BoolFlag{Name: "strict", Usage: "treat warnings as failures (exit 1)"},
+		&cli.BoolFlag{Name: "ignore-folder-specs", Usage: "use --spec for every file, even where a folder has a kweigh.toml"},
+	)
+	return &cli.Command{
+		Name:      "check",
+		Usage:     "judge files against a delivery spec: verdict, reasons and the gain that fixes them",
+		ArgsUsage: "FILE|DIR|GLOB...",
+		Description: "Measures every audio file named (folders recursively) and judges it against its spec: the\n" +
+			"spec given by --spec, or the kweigh.toml of the file's folder, so one run can check deliveries\n" +
+			"for several outlets. Every check is pass, warn or fail, with the measured value, the limit and\n" +
+			"a reason; loudness failures come with the gain that reaches the target and whether a limiter\n" +
+			"is needed.\n\n" +
+			"Raising gain raises level: audition corrected files at a safe monitoring level. A pass is not\n" +
+			"a broadcaster's or regulator's acceptance; local regulation and the receiving party's own QC\n" +
+			"decide.\n\n" +
+			fmt.Sprintf(exitsHelpFmt, "every file passed (warnings allowed unless --strict)", "at least one file failed its spec (or warned, with --strict)"),
+		Flags: append(flags, flacFlags()...),
+		Action: func(ctx context.Context, cmd *cli.Command) error {
+			o, err := readBatchOptions(cmd, reports.CheckFormats())
+			if err != nil {
+				return err
+			}
+			applyFlacFlags(cmd)
+			co := checkOptions{batchOptions: o, strict: cmd.Bool("strict"), folderSpecs: !cmd.Bool("ignore-folder-specs")}
+			if name := cmd.String("spec"); name != "" {
+				if co.spec, err = loadSpec(name); err != nil {
+					return err
+				}
+			}
+			return runCheck(ctx, co, cmd.Args().Slice(), cmd.Root().Writer, cmd.Root().ErrWriter)
+		},
+	}
+}
+
+// checkOptions are check's options beyond the batch ones.
+type checkOptions struct {
+	batchOptions
+	spec        *rules.Spec // from --spec; nil when not given
+	strict      bool
+	folderSpecs bool
+}
+
+// specFinder resolves each file's spec: the nearest kweigh.toml between the
+// file and the path it was found under, else --spec. Parsed folder specs
+// are cached; a broken one is reported for each file it governs.
+type specFinder struct {
+	fallback *rules.Spec
+	enabled  bool
+	mu       sync.Mutex
+	cache    map[string]specOrError
+}
+
+// noSpecError is a file with neither a folder spec nor --spec.
+type noSpecError struct{ path string }
+
+func (e noSpecError) Error() string {
+	return fmt.Sprintf("%s: no spec: give --spec NAME, or put a %s in its folder", e.path, folderSpecName)
+}
+
+type specOrError struct {
+	spec *rules.Spec
+	err  error
+}
+
+func (f *specFinder) find(t target) (*rules.Spec, error) {
+	if f.enabled {
+		dir := filepath.Dir(t.path)
+		root := filepath.Clean(t.root)
+		for {
+			if s, ok := f.load(filepath.Join(dir, folderSpecName)); ok {
+				return s.spec, s.err
+			}
+			if dir == root || !strings.HasPrefix(dir, root) {
+				break
+			}
+			parent := filepath.Dir(dir)
+			if parent == dir {
+				break
+			}
+			dir = parent
+		}
+	}
+	if f.fallback == nil {
+		return nil, noSpecError{t.path}
+	}
+	return f.fallback, nil
+}
+
+func (f *specFinder) load(path string) (specOrError, bool) {
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	if s, ok := f.cache[path]; ok {
+		return s, s.spec != nil || s.err != nil
+	}
+	var s specOrError
+	if fileExists(path) {
+		s.spec, s.err = rules.LoadFile(path)
+	}
+	f.cache[path] = s
+	return s, s.spec != nil || s.err != nil
+}
+
+// runCheck measures and judges the files under args.
+func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr io.Writer) error {
+	targets, err := collect(args)
+	if err != nil {
+		return usageError{err}
+	}
+	finder := &specFinder{fallback: o.spec, enabled: o.folderSpecs, cache: map[string]specOrError{}}
+	if o.spec == nil {
+		// When no file has a spec the command line is wrong: say so once
+		// instead of failing every file. Files without one among others
+		// that have one are reported one by one.
+		orphans := 0
+		for _, t := range targets {
+			var none noSpecError
+			if _, err := finder.find(t); errors.As(err, &none) {
+				orphans++
+			}
+		}
+		if orphans == len(targets) {
+			return usagef("no spec: give --spec NAME (see 'kweigh specs') or put a %s in the delivery folder", folderSpecName)
+		}
+	}
+
+	out, err := openOutputs(o.batchOptions, stdout)
+	if err != nil {
+		return err
+	}
+	defer out.close()
+	specName := ""
+	if o.spec != nil {
+		specName = o.spec.ID
+	}
+	opts := reports.Options{Colour: o.colour && out.console == nil, Spec: specName, Strict: o.strict, Version: version}
+	primary, err := reports.NewCheckWriter(out.primary, o.format, opts)
+	if err != nil {
+		return usageError{err}
+	}
+	writers := []reports.CheckWriter{primary}
+	if out.console != nil {
+		opts.Colour = o.colour
+		console, _ := reports.NewCheckWriter(out.console, reports.Text, opts)
+		writers = append(writers, console)
+	}
+
+	start := time.Now()
+	var summary reports.Summary
+	var skippedPaths []string
+	var kept []*rules.Result
+	var keptSpecs []*rules.Spec
+	var writeErr error
+	specs := make([]*rules.Spec, len(targets))
+	write := func(i int, r *rules.Result) {
+		summary.Add(r)
+		for _, w := range writers {
+			if err := w.Write(r); err != nil && writeErr == nil {
+				writeErr = err
+			}
+		}
+		if o.report != "" || o.plots != "" {
+			kept = append(kept, r)
+			keptSpecs = append(keptSpecs, specs[i])
+		}
+	}
+	type indexed struct {
+		i int
+		r *rules.Result
+	}
+	inOrder := newOrderedEmitter(func(x indexed) {
+		if x.r != nil {
+			write(x.i, x.r)
+		}
+	})
+	bar := newProgress(stderr, len(targets))
+	mopt := o.measureOptions()
+	runParallel(ctx, len(targets), o.jobs,
+		func(i int) *rules.Result {
+			t := targets[i]
+			spec, specErr := finder.find(t)
+			specs[i] = spec
+			var none noSpecError
+			if specErr != nil && !errors.As(specErr, &none) {
+				// A broken folder spec: no point measuring.
+				return specFailure(t, spec, specErr)
+			}
+			m := measureTarget(t, mopt)
+			if skipped(t, m) {
+				return nil
+			}
+			if specErr != nil {
+				return specFailure(t, spec, specErr)
+			}
+			r := rules.Evaluate(spec, m)
+			return &r
+		},
+		func(i int, r *rules.Result) {
+			bar.step()
+			if r == nil {
+				skippedPaths = append(skippedPaths, targets[i].path)
+			}
+			if o.format.Streaming() {
+				if r != nil {
+					write(i, r)
+				}
+				return
+			}
+			inOrder.add(i, indexed{i, r})
+		})
+	bar.done()
+	summary.Elapsed = time.Since(start)
+	for _, w := range writers {
+		if err := w.Close(summary); err != nil && writeErr == nil {
+			writeErr = err
+		}
+	}
+	noteSkipped(stderr, skippedPaths)
+	if writeErr != nil {
+		return writeErr
+	}
+	if err := writeVisuals(o.batchOptions, nil, kept, keptSpecs); err != nil {
+		return err
+	}
+	if err := ctx.Err(); err != nil {
+		return fmt.Errorf("interrupted: %w", err)
+	}
+	switch {
+	case summary.Errors > 0:
+		return troubleError{summary.Errors}
+	case summary.Failed > 0:
+		return failedError{summary.Failed}
+	case o.strict && summary.Warned > 0:
+		return failedError{summary.Warned}
+	}
+	return nil
+}
+
+// specFailure is the result for a file whose spec could not be resolved;
+// the error names the missing or broken spec.
+func specFailure(t target, spec *rules.Spec, err error) *rules.Result {
+	if spec == nil {
+		spec = &rules.Spec{ID: "none"}
+	}
+	m := &measure.Measurement{Path: t.path, Error: err.Error(), Err: err, Notes: []string{}}
+	r := rules.Evaluate(spec, m)
+	return &r
+}

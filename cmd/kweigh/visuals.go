@@ -1,0 +1,124 @@
+package main
+
+import (
+	"bufio"
+	"fmt"
+	"os"
+	"path/filepath"
+	"time"
+
+	"github.com/urfave/cli/v3"
+
+	"github.com/kweigh/kweigh/decode/flac"
+	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/reports/htmlpage"
+	"github.com/kweigh/kweigh/rules"
+)
+
+// cautionText heads every HTML report.
+const cautionText = "Full-scale test signals and gain increases can damage hearing and loudspeakers: keep monitoring " +
+	"levels down when auditioning. A pass is not a broadcaster's or regulator's acceptance; local regulation " +
+	"and the receiving party's own QC decide."
+
+func flacFlags() []cli.Flag {
+	return []cli.Flag{
+		&cli.BoolFlag{Name: "skip-flac-md5", Usage: "do not verify FLAC audio against its MD5 signature (faster; frame CRCs are still checked)"},
+	}
+}
+
+func applyFlacFlags(cmd *cli.Command) {
+	o := flac.DefaultOptions()
+	o.VerifyMD5 = !cmd.Bool("skip-flac-md5")
+	flac.SetDefaultOptions(o)
+}
+
+// targetOf maps a spec to what the plots draw: its integrated target (for
+// the file's channel count) with tolerance, and its true-peak ceiling.
+func targetOf(spec *rules.Spec, channels int) htmlpage.Target {
+	var t htmlpage.Target
+	if spec == nil {
+		return t
+	}
+	l := spec.Loudness
+	switch {
+	case channels == 1 && l.MonoTargetLUFS != nil:
+		v, tol := *l.MonoTargetLUFS, l.ToleranceLU
+		t.IntegratedLUFS, t.ToleranceLU = &v, &tol
+	case l.TargetLUFS != nil:
+		v, tol := *l.TargetLUFS, l.ToleranceLU
+		t.IntegratedLUFS, t.ToleranceLU = &v, &tol
+	case l.MinIntegratedLUFS != nil && l.MaxIntegratedLUFS != nil:
+		mid := (*l.MinIntegratedLUFS + *l.MaxIntegratedLUFS) / 2
+		half := (*l.MaxIntegratedLUFS - *l.MinIntegratedLUFS) / 2
+		t.IntegratedLUFS, t.ToleranceLU = &mid, &half
+	}
+	if l.MaxTruePeakDBTP != nil {
+		v := *l.MaxTruePeakDBTP
+		t.TruePeakCeilingDBTP = &v
+	}
+	return t
+}
+
+// writeVisuals writes the --report page and the --plots SVGs. A measure run
+// passes measurements; a check run passes results with their specs.
+func writeVisuals(o batchOptions, ms []*measure.Measurement, rs []*rules.Result, specs []*rules.Spec) error {
+	if o.report == "" && o.plots == "" {
+		return nil
+	}
+	var entries []htmlpage.Entry
+	specNames := []string{}
+	seenSpec := map[string]bool{}
+	for _, m := range ms {
+		entries = append(entries, htmlpage.Entry{Result: &rules.Result{Measurement: m}})
+	}
+	for i, r := range rs {
+		entries = append(entries, htmlpage.Entry{Result: r, Target: targetOf(specs[i], r.Channels)})
+		if r.Spec != "" && !seenSpec[r.Spec] {
+			seenSpec[r.Spec] = true
+			specNames = append(specNames, r.Spec)
+		}
+	}
+	if o.report != "" {
+		title := "kweigh loudness measurement"
+		if rs != nil {
+			title = "kweigh delivery check"
+		}
+		page := htmlpage.Page{Title: title, Generated: time.Now(), Specs: specNames, Entries: entries, Caution: cautionText}
+		if err := writeFile(o.report, func(w *bufio.Writer) error { return htmlpage.Write(w, page) }); err != nil {
+			return fmt.Errorf("--report: %w", err)
+		}
+	}
+	if o.plots != "" {
+		if err := ensureDir(o.plots); err != nil {
+			return err
+		}
+		for _, e := range entries {
+			if e.Result.Error != "" || e.Result.Series == nil {
+				continue
+			}
+			path := filepath.Join(o.plots, plotName(e.Result.Path))
+			if err := writeFile(path, func(w *bufio.Writer) error { return htmlpage.WritePlotSVG(w, e) }); err != nil {
+				return fmt.Errorf("--plots: %w", err)
+			}
+		}
+	}
+	return nil
+}
+
+// writeFile writes a file through a buffer and reports the first error of
+// writing, flushing or closing.
+func writeFile(path string, write func(*bufio.Writer) error) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	w := bufio.NewWriter(f)
+	err = write(w)
+	if ferr := w.Flush(); err == nil {
+		err = ferr
+	}
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	return err
+}
