@@ -149,7 +149,7 @@ func Stream(path string, d decode.Decoder, opt Options) *Measurement {
 		m.Notes = append(m.Notes, fmt.Sprintf("header declares %d frames but %d were decoded", info.Frames, frames))
 	}
 	fillLoudness(m, r)
-	m.Signal = hyg.finish(info.SampleRate, layout, silence)
+	m.Signal = hyg.finish(info.SampleRate, layout, r.SamplePeak, silence)
 	if opt.KeepSeries {
 		s := r.Series
 		m.Series = &s
@@ -191,6 +191,14 @@ func fillLoudness(m *Measurement, r loudness.Result) {
 	m.LoudnessRangeLU = reading(m, "loudness range", r.LoudnessRange)
 	m.MaxMomentaryLUFS = reading(m, "maximum momentary loudness", r.MaxMomentary)
 	m.MaxShortTermLUFS = reading(m, "maximum short-term loudness", r.MaxShortTerm)
+	// The BS.1770 Annex 2 interpolator is not a Nyquist filter: its output at
+	// the sample instants differs from the samples by up to a few tenths of
+	// a dB, so on material without inter-sample overs it can read a little
+	// below the sample peak. A signal's true peak cannot be below its sample
+	// peak, so each channel reports the larger of the two.
+	for i := range r.TruePeak {
+		r.TruePeak[i] = math.Max(r.TruePeak[i], r.SamplePeak[i])
+	}
 	m.TruePeakDBTP = peak(r.MaxTruePeak())
 	m.SamplePeakDBFS = peak(r.MaxSamplePeak())
 	if m.TruePeakDBTP == nil {

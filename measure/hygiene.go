@@ -33,7 +33,6 @@ type hygiene struct {
 	firstLoud    int64 // first frame with any channel ≥ silenceLevel, -1 if none
 	lastLoud     int64 // last such frame
 	sum          []float64
-	peak         []float64
 	run          []int64
 	clipped      int64
 	clipRuns     int64
@@ -76,7 +75,6 @@ func newHygiene(channels, sampleRate, bits int, float bool, layout []string, sil
 		firstLoud:    -1,
 		lastLoud:     -1,
 		sum:          make([]float64, channels),
-		peak:         make([]float64, channels),
 		run:          make([]int64, channels),
 		left:         -1,
 		right:        -1,
@@ -109,16 +107,13 @@ func newHygiene(channels, sampleRate, bits int, float bool, layout []string, sil
 func (h *hygiene) write(buf []float64) {
 	nc := h.channels
 	frames := len(buf) / nc
+	lvl := h.clipLevel
 	for c := 0; c < nc; c++ {
-		sum, peak, run := h.sum[c], h.peak[c], h.run[c]
+		sum, run := h.sum[c], h.run[c]
 		for i := c; i < len(buf); i += nc {
 			x := buf[i]
 			sum += x
-			a := math.Abs(x)
-			if a > peak {
-				peak = a
-			}
-			if a >= h.clipLevel {
+			if x >= lvl || x <= -lvl {
 				h.clipped++
 				run++
 			} else if run > 0 {
@@ -126,7 +121,7 @@ func (h *hygiene) write(buf []float64) {
 				run = 0
 			}
 		}
-		h.sum[c], h.peak[c], h.run[c] = sum, peak, run
+		h.sum[c], h.run[c] = sum, run
 	}
 	h.trackLoudness(buf, frames)
 	if h.left >= 0 {
@@ -180,25 +175,35 @@ func anyAbove(frame []float64, thr float64) bool {
 }
 
 // trackPair accumulates the L/R correlation over the file and over 3 s
-// windows, and the largest L−R difference for the dual-mono test.
+// windows, and the largest L−R difference for the dual-mono test. It works
+// window segment by window segment so the inner loop keeps its sums in
+// registers.
 func (h *hygiene) trackPair(buf []float64, frames int) {
 	nc, li, ri := h.channels, h.left, h.right
-	for f := 0; f < frames; f++ {
-		l, r := buf[f*nc+li], buf[f*nc+ri]
-		if d := math.Abs(l - r); d > h.maxDiff {
-			h.maxDiff = d
-		}
+	maxDiff := h.maxDiff
+	for f := 0; f < frames; {
 		w := &h.window
-		w.n++
-		w.sl += l
-		w.sr += r
-		w.sll += l * l
-		w.srr += r * r
-		w.slr += l * r
+		k := min(frames-f, int(h.windowFrames-int64(w.n)))
+		sl, sr, sll, srr, slr := w.sl, w.sr, w.sll, w.srr, w.slr
+		for end := f + k; f < end; f++ {
+			l, r := buf[f*nc+li], buf[f*nc+ri]
+			d := l - r
+			if d > maxDiff || -d > maxDiff {
+				maxDiff = math.Abs(d)
+			}
+			sl += l
+			sr += r
+			sll += l * l
+			srr += r * r
+			slr += l * r
+		}
+		w.sl, w.sr, w.sll, w.srr, w.slr = sl, sr, sll, srr, slr
+		w.n += float64(k)
 		if int64(w.n) == h.windowFrames {
 			h.closeWindow()
 		}
 	}
+	h.maxDiff = maxDiff
 }
 
 // closeWindow folds the current window into the whole-file sums and, when
@@ -226,8 +231,10 @@ func (h *hygiene) closeWindow() {
 	*w = pairStats{}
 }
 
-// finish returns the findings. layout labels the silent channels.
-func (h *hygiene) finish(sampleRate int, layout []string, silenceDBFS float64) Signal {
+// finish returns the findings. layout labels the silent channels;
+// samplePeak is the engine's per-channel sample peak (linear), which the
+// probes need and need not compute twice.
+func (h *hygiene) finish(sampleRate int, layout []string, samplePeak []float64, silenceDBFS float64) Signal {
 	for c := range h.run {
 		if h.run[c] > 0 {
 			h.endRun(h.run[c])
@@ -258,7 +265,7 @@ func (h *hygiene) finish(sampleRate int, layout []string, silenceDBFS float64) S
 		if h.frames > 0 {
 			s.DCOffset[c] = h.sum[c] / float64(h.frames)
 		}
-		if h.peak[c] < h.silenceLevel {
+		if samplePeak[c] < h.silenceLevel {
 			s.SilentChannels = append(s.SilentChannels, layout[c])
 		}
 	}
@@ -271,7 +278,7 @@ func (h *hygiene) finish(sampleRate int, layout []string, silenceDBFS float64) S
 			s.MinWindowCorrelation = &m
 		}
 		s.DualMono = h.channels == 2 && h.frames > 0 && h.maxDiff <= h.lsb &&
-			h.peak[h.left] >= h.silenceLevel
+			samplePeak[h.left] >= h.silenceLevel
 	}
 	return s
 }

@@ -19,7 +19,7 @@ import (
 
 func checkCommand() *cli.Command {
 	flags := append(batchFlags(reports.CheckFormats()),
-		&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec: a built-in id (see 'kweigh specs') or a TOML `FILE`; a kweigh.toml in a file's folder (or a folder above it, up to the path named) takes precedence"},
+		&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME`: a built-in id (see 'kweigh specs') or a TOML file; a kweigh.toml in a file's folder (or a folder above it, up to the path named) takes precedence"},
 		&cli.BoolFlag{Name: "strict", Usage: "treat warnings as failures (exit 1)"},
 		&cli.BoolFlag{Name: "ignore-folder-specs", Usage: "use --spec for every file, even where a folder has a kweigh.toml"},
 	)

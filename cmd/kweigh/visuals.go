@@ -32,33 +32,6 @@ func applyFlacFlags(cmd *cli.Command) {
 	flac.SetDefaultOptions(o)
 }
 
-// targetOf maps a spec to what the plots draw: its integrated target (for
-// the file's channel count) with tolerance, and its true-peak ceiling.
-func targetOf(spec *rules.Spec, channels int) htmlpage.Target {
-	var t htmlpage.Target
-	if spec == nil {
-		return t
-	}
-	l := spec.Loudness
-	switch {
-	case channels == 1 && l.MonoTargetLUFS != nil:
-		v, tol := *l.MonoTargetLUFS, l.ToleranceLU
-		t.IntegratedLUFS, t.ToleranceLU = &v, &tol
-	case l.TargetLUFS != nil:
-		v, tol := *l.TargetLUFS, l.ToleranceLU
-		t.IntegratedLUFS, t.ToleranceLU = &v, &tol
-	case l.MinIntegratedLUFS != nil && l.MaxIntegratedLUFS != nil:
-		mid := (*l.MinIntegratedLUFS + *l.MaxIntegratedLUFS) / 2
-		half := (*l.MaxIntegratedLUFS - *l.MinIntegratedLUFS) / 2
-		t.IntegratedLUFS, t.ToleranceLU = &mid, &half
-	}
-	if l.MaxTruePeakDBTP != nil {
-		v := *l.MaxTruePeakDBTP
-		t.TruePeakCeilingDBTP = &v
-	}
-	return t
-}
-
 // writeVisuals writes the --report page and the --plots SVGs. A measure run
 // passes measurements; a check run passes results with their specs.
 func writeVisuals(o batchOptions, ms []*measure.Measurement, rs []*rules.Result, specs []*rules.Spec) error {
@@ -72,7 +45,7 @@ func writeVisuals(o batchOptions, ms []*measure.Measurement, rs []*rules.Result,
 		entries = append(entries, htmlpage.Entry{Result: &rules.Result{Measurement: m}})
 	}
 	for i, r := range rs {
-		entries = append(entries, htmlpage.Entry{Result: r, Target: targetOf(specs[i], r.Channels)})
+		entries = append(entries, htmlpage.Entry{Result: r, Target: htmlpage.TargetFor(specs[i], r.Channels)})
 		if r.Spec != "" && !seenSpec[r.Spec] {
 			seenSpec[r.Spec] = true
 			specNames = append(specNames, r.Spec)
