@@ -1,0 +1,56 @@
+package flac_test
+
+import (
+	"fmt"
+	"io"
+	"log"
+
+	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/decode/flac"
+)
+
+// Decode a 5.1 FLAC file through the decode registry (importing package
+// flac registers it) and read its samples block by block. The fixture is a
+// synthetic tone per channel made by testdata/make-fixtures.sh.
+func Example() {
+	f, err := decode.Open("testdata/surround51-16-44k.flac")
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer f.Close()
+	info := f.Info()
+	fmt.Println(info.Container, info.SampleRate, "Hz", info.BitsPerSample, "bit", info.Layout)
+
+	buf := make([]float64, 4096*info.Channels)
+	var frames int
+	for {
+		n, err := f.ReadFrames(buf)
+		frames += n
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			log.Fatal(err) // an *decode.IntegrityError names the damage
+		}
+	}
+	fmt.Println(frames, "frames, MD5 verified:", f.Decoder.(*flac.Decoder).MD5Verified())
+	// Output:
+	// flac 44100 Hz 16 bit [L R C LFE Ls Rs]
+	// 22050 frames, MD5 verified: true
+}
+
+// Turn MD5 verification off for every FLAC file opened through package
+// decode, e.g. from a command-line flag; frame CRCs are still checked.
+func ExampleSetDefaultOptions() {
+	flac.SetDefaultOptions(flac.Options{VerifyMD5: false})
+	defer flac.SetDefaultOptions(flac.DefaultOptions())
+
+	f, err := decode.Open("testdata/mono8-8k.flac")
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer f.Close()
+	fmt.Println(f.Notes())
+	// Output:
+	// [FLAC MD5 verification turned off: only the frame checksums were checked]
+}
