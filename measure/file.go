@@ -59,7 +59,21 @@ func errorText(path string, err error) string {
 
 // Stream measures an open decoder; path is used for the record and for
 // error messages only.
-func Stream(path string, d decode.Decoder, opt Options) *Measurement {
+//
+// A panic inside a decoder (the FLAC and MP3 decoders wrap third-party
+// libraries) is turned into the file's error: one bad file must never stop
+// a batch.
+func Stream(path string, d decode.Decoder, opt Options) (m *Measurement) {
+	defer func() {
+		if p := recover(); p != nil {
+			err := fmt.Errorf("decoder failed on this file: %v", p)
+			m = &Measurement{Path: path, Error: errorText(path, err), Err: err, Notes: []string{}}
+		}
+	}()
+	return stream(path, d, opt)
+}
+
+func stream(path string, d decode.Decoder, opt Options) *Measurement {
 	info := d.Info()
 	m := &Measurement{
 		Path:          path,

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/kweigh/kweigh/decode"
 	_ "github.com/kweigh/kweigh/decode/wav"
 	"github.com/kweigh/kweigh/measure"
 )
@@ -258,5 +259,20 @@ func TestTruePeakNeverBelowSamplePeak(t *testing.T) {
 		if tp < sp || tp-sp > 0.01 {
 			t.Errorf("channel %d: true peak %.3f, sample peak %.3f", c, tp, sp)
 		}
+	}
+}
+
+// panicky is a decoder that fails the way a third-party library can.
+type panicky struct{}
+
+func (panicky) Info() decode.Info {
+	return decode.Info{Container: "wav", SampleRate: rate, Channels: 1, BitsPerSample: 16, SampleFormat: decode.Int, Frames: -1}
+}
+func (panicky) ReadFrames([]float64) (int, error) { panic("index out of range [7] with length 3") }
+
+func TestDecoderPanicBecomesFileError(t *testing.T) {
+	m := measure.Stream("broken.flac", panicky{}, measure.Options{})
+	if !strings.Contains(m.Error, "broken.flac") || !strings.Contains(m.Error, "decoder failed") {
+		t.Errorf("error %q should name the file and the decoder failure", m.Error)
 	}
 }
