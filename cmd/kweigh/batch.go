@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"io"
 	"os"
@@ -171,4 +172,62 @@ func plotName(path string) string {
 	clean := filepath.ToSlash(filepath.Clean(path))
 	clean = strings.TrimLeft(strings.ReplaceAll(clean, "../", ""), "/")
 	return strings.NewReplacer("/", "__", ":", "_").Replace(clean) + ".svg"
+}
+
+// runBatch does the work for every target on o.jobs goroutines and hands
+// each record to write: in target order for document formats (as soon as
+// every earlier record is in, so text output is progressive but stable),
+// in completion order for streaming formats. work returns ok=false for a
+// file to leave out (not audio, found by walking a folder); their paths
+// are noted on stderr at the end. A progress bar runs on a terminal.
+func runBatch[T any](ctx context.Context, o batchOptions, targets []target, stderr io.Writer, work func(i int) (T, bool), write func(i int, r T)) {
+	type record struct {
+		r  T
+		ok bool
+	}
+	var skippedPaths []string
+	inOrder := newOrderedEmitter(func(x indexedRecord[record]) {
+		if x.r.ok {
+			write(x.i, x.r.r)
+		}
+	})
+	bar := newProgress(stderr, len(targets))
+	runParallel(ctx, len(targets), o.jobs,
+		func(i int) record {
+			r, ok := work(i)
+			return record{r, ok}
+		},
+		func(i int, r record) {
+			bar.step()
+			if !r.ok {
+				skippedPaths = append(skippedPaths, targets[i].path)
+			}
+			if o.format.Streaming() {
+				if r.ok {
+					write(i, r.r)
+				}
+				return
+			}
+			inOrder.add(i, indexedRecord[record]{i, r})
+		})
+	bar.done()
+	noteSkipped(stderr, skippedPaths)
+}
+
+// indexedRecord carries a record with its target index through the
+// ordered emitter.
+type indexedRecord[T any] struct {
+	i int
+	r T
+}
+
+// closeWriters closes every writer with the summary and returns the first
+// error of writing or closing.
+func closeWriters[W interface{ Close(reports.Summary) error }](writers []W, summary reports.Summary, writeErr error) error {
+	for _, w := range writers {
+		if err := w.Close(summary); err != nil && writeErr == nil {
+			writeErr = err
+		}
+	}
+	return writeErr
 }

@@ -168,77 +168,46 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 
 	start := time.Now()
 	var summary reports.Summary
-	var skippedPaths []string
 	var kept []*rules.Result
 	var keptSpecs []*rules.Spec
 	var writeErr error
 	specs := make([]*rules.Spec, len(targets))
-	write := func(i int, r *rules.Result) {
-		summary.Add(r)
-		for _, w := range writers {
-			if err := w.Write(r); err != nil && writeErr == nil {
-				writeErr = err
-			}
-		}
-		if o.report != "" || o.plots != "" {
-			kept = append(kept, r)
-			keptSpecs = append(keptSpecs, specs[i])
-		}
-	}
-	type indexed struct {
-		i int
-		r *rules.Result
-	}
-	inOrder := newOrderedEmitter(func(x indexed) {
-		if x.r != nil {
-			write(x.i, x.r)
-		}
-	})
-	bar := newProgress(stderr, len(targets))
 	mopt := o.measureOptions()
-	runParallel(ctx, len(targets), o.jobs,
-		func(i int) *rules.Result {
+	runBatch(ctx, o.batchOptions, targets, stderr,
+		func(i int) (*rules.Result, bool) {
 			t := targets[i]
 			spec, specErr := finder.find(t)
 			specs[i] = spec
 			var none noSpecError
 			if specErr != nil && !errors.As(specErr, &none) {
 				// A broken folder spec: no point measuring.
-				return specFailure(t, spec, specErr)
+				return specFailure(t, spec, specErr), true
 			}
 			m := measureTarget(t, mopt)
 			if skipped(t, m) {
-				return nil
+				return nil, false
 			}
 			if specErr != nil {
-				return specFailure(t, spec, specErr)
+				return specFailure(t, spec, specErr), true
 			}
 			r := rules.Evaluate(spec, m)
-			return &r
+			return &r, true
 		},
 		func(i int, r *rules.Result) {
-			bar.step()
-			if r == nil {
-				skippedPaths = append(skippedPaths, targets[i].path)
-			}
-			if o.format.Streaming() {
-				if r != nil {
-					write(i, r)
+			summary.Add(r)
+			for _, w := range writers {
+				if err := w.Write(r); err != nil && writeErr == nil {
+					writeErr = err
 				}
-				return
 			}
-			inOrder.add(i, indexed{i, r})
+			if o.report != "" || o.plots != "" {
+				kept = append(kept, r)
+				keptSpecs = append(keptSpecs, specs[i])
+			}
 		})
-	bar.done()
 	summary.Elapsed = time.Since(start)
-	for _, w := range writers {
-		if err := w.Close(summary); err != nil && writeErr == nil {
-			writeErr = err
-		}
-	}
-	noteSkipped(stderr, skippedPaths)
-	if writeErr != nil {
-		return writeErr
+	if err := closeWriters(writers, summary, writeErr); err != nil {
+		return err
 	}
 	if err := writeVisuals(o.batchOptions, nil, kept, keptSpecs); err != nil {
 		return err

@@ -57,61 +57,31 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 
 	start := time.Now()
 	var summary reports.Summary
-	var skippedPaths []string
 	var kept []*measure.Measurement
 	var writeErr error
-	write := func(m *measure.Measurement) {
-		summary.AddMeasurement(m)
-		if m.Damaged != "" {
-			summary.Errors++ // measured only in part: not a complete measurement
-		}
-		for _, w := range writers {
-			if err := w.Write(m); err != nil && writeErr == nil {
-				writeErr = err
-			}
-		}
-		if o.report != "" || o.plots != "" {
-			kept = append(kept, m)
-		}
-	}
-	inOrder := newOrderedEmitter(func(m *measure.Measurement) {
-		if m != nil {
-			write(m)
-		}
-	})
-	bar := newProgress(stderr, len(targets))
 	mopt := o.measureOptions()
-	runParallel(ctx, len(targets), o.jobs,
-		func(i int) *measure.Measurement {
+	runBatch(ctx, o, targets, stderr,
+		func(i int) (*measure.Measurement, bool) {
 			m := measureTarget(targets[i], mopt)
-			if skipped(targets[i], m) {
-				return nil
-			}
-			return m
+			return m, !skipped(targets[i], m)
 		},
-		func(i int, m *measure.Measurement) {
-			bar.step()
-			if m == nil {
-				skippedPaths = append(skippedPaths, targets[i].path)
+		func(_ int, m *measure.Measurement) {
+			summary.AddMeasurement(m)
+			if m.Damaged != "" {
+				summary.Errors++ // measured only in part: not a complete measurement
 			}
-			if o.format.Streaming() {
-				if m != nil {
-					write(m)
+			for _, w := range writers {
+				if err := w.Write(m); err != nil && writeErr == nil {
+					writeErr = err
 				}
-				return
 			}
-			inOrder.add(i, m)
+			if o.report != "" || o.plots != "" {
+				kept = append(kept, m)
+			}
 		})
-	bar.done()
 	summary.Elapsed = time.Since(start)
-	for _, w := range writers {
-		if err := w.Close(summary); err != nil && writeErr == nil {
-			writeErr = err
-		}
-	}
-	noteSkipped(stderr, skippedPaths)
-	if writeErr != nil {
-		return writeErr
+	if err := closeWriters(writers, summary, writeErr); err != nil {
+		return err
 	}
 	if err := writeVisuals(o, kept, nil, nil); err != nil {
 		return err
