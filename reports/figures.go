@@ -8,12 +8,23 @@ import (
 	"time"
 )
 
-// notAvailable is what the text formats print for a figure the standard
-// leaves undefined; a note in the record says why.
-const notAvailable = "n/a"
+// The figure formatting below is shared by every human-readable report: the
+// text writers here and the HTML page (package reports/htmlpage) call these
+// functions, so the two can never print the same figure differently. The
+// decimals follow issue 2: one for loudness, gains and durations, two for
+// peaks.
 
-// fixed formats x with the given number of decimals, never as "-0.0".
-func fixed(x float64, decimals int) string {
+// NotAvailable is what every human-readable report prints for a figure the
+// standard leaves undefined (a file shorter than one gating block, audio
+// below the absolute gate, a silent channel); a note in the record says why.
+const NotAvailable = "n/a"
+
+// Fixed formats x with the given number of decimals, never as "-0.0";
+// NaN and infinities print NotAvailable.
+func Fixed(x float64, decimals int) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return NotAvailable
+	}
 	s := strconv.FormatFloat(x, 'f', decimals, 64)
 	if strings.HasPrefix(s, "-") && strings.Trim(s, "-0.") == "" {
 		return s[1:]
@@ -21,40 +32,45 @@ func fixed(x float64, decimals int) string {
 	return s
 }
 
-// defined reports whether p holds a finite number.
-func defined(p *float64) bool {
+// Defined reports whether p holds a finite number.
+func Defined(p *float64) bool {
 	return p != nil && !math.IsNaN(*p) && !math.IsInf(*p, 0)
 }
 
-// loudness formats a loudness figure (LUFS, LU): one decimal.
-func loudness(p *float64) string {
-	if !defined(p) {
-		return notAvailable
+// Loudness formats a loudness figure (LUFS, LU) with one decimal; nil or a
+// non-finite value prints NotAvailable.
+func Loudness(p *float64) string {
+	if !Defined(p) {
+		return NotAvailable
 	}
-	return fixed(*p, 1)
+	return Fixed(*p, 1)
 }
 
-// peak formats a peak figure (dBTP, dBFS): two decimals.
-func peak(p *float64) string {
-	if !defined(p) {
-		return notAvailable
+// Peak formats a peak figure (dBTP, dBFS) with two decimals; nil or a
+// non-finite value prints NotAvailable.
+func Peak(p *float64) string {
+	if !Defined(p) {
+		return NotAvailable
 	}
-	return fixed(*p, 2)
+	return Fixed(*p, 2)
 }
 
-// gain formats a gain in dB with its sign: one decimal, like loudness.
-func gain(db float64) string {
-	s := fixed(db, 1)
-	if !strings.HasPrefix(s, "-") && s != "0.0" {
+// Gain formats a gain in dB with one decimal, like loudness, and an
+// explicit sign ("+3.4", "-2.0"; zero as "0.0"), so a boost cannot be read
+// as a cut.
+func Gain(db float64) string {
+	s := Fixed(db, 1)
+	if s != NotAvailable && !strings.HasPrefix(s, "-") && s != "0.0" {
 		s = "+" + s
 	}
 	return s
 }
 
-// decimalsForUnit returns how many decimals a figure in unit gets in text:
-// one for loudness and durations, two for peaks and unitless ratios, none
-// for counts.
-func decimalsForUnit(unit string) int {
+// UnitDecimals returns how many decimals a figure in unit is printed with:
+// one for loudness, gains and durations (LUFS, LKFS, LU, dB, s, %), two for
+// peaks (dBTP, dBFS) and unitless ratios, none for counts (Hz, bits,
+// channels, samples, runs, kbps).
+func UnitDecimals(unit string) int {
 	switch unit {
 	case "LUFS", "LKFS", "LU", "dB", "s", "%":
 		return 1
@@ -66,20 +82,21 @@ func decimalsForUnit(unit string) int {
 	return 2
 }
 
-// measuredText formats a check's measured value (number, string or nil)
-// with its unit.
-func measuredText(v any, unit string) string {
+// Measured formats a check's measured value (number, string or nil) with
+// its unit, numbers rounded to UnitDecimals(unit). nil and non-finite
+// numbers print NotAvailable without a unit.
+func Measured(v any, unit string) string {
 	var s string
 	switch x := v.(type) {
 	case nil:
-		return notAvailable
+		return NotAvailable
 	case float64:
 		if math.IsNaN(x) || math.IsInf(x, 0) {
-			return notAvailable
+			return NotAvailable
 		}
-		s = fixed(x, decimalsForUnit(unit))
+		s = Fixed(x, UnitDecimals(unit))
 	case float32:
-		return measuredText(float64(x), unit)
+		return Measured(float64(x), unit)
 	case string:
 		s = x
 	default:
@@ -91,10 +108,11 @@ func measuredText(v any, unit string) string {
 	return s
 }
 
-// clockDuration formats seconds as h:mm:ss.s, or m:ss.s under an hour.
-func clockDuration(seconds float64) string {
+// Duration formats a length in seconds as h:mm:ss.s, or m:ss.s under an
+// hour; a negative or non-finite length prints NotAvailable.
+func Duration(seconds float64) string {
 	if math.IsNaN(seconds) || math.IsInf(seconds, 0) || seconds < 0 {
-		return notAvailable
+		return NotAvailable
 	}
 	tenths := int64(math.Round(seconds * 10))
 	h := tenths / 36000
@@ -106,11 +124,36 @@ func clockDuration(seconds float64) string {
 	return fmt.Sprintf("%d:%04.1f", m, s)
 }
 
-// wallTime prints a run's wall time: seconds to a tenth under a minute,
-// clock form above.
-func wallTime(d time.Duration) string {
+// Clock formats a time offset in seconds as h:mm:ss, whole seconds rounded
+// down: the form of time-axis labels and of the moments a report points
+// to. Negative and non-finite offsets print as 0:00:00.
+func Clock(seconds float64) string {
+	if !(seconds > 0) || math.IsInf(seconds, 0) {
+		seconds = 0
+	}
+	t := int64(seconds + 1e-9)
+	return fmt.Sprintf("%d:%02d:%02d", t/3600, t/60%60, t%60)
+}
+
+// WallTime prints a run's wall time: seconds to a tenth under a minute,
+// Duration's clock form above.
+func WallTime(d time.Duration) string {
 	if d < time.Minute {
 		return fmt.Sprintf("%.1f s", d.Seconds())
 	}
-	return clockDuration(d.Seconds())
+	return Duration(d.Seconds())
 }
+
+// The package's writers use the short names.
+const notAvailable = NotAvailable
+
+var (
+	fixed         = Fixed
+	defined       = Defined
+	loudness      = Loudness
+	peak          = Peak
+	gain          = Gain
+	measuredText  = Measured
+	clockDuration = Duration
+	wallTime      = WallTime
+)

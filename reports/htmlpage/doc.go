@@ -12,7 +12,9 @@
 // column (see Decimate), so a single over is never hidden and a three-hour
 // programme still makes a report of a few hundred kilobytes.
 //
-// Numbers are printed with the same rounding as kweigh's JSON output: one
-// decimal for loudness (LUFS, LU, gain) and two for peaks (dBTP, dBFS);
-// FormatLoudness and FormatPeak are the functions that do it.
+// Numbers are printed by the same functions as kweigh's text report
+// (reports.Loudness, reports.Peak, reports.Gain, reports.Measured,
+// reports.Duration, reports.Clock), so the two cannot drift: one decimal for
+// loudness (LUFS, LU, gain) and two for peaks (dBTP, dBFS), the JSON value
+// rounded; an undefined figure reads reports.NotAvailable ("n/a").
 package htmlpage

@@ -5,6 +5,7 @@ import (
 	"math"
 	"strings"
 
+	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/reports/htmlpage"
 )
 
@@ -14,7 +15,7 @@ func ExampleTimeTicks() {
 	for _, duration := range []float64{3 * 3600, 95} {
 		var labels []string
 		for _, t := range htmlpage.TimeTicks(duration, 8) {
-			labels = append(labels, htmlpage.FormatClock(t))
+			labels = append(labels, reports.Clock(t))
 		}
 		fmt.Println(strings.Join(labels, " "))
 	}
@@ -41,11 +42,4 @@ func ExampleDecimate() {
 	// [2,4) -23..-22
 	// [4,6) -24..-3
 	// [6,8) gap
-}
-
-// Figures are printed with the rounding of kweigh's JSON output.
-func ExampleFormatLoudness() {
-	integrated, truePeak, gain := -23.04, -0.996, 2.35
-	fmt.Println(htmlpage.FormatLoudness(&integrated), htmlpage.FormatPeak(&truePeak), htmlpage.FormatGain(&gain), htmlpage.FormatLoudness(nil))
-	// Output: -23.0 -1.00 +2.4 —
 }

@@ -1,7 +1,6 @@
 package htmlpage
 
 import (
-	"fmt"
 	"io"
 	"math"
 	"sync"
@@ -15,18 +14,23 @@ import (
 
 // The demo run: an invented production house, Saltmarsh Sound, delivers
 // episodes of an invented radio series, "The Lighthouse Keeper's Almanac",
-// to an invented outlet, Northwind Radio, whose house spec uses the EBU R 128
-// v4.0 figures (STANDARDS.md §4: -23.0 LUFS ±1.0 LU, -1 dBTP) and allows at
-// most 3 s of trailing silence (invented house rule).
-const demoSpec = "northwind-house"
+// to an invented outlet, Northwind Radio. Its house spec,
+// testdata/northwind-house.toml, extends the built-in EBU R 128 spec
+// (STANDARDS.md §4: -23.0 LUFS ±1.0 LU, -1 dBTP) and allows at most 3 s of
+// trailing silence (invented house rule). The files are judged by the real
+// rules engine (rules.Evaluate).
+const demoSpecFile = "testdata/northwind-house.toml"
 
 func ptr(v float64) *float64 { return &v }
 
-// demoTarget is the house spec as the report draws it.
-var demoTarget = Target{
-	IntegratedLUFS:      ptr(-23), // EBU R 128 v4.0 (STANDARDS.md §4)
-	ToleranceLU:         ptr(1),   // EBU R 128 v4.0 production tolerance (STANDARDS.md §4)
-	TruePeakCeilingDBTP: ptr(-1),  // EBU R 128 v4.0 (STANDARDS.md §4)
+// northwindSpec loads the demo's house spec with the real TOML loader.
+func northwindSpec(t testing.TB) *rules.Spec {
+	t.Helper()
+	spec, err := rules.LoadFile(demoSpecFile)
+	if err != nil {
+		t.Fatalf("loading the demo spec: %v", err)
+	}
+	return spec
 }
 
 // demoCaution is the page's caution text in the demo.
@@ -153,8 +157,9 @@ var stereo = []string{decode.FrontLeft, decode.FrontRight}
 
 // demoProgrammes is the demo delivery.
 var demoProgrammes = []programme{
-	{ // Near target, some movement, short silences at both ends: passes.
-		path: "almanac/ep101_mix.wav", rate: 48000, layout: stereo, gains: []float64{1, 1},
+	{ // Near target, some movement, short silences at both ends, right
+		// channel 0.5 dB down (so not dual mono): passes.
+		path: "almanac/ep101_mix.wav", rate: 48000, layout: stereo, gains: []float64{1, 0.944},
 		stretches: []stretch{{1.5, silent, 0}, {12, -22, 3}, {10, -25.5, 4}, {14, -22.5, 2}, {2.5, silent, 0}},
 	},
 	{ // Mixed hot, with three short bursts over the ceiling and a long tail.
@@ -201,14 +206,16 @@ func measuredDemo(t testing.TB) []*measure.Measurement {
 // demoPage is the `check` report of the demo delivery.
 func demoPage(t testing.TB) Page {
 	t.Helper()
+	spec := northwindSpec(t)
 	page := Page{
 		Title:     "Delivery check — The Lighthouse Keeper's Almanac",
 		Generated: demoTime,
-		Specs:     []string{demoSpec},
+		Specs:     []string{spec.ID},
 		Caution:   demoCaution,
 	}
 	for _, m := range measuredDemo(t) {
-		page.Entries = append(page.Entries, Entry{Result: demoJudge(m, demoTarget), Target: demoTarget})
+		r := rules.Evaluate(spec, m)
+		page.Entries = append(page.Entries, Entry{Result: &r, Target: TargetFor(spec, m.Channels)})
 	}
 	return page
 }
@@ -225,74 +232,24 @@ func measurePage(t testing.TB) Page {
 	return page
 }
 
-// demoJudge is the demo's stand-in for the rules engine: just enough checks
-// (integrated, true peak, trailing silence) to give the report real
-// verdicts on real measurements, so these tests need nothing from package
-// rules but its Result type. Warning margin 0.3 LU: invented for the demo.
-func demoJudge(m *measure.Measurement, t Target) *rules.Result {
-	r := &rules.Result{Measurement: m, Spec: demoSpec, Checks: []rules.Check{}}
-	if m.Error != "" {
-		r.Verdict = rules.Error
-		r.Advice = "Re-export the file and deliver it again."
-		return r
+// TestDemoVerdicts keeps the synthetic demo honest: the real rules engine
+// gives each programme the verdict its description promises, so the demo
+// report shows every verdict the page can draw.
+func TestDemoVerdicts(t *testing.T) {
+	want := []rules.Verdict{
+		rules.Pass,  // on target (EBU R 128 ±1.0 LU, STANDARDS.md §4)
+		rules.Fail,  // 7.7 LU too loud, true peak over -1 dBTP, 6.5 s tail > 3 s house limit
+		rules.Warn,  // inside ±1.0 LU but near the edge
+		rules.Fail,  // shorter than one 400 ms gating block (BS.1770): no integrated loudness
+		rules.Error, // unusable header
 	}
-	target, tol, ceiling := *t.IntegratedLUFS, *t.ToleranceLU, *t.TruePeakCeilingDBTP
-
-	in := rules.Check{ID: "integrated", Unit: "LUFS", Limit: fmt.Sprintf("%.1f LUFS ±%.1f LU", target, tol)}
-	var gain float64
-	switch {
-	case m.IntegratedLUFS == nil:
-		in.Verdict, in.Reason = rules.Warn, "no integrated loudness: the file is shorter than one 400 ms gating block"
-	default:
-		v := *m.IntegratedLUFS
-		in.Measured = v
-		d := v - target
-		switch {
-		case d > tol:
-			in.Verdict, in.Reason = rules.Fail, fmt.Sprintf("%.1f LU louder than the target allows", d-tol)
-		case d < -tol:
-			in.Verdict, in.Reason = rules.Fail, fmt.Sprintf("%.1f LU quieter than the target allows", -tol-d)
-		case math.Abs(d) > tol-0.3:
-			in.Verdict, in.Reason = rules.Warn, "inside the tolerance but within 0.3 LU of its edge"
-		default:
-			in.Verdict, in.Reason = rules.Pass, "on target"
-		}
-		if in.Verdict != rules.Pass {
-			gain = -d
-			r.SuggestedGainDB = ptr(gain)
+	page := demoPage(t)
+	if len(page.Entries) != len(want) {
+		t.Fatalf("%d demo entries, want %d", len(page.Entries), len(want))
+	}
+	for i, e := range page.Entries {
+		if e.Result.Verdict != want[i] {
+			t.Errorf("%s: verdict %s, want %s (%s)", e.Result.Path, e.Result.Verdict, want[i], MainReason(e.Result))
 		}
 	}
-
-	tp := rules.Check{ID: "true_peak", Unit: "dBTP", Limit: fmt.Sprintf("≤ %.1f dBTP", ceiling), Verdict: rules.Pass, Reason: "below the ceiling"}
-	if m.TruePeakDBTP != nil {
-		tp.Measured = *m.TruePeakDBTP
-		if *m.TruePeakDBTP > ceiling {
-			tp.Verdict, tp.Reason = rules.Fail, fmt.Sprintf("true peak %.2f dB over the ceiling", *m.TruePeakDBTP-ceiling)
-		}
-		if after := *m.TruePeakDBTP + gain; after > ceiling {
-			r.LimiterReductionDB = ptr(after - ceiling)
-		}
-	}
-
-	tail := rules.Check{ID: "trailing_silence", Unit: "s", Measured: m.Signal.TrailingSilenceS, Limit: "≤ 3.0 s", Verdict: rules.Pass, Reason: "short enough"}
-	if m.Signal.TrailingSilenceS > 3 {
-		tail.Verdict, tail.Reason = rules.Fail, "the file ends in more silence than the outlet accepts"
-	}
-	r.Checks = append(r.Checks, in, tp, tail)
-
-	r.Verdict = rules.Pass
-	for _, c := range r.Checks {
-		if verdictOf(c.Verdict).Rank > verdictOf(r.Verdict).Rank {
-			r.Verdict = c.Verdict
-		}
-	}
-	switch {
-	case r.SuggestedGainDB != nil && r.LimiterReductionDB != nil:
-		r.Advice = fmt.Sprintf("Apply %s dB of gain, then limit the true peak by %s dB.", FormatGain(r.SuggestedGainDB), formatFixed(r.LimiterReductionDB, 1))
-	case r.SuggestedGainDB != nil:
-		r.Advice = fmt.Sprintf("Apply %s dB of gain.", FormatGain(r.SuggestedGainDB))
-	case r.LimiterReductionDB != nil:
-		r.Advice = fmt.Sprintf("Limit the true peak by %s dB.", formatFixed(r.LimiterReductionDB, 1))
-	}
-	return r
 }

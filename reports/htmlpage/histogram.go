@@ -4,6 +4,8 @@ import (
 	"math"
 	"sort"
 	"strconv"
+
+	"github.com/kweigh/kweigh/reports"
 )
 
 // Geometry of the short-term histogram.
@@ -97,7 +99,7 @@ func shortTermHistogram(e Entry, id string) string {
 		s.line(x0, histTop-8, x1, histTop-8, inkBlack, 1.5, "")
 		s.line(x0, histTop-13, x0, histTop-3, inkBlack, 1.5, "")
 		s.line(x1, histTop-13, x1, histTop-3, inkBlack, 1.5, "")
-		label := "loudness range " + FormatLoudness(r.LoudnessRangeLU) + " LU"
+		label := "loudness range " + reports.Loudness(r.LoudnessRangeLU) + " LU"
 		s.text(min(max((x0+x1)/2, histLeft+textWidth(label)/2), histRight-textWidth(label)/2), histTop-17, "middle", ` font-weight="bold"`, label)
 	}
 
@@ -211,7 +213,7 @@ func histDescription(e Entry, region rangeRegion, counted int) string {
 	d := "Distribution of " + strconv.Itoa(counted) + " short-term loudness values (100 ms steps) above -70 LUFS"
 	if region.ok {
 		low, high := region.low, region.high
-		d += "; loudness range region " + FormatLoudness(&low) + " to " + FormatLoudness(&high) + " LUFS; measured loudness range " + FormatLoudness(e.Result.LoudnessRangeLU) + " LU"
+		d += "; loudness range region " + reports.Loudness(&low) + " to " + reports.Loudness(&high) + " LUFS; measured loudness range " + reports.Loudness(e.Result.LoudnessRangeLU) + " LU"
 	}
 	return d + "."
 }

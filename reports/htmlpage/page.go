@@ -9,16 +9,6 @@ import (
 	"github.com/kweigh/kweigh/rules"
 )
 
-// Target is the part of a delivery spec the plots draw: the integrated
-// loudness target with its tolerance band, and the true-peak ceiling. A nil
-// field is not drawn. A spec given as a window (e.g. −20 to −16 LUFS) maps to
-// its middle and half its width.
-type Target struct {
-	IntegratedLUFS      *float64
-	ToleranceLU         *float64
-	TruePeakCeilingDBTP *float64
-}
-
 // Entry is one file of a run: its judged measurement and the spec limits
 // to draw. For a `measure` run Result.Verdict is empty, Result.Checks is
 // nil and Target is usually zero.

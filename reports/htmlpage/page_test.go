@@ -16,6 +16,7 @@ import (
 	"golang.org/x/net/html"
 	"golang.org/x/net/html/atom"
 
+	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/rules"
 )
 
@@ -40,6 +41,7 @@ func TestGolden(t *testing.T) {
 	}{
 		{"check", demoPage},
 		{"measure", measurePage},
+		{"demo", demoSetPage},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			got := render(t, tc.page(t))
@@ -141,13 +143,14 @@ func jsonRecord(t testing.TB, r *rules.Result) map[string]any {
 	return rec
 }
 
-// jsonFixed prints a JSON number the way the report must: decimals digits
-// (one for loudness, two for peaks; kweigh's text report rounds the same
-// way), a JSON null as Undefined.
+// jsonFixed prints a JSON number the way the report must, written here
+// independently of package reports: decimals digits (one for loudness, two
+// for peaks: issue 2), a JSON null as "n/a" (kweigh's word for an undefined
+// figure).
 func jsonFixed(v any, decimals int) string {
 	f, ok := v.(float64)
 	if !ok {
-		return Undefined
+		return "n/a"
 	}
 	s := fmt.Sprintf("%.*f", decimals, f)
 	if strings.Trim(s, "-0.") == "" {
@@ -156,10 +159,17 @@ func jsonFixed(v any, decimals int) string {
 	return s
 }
 
-// TestReportContent parses the demo report and checks that every file
-// appears, in order, with the numbers of its JSON record.
+// TestReportContent parses the synthetic demo report and checks that
+// every file appears, in order, with the numbers of its JSON record.
 func TestReportContent(t *testing.T) {
-	page := demoPage(t)
+	checkReportContent(t, demoPage(t))
+}
+
+// checkReportContent renders page and checks that every entry appears in
+// the summary and in its own section, in order, showing the numbers of its
+// JSON record (json.Marshal of the Result) rounded for display.
+func checkReportContent(t *testing.T, page Page) {
+	t.Helper()
 	root := parseHTML(t, render(t, page))
 
 	tables := findAll(root, func(n *html.Node) bool { v, _ := attr(n, "id"); return n.DataAtom == atom.Table && v == "summary" })
@@ -255,8 +265,14 @@ func TestReportContent(t *testing.T) {
 		for j, c := range checks {
 			c := c.(map[string]any)
 			unit, _ := c["unit"].(string)
-			want := jsonFixed(c["measured"], MeasuredDecimals(unit))
-			if want != Undefined && unit != "" {
+			var want string
+			switch m := c["measured"].(type) {
+			case string:
+				want = m
+			default:
+				want = jsonFixed(m, reports.UnitDecimals(unit))
+			}
+			if want != "n/a" && unit != "" {
 				want += " " + unit
 			}
 			if got := textOf(measured[j]); got != want {
@@ -264,7 +280,11 @@ func TestReportContent(t *testing.T) {
 			}
 		}
 		if g := findAll(sec, func(n *html.Node) bool { return hasClass(n, "gain") }); rec["suggested_gain_db"] != nil {
-			want := fmt.Sprintf("%+.1f dB", rec["suggested_gain_db"].(float64))
+			want := jsonFixed(rec["suggested_gain_db"], 1)
+			if !strings.HasPrefix(want, "-") && want != "0.0" {
+				want = "+" + want // a boost is shown with its sign
+			}
+			want += " dB"
 			if len(g) != 1 || textOf(g[0]) != want {
 				t.Errorf("%s: suggested gain not shown as %q", r.Path, want)
 			}
@@ -277,10 +297,10 @@ func TestReportContent(t *testing.T) {
 	}
 }
 
-// TestSVGIsXML re-serialises every inline SVG of both demo reports and
+// TestSVGIsXML re-serialises every inline SVG of the demo reports and
 // parses it as XML.
 func TestSVGIsXML(t *testing.T) {
-	for _, page := range []Page{demoPage(t), measurePage(t)} {
+	for _, page := range []Page{demoPage(t), measurePage(t), demoSetPage(t)} {
 		root := parseHTML(t, render(t, page))
 		svgs := findAll(root, func(n *html.Node) bool { return n.DataAtom == atom.Svg })
 		if len(svgs) == 0 {

@@ -3,6 +3,8 @@ package htmlpage
 import (
 	"math"
 	"strconv"
+
+	"github.com/kweigh/kweigh/reports"
 )
 
 // Geometry of the per-channel peak bars.
@@ -61,12 +63,12 @@ func channelPeakBars(e Entry, id string) string {
 	bar := func(y float64, v *float64, unit, fill string) {
 		if v == nil {
 			s.text(peakLeft+6, y+peakBarThick-1, "start", ` fill="`+inkAxis+`" font-size="11"`, "silent: no peak")
-			s.text(peakValueX, y+peakBarThick-1, "end", ` font-size="11"`, Undefined)
+			s.text(peakValueX, y+peakBarThick-1, "end", ` font-size="11"`, reports.NotAvailable)
 			return
 		}
 		w := x.at(*v) - peakLeft
 		s.rect(peakLeft, y, max(w, 0.5), peakBarThick, fill)
-		label := FormatPeak(v) + " " + unit
+		label := reports.Peak(v) + " " + unit
 		if unit == "dBTP" && ceiling != nil && *v > *ceiling {
 			label = "over " + label
 		}
@@ -81,7 +83,7 @@ func channelPeakBars(e Entry, id string) string {
 	if ceiling != nil {
 		px := x.at(*ceiling)
 		s.line(px, peakTop-6, px, bottom, inkVermillion, 1.5, "7 3 1.5 3")
-		s.text(px, peakTop-10, "middle", ` fill="#A33F00" font-size="11"`, "ceiling "+FormatPeak(ceiling)+" dBTP")
+		s.text(px, peakTop-10, "middle", ` fill="#A33F00" font-size="11"`, "ceiling "+reports.Peak(ceiling)+" dBTP")
 	}
 	// Key.
 	ky := bottom + 44
@@ -103,10 +105,10 @@ func peakDescription(e Entry, n int) string {
 	r := e.Result
 	d := "True peak and sample peak of " + strconv.Itoa(n) + " channels:"
 	for i := 0; i < n; i++ {
-		d += " " + channelLabel(r.ChannelLayout, i) + " " + FormatPeak(at(r.ChannelTruePeakDBTP, i)) + " dBTP / " + FormatPeak(at(r.ChannelSamplePeakDBFS, i)) + " dBFS;"
+		d += " " + channelLabel(r.ChannelLayout, i) + " " + reports.Peak(at(r.ChannelTruePeakDBTP, i)) + " dBTP / " + reports.Peak(at(r.ChannelSamplePeakDBFS, i)) + " dBFS;"
 	}
 	if c := e.Target.TruePeakCeilingDBTP; c != nil {
-		d += " ceiling " + FormatPeak(c) + " dBTP."
+		d += " ceiling " + reports.Peak(c) + " dBTP."
 	}
 	return d
 }

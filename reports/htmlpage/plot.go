@@ -7,6 +7,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+
+	"github.com/kweigh/kweigh/reports"
 )
 
 // Geometry of the loudness-over-time plot, in SVG user units (px at 100 %).
@@ -195,9 +197,9 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 			num(x0), num(areaTop), num(max(x1-x0, 1)), num(areaBottom-areaTop), id, escapeXML(what))
 	}
 	lead, trail := r.Signal.LeadingSilenceS, r.Signal.TrailingSilenceS
-	silence(0, min(lead, dur), "leading silence "+strconv.FormatFloat(lead, 'f', 1, 64)+" s")
+	silence(0, min(lead, dur), "leading silence "+reports.Fixed(lead, reports.UnitDecimals("s"))+" s")
 	if lead < dur {
-		silence(max(dur-trail, lead), dur, "trailing silence "+strconv.FormatFloat(trail, 'f', 1, 64)+" s")
+		silence(max(dur-trail, lead), dur, "trailing silence "+reports.Fixed(trail, reports.UnitDecimals("s"))+" s")
 	}
 
 	// Target band.
@@ -226,11 +228,11 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 		if sec == 0 {
 			anchor = "start"
 		}
-		s.text(px, areaBottom+19, anchor, ` fill="`+inkAxis+`"`, FormatClock(sec))
+		s.text(px, areaBottom+19, anchor, ` fill="`+inkAxis+`"`, reports.Clock(sec))
 	}
 	s.text(plotLeft, areaBottom+38, "start", ` fill="`+inkAxis+`" font-size="11"`, "time (h:mm:ss)")
-	s.printf(`<text x="16" y="%s" text-anchor="middle" transform="rotate(-90 16 %s)" fill="%s" font-size="11">level: LUFS (curves), dBTP (ceiling)</text>`+"\n",
-		num((areaTop+areaBottom)/2), num((areaTop+areaBottom)/2), inkAxis)
+	s.printf(`<text x="16" y="%s" text-anchor="middle" transform="rotate(-90 16 %s)" fill="%s" font-size="11">%s</text>`+"\n",
+		num((areaTop+areaBottom)/2), num((areaTop+areaBottom)/2), inkAxis, levelAxisLabel(t))
 
 	// Curves: momentary below, short-term above it.
 	drawn := false
@@ -256,17 +258,17 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 	if r.IntegratedLUFS != nil {
 		py := y.at(*r.IntegratedLUFS)
 		s.line(plotLeft, py, plotRight, py, inkBlack, 1.5, "9 4")
-		labels = append(labels, valueLabel{py, "I " + FormatLoudness(r.IntegratedLUFS) + " LUFS", inkBlack, "bold"})
+		labels = append(labels, valueLabel{py, "I " + reports.Loudness(r.IntegratedLUFS) + " LUFS", inkBlack, "bold"})
 	}
 	if t.IntegratedLUFS != nil {
-		labels = append(labels, valueLabel{y.at(*t.IntegratedLUFS), "target " + FormatLoudness(t.IntegratedLUFS), "#00694D", ""})
+		labels = append(labels, valueLabel{y.at(*t.IntegratedLUFS), "target " + reports.Loudness(t.IntegratedLUFS), "#00694D", ""})
 	}
 	overs := 0
 	if t.TruePeakCeilingDBTP != nil {
 		ceiling := *t.TruePeakCeilingDBTP
 		py := y.at(ceiling)
 		s.line(plotLeft, py, plotRight, py, inkVermillion, 1.5, "7 3 1.5 3")
-		labels = append(labels, valueLabel{py, "ceiling " + FormatPeak(t.TruePeakCeilingDBTP), "#A33F00", ""})
+		labels = append(labels, valueLabel{py, "ceiling " + reports.Peak(t.TruePeakCeilingDBTP), "#A33F00", ""})
 		s.text(plotLeft-6, laneTop+laneHeight-3, "end", ` fill="`+inkAxis+`" font-size="11"`, "TP over")
 		s.rect(plotLeft, laneTop, plotRight-plotLeft, laneHeight, `fill="none" stroke="`+inkGrid+`" stroke-width="1"`)
 		if series != nil {
@@ -277,7 +279,7 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 			for _, run := range overRuns(series.TruePeak, ceiling, PlotColumns) {
 				x0, x1 := x.at(run.from), x.at(run.to)
 				peak := float64(run.peak)
-				tip := fmt.Sprintf("true peak over the ceiling %s – %s, highest %s dBTP", FormatClock(run.from), FormatClock(run.to), FormatPeak(&peak))
+				tip := fmt.Sprintf("true peak over the ceiling %s – %s, highest %s dBTP", reports.Clock(run.from), reports.Clock(run.to), reports.Peak(&peak))
 				s.printf(`<rect x="%s" y="%s" width="%s" height="%s" fill="%s" stroke="%s" stroke-width="0.5"><title>%s</title></rect>`+"\n",
 					num(x0), num(laneTop), num(max(x1-x0, 2)), num(laneHeight), inkVermillion, inkBlack, escapeXML(tip))
 				// A matching tick under the ceiling line ties the lane to the level axis.
@@ -290,19 +292,28 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 	return s.close()
 }
 
+// levelAxisLabel names the level axis' units: LUFS for the curves, and
+// dBTP only when a true-peak ceiling is drawn on the same axis.
+func levelAxisLabel(t Target) string {
+	if t.TruePeakCeilingDBTP != nil {
+		return "level: LUFS (curves), dBTP (ceiling)"
+	}
+	return "level: LUFS"
+}
+
 // plotDescription is the plot's text alternative.
 func plotDescription(e Entry) string {
 	r := e.Result
 	parts := []string{
-		"Short-term and momentary loudness over " + FormatClock(seriesDuration(e)),
-		"integrated " + FormatLoudness(r.IntegratedLUFS) + " LUFS",
+		"Short-term and momentary loudness over " + reports.Clock(seriesDuration(e)),
+		"integrated " + reports.Loudness(r.IntegratedLUFS) + " LUFS",
 	}
 	if t := e.Target.IntegratedLUFS; t != nil {
 		tol := tolerance(e.Target)
-		parts = append(parts, "target "+FormatLoudness(t)+" LUFS ±"+FormatLoudness(&tol)+" LU")
+		parts = append(parts, "target "+reports.Loudness(t)+" LUFS ±"+reports.Loudness(&tol)+" LU")
 	}
 	if c := e.Target.TruePeakCeilingDBTP; c != nil && r.Series != nil {
-		parts = append(parts, fmt.Sprintf("%d blocks of 100 ms above the %s dBTP ceiling", countOvers(r.Series.TruePeak, *c), FormatPeak(c)))
+		parts = append(parts, fmt.Sprintf("%d blocks of 100 ms above the %s dBTP ceiling", countOvers(r.Series.TruePeak, *c), reports.Peak(c)))
 	}
 	return strings.Join(parts, "; ") + "."
 }
@@ -366,10 +377,10 @@ func legend(s *svgDoc, e Entry, overs int) {
 		item(func(x, y float64) {
 			s.rect(x, y-6, 28, 12, `fill="`+inkGreen+`" fill-opacity="0.16" stroke="`+inkGreen+`" stroke-dasharray="4 3"`)
 			s.line(x, y, x+28, y, inkGreen, 1, "")
-		}, "target "+FormatLoudness(t.IntegratedLUFS)+" LUFS ±"+FormatLoudness(&tol)+" LU")
+		}, "target "+reports.Loudness(t.IntegratedLUFS)+" LUFS ±"+reports.Loudness(&tol)+" LU")
 	}
 	if c := e.Target.TruePeakCeilingDBTP; c != nil {
-		item(lineSample(inkVermillion, 1.5, "7 3 1.5 3"), "true-peak ceiling "+FormatPeak(c)+" dBTP")
+		item(lineSample(inkVermillion, 1.5, "7 3 1.5 3"), "true-peak ceiling "+reports.Peak(c)+" dBTP")
 		item(func(x, y float64) {
 			s.rect(x+8, y-6, 12, 12, `fill="`+inkVermillion+`" stroke="`+inkBlack+`" stroke-width="0.5"`)
 		}, fmt.Sprintf("over the ceiling: %d × 100 ms", overs))

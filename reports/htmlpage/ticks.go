@@ -13,7 +13,7 @@ var timeSteps = []float64{
 // TimeTicks returns tick positions in seconds from 0 up to duration, spaced
 // by the smallest of the usual clock steps (1, 2, 5, 10, 15, 30 s; 1, 2, 5,
 // 10, 15, 30 min; 1, 2, 3, 6, 12, 24 h) that gives at most maxTicks ticks.
-// Label them with FormatClock.
+// Label them with reports.Clock.
 func TimeTicks(duration float64, maxTicks int) []float64 {
 	if !(duration > 0) || maxTicks < 2 {
 		return []float64{0}

@@ -6,6 +6,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/rules"
 )
 
@@ -95,6 +96,8 @@ type pageView struct {
 	Files     []fileView
 	CSS       template.CSS
 	Script    template.JS
+	// NotAvailable is the word shown for undefined figures.
+	NotAvailable string
 }
 
 func buildPage(p Page) (pageView, error) {
@@ -104,6 +107,8 @@ func buildPage(p Page) (pageView, error) {
 		Caution: p.Caution,
 		CSS:     template.CSS(pageCSS),
 		Script:  template.JS(sortScript),
+
+		NotAvailable: reports.NotAvailable,
 	}
 	if v.Title == "" {
 		v.Title = "Loudness report"
@@ -144,9 +149,9 @@ func buildFile(i int, e Entry) fileView {
 		Verdict:    verdictOf(r.Verdict),
 		Spec:       r.Spec,
 		Details:    fileDetails(r),
-		Integrated: FormatLoudness(r.IntegratedLUFS),
-		LRA:        FormatLoudness(r.LoudnessRangeLU),
-		TruePeak:   FormatPeak(r.TruePeakDBTP),
+		Integrated: reports.Loudness(r.IntegratedLUFS),
+		LRA:        reports.Loudness(r.LoudnessRangeLU),
+		TruePeak:   reports.Peak(r.TruePeakDBTP),
 		MainReason: MainReason(r),
 		Judged:     r.Verdict != "",
 		Advice:     r.Advice,
@@ -162,14 +167,14 @@ func buildFile(i int, e Entry) fileView {
 		{Label: "Integrated", Value: f.Integrated, Unit: "LUFS"},
 		{Label: "Loudness range", Value: f.LRA, Unit: "LU"},
 		{Label: "True peak", Value: f.TruePeak, Unit: "dBTP"},
-		{Label: "Sample peak", Value: FormatPeak(r.SamplePeakDBFS), Unit: "dBFS"},
-		{Label: "Max momentary", Value: FormatLoudness(r.MaxMomentaryLUFS), Unit: "LUFS"},
-		{Label: "Max short-term", Value: FormatLoudness(r.MaxShortTermLUFS), Unit: "LUFS"},
-		{Label: "Leading silence", Value: formatFixed(&lead, MeasuredDecimals("s")), Unit: "s"},
-		{Label: "Trailing silence", Value: formatFixed(&trail, MeasuredDecimals("s")), Unit: "s"},
+		{Label: "Sample peak", Value: reports.Peak(r.SamplePeakDBFS), Unit: "dBFS"},
+		{Label: "Max momentary", Value: reports.Loudness(r.MaxMomentaryLUFS), Unit: "LUFS"},
+		{Label: "Max short-term", Value: reports.Loudness(r.MaxShortTermLUFS), Unit: "LUFS"},
+		{Label: "Leading silence", Value: reports.Fixed(lead, reports.UnitDecimals("s")), Unit: "s"},
+		{Label: "Trailing silence", Value: reports.Fixed(trail, reports.UnitDecimals("s")), Unit: "s"},
 	}
 	for i := range f.Figures {
-		f.Figures[i].Undefined = f.Figures[i].Value == Undefined
+		f.Figures[i].Undefined = f.Figures[i].Value == reports.NotAvailable
 	}
 	f.Plot = template.HTML(loudnessPlot(e, id+"plot-", false))
 	f.PlotCaption = plotCaption(e.Target)
@@ -179,17 +184,17 @@ func buildFile(i int, e Entry) fileView {
 		f.Checks = append(f.Checks, checkView{
 			ID:       c.ID,
 			Verdict:  verdictOf(c.Verdict),
-			Measured: FormatMeasured(c.Measured, c.Unit),
+			Measured: reports.Measured(c.Measured, c.Unit),
 			Limit:    c.Limit,
 			Reason:   c.Reason,
 		})
 	}
 	if r.SuggestedGainDB != nil {
-		f.Gain = FormatGain(r.SuggestedGainDB) + " dB"
+		f.Gain = reports.Gain(*r.SuggestedGainDB) + " dB"
 		f.GainRaises = *r.SuggestedGainDB > 0
 	}
 	if r.LimiterReductionDB != nil {
-		f.Limiter = FormatMeasured(*r.LimiterReductionDB, "dB")
+		f.Limiter = reports.Measured(*r.LimiterReductionDB, "dB")
 	}
 	return f
 }
@@ -253,7 +258,7 @@ func fileDetails(r *rules.Result) string {
 		parts = append(parts, ch)
 	}
 	if r.DurationS > 0 {
-		parts = append(parts, FormatDuration(r.DurationS))
+		parts = append(parts, reports.Duration(r.DurationS))
 	}
 	return strings.Join(parts, " · ")
 }
