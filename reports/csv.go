@@ -26,7 +26,7 @@ var measurementColumns = []column[*measure.Measurement]{
 	{"channel_layout", func(m *measure.Measurement) string { return strings.Join(m.ChannelLayout, ";") }},
 	{"bits_per_sample", func(m *measure.Measurement) string { return strconv.Itoa(m.BitsPerSample) }},
 	{"sample_format", func(m *measure.Measurement) string { return m.SampleFormat }},
-	{"duration_s", func(m *measure.Measurement) string { return fixed(m.DurationS, 3) }},
+	{"duration_s", func(m *measure.Measurement) string { return Fixed(m.DurationS, 3) }},
 	{"integrated_lufs", func(m *measure.Measurement) string { return csvFigure(m.IntegratedLUFS) }},
 	{"loudness_range_lu", func(m *measure.Measurement) string { return csvFigure(m.LoudnessRangeLU) }},
 	{"true_peak_dbtp", func(m *measure.Measurement) string { return csvFigure(m.TruePeakDBTP) }},
@@ -45,10 +45,10 @@ var resultColumns = []column[*rules.Result]{
 
 // csvFigure writes a dB figure with two decimals; empty when undefined.
 func csvFigure(p *float64) string {
-	if !defined(p) {
+	if !Defined(p) {
 		return ""
 	}
-	return fixed(*p, 2)
+	return Fixed(*p, 2)
 }
 
 func checkIDs(checks []rules.Check, verdicts ...rules.Verdict) string {

@@ -143,17 +143,3 @@ func WallTime(d time.Duration) string {
 	}
 	return Duration(d.Seconds())
 }
-
-// The package's writers use the short names.
-const notAvailable = NotAvailable
-
-var (
-	fixed         = Fixed
-	defined       = Defined
-	loudness      = Loudness
-	peak          = Peak
-	gain          = Gain
-	measuredText  = Measured
-	clockDuration = Duration
-	wallTime      = WallTime
-)

@@ -140,18 +140,18 @@ func (j *checkJUnit) cases(r *rules.Result) []junitCase {
 
 // checkDetail is a check in one line: "measured …; limit …; reason".
 func checkDetail(c rules.Check) string {
-	return fmt.Sprintf("measured %s; limit %s; %s", measuredText(c.Measured, c.Unit), c.Limit, c.Reason)
+	return fmt.Sprintf("measured %s; limit %s; %s", Measured(c.Measured, c.Unit), c.Limit, c.Reason)
 }
 
 // problemText is the body of a failure or error: the check, then the fix.
 func problemText(r *rules.Result, detail string) string {
 	var b strings.Builder
 	b.WriteString(detail)
-	if defined(r.SuggestedGainDB) {
-		fmt.Fprintf(&b, "\nsuggested gain: %s dB", gain(*r.SuggestedGainDB))
+	if Defined(r.SuggestedGainDB) {
+		fmt.Fprintf(&b, "\nsuggested gain: %s dB", Gain(*r.SuggestedGainDB))
 	}
-	if defined(r.LimiterReductionDB) {
-		fmt.Fprintf(&b, "\nlimiter: %s dB of peak reduction after that gain", fixed(*r.LimiterReductionDB, 1))
+	if Defined(r.LimiterReductionDB) {
+		fmt.Fprintf(&b, "\nlimiter: %s dB of peak reduction after that gain", Fixed(*r.LimiterReductionDB, 1))
 	}
 	if r.Advice != "" {
 		b.WriteString("\nadvice: " + r.Advice)
@@ -167,7 +167,7 @@ func (j *checkJUnit) Close(s Summary) error {
 		stamp := j.opts.generated().Format(junitTimestamp)
 		doc := junitSuites{Name: "kweigh check", Timestamp: stamp, Suites: j.suites}
 		if s.Elapsed > 0 {
-			doc.Time = fixed(s.Elapsed.Seconds(), 3)
+			doc.Time = Fixed(s.Elapsed.Seconds(), 3)
 		}
 		for i := range doc.Suites {
 			suite := &doc.Suites[i]

@@ -60,9 +60,9 @@ func (s Summary) Measured() int { return s.Files - s.Errors }
 func (s Summary) String() string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%d passed, %d warned, %d failed, %s · %s, %s of audio checked",
-		s.Passed, s.Warned, s.Failed, plural(s.Errors, "error"), plural(s.Files, "file"), clockDuration(s.AudioSeconds))
+		s.Passed, s.Warned, s.Failed, plural(s.Errors, "error"), plural(s.Files, "file"), Duration(s.AudioSeconds))
 	if s.Elapsed > 0 {
-		fmt.Fprintf(&b, " in %s", wallTime(s.Elapsed))
+		fmt.Fprintf(&b, " in %s", WallTime(s.Elapsed))
 	}
 	return b.String()
 }
@@ -75,9 +75,9 @@ func (s Summary) MeasureString() string {
 	if s.Errors > 0 {
 		fmt.Fprintf(&b, ", %d could not be", s.Errors)
 	}
-	fmt.Fprintf(&b, " · %s of audio", clockDuration(s.AudioSeconds))
+	fmt.Fprintf(&b, " · %s of audio", Duration(s.AudioSeconds))
 	if s.Elapsed > 0 {
-		fmt.Fprintf(&b, " in %s", wallTime(s.Elapsed))
+		fmt.Fprintf(&b, " in %s", WallTime(s.Elapsed))
 	}
 	return b.String()
 }

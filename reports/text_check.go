@@ -85,16 +85,16 @@ func (t *checkText) detail(text string) { t.print(detailIndent + text + "\n") }
 // figuresText is the file's main figures in one line.
 func figuresText(r *rules.Result) string {
 	unit := func(s, u string) string {
-		if s == notAvailable {
+		if s == NotAvailable {
 			return s
 		}
 		return s + " " + u
 	}
 	return strings.Join([]string{
-		"integrated " + unit(loudness(r.IntegratedLUFS), "LUFS"),
-		"range " + unit(loudness(r.LoudnessRangeLU), "LU"),
-		"true peak " + unit(peak(r.TruePeakDBTP), "dBTP"),
-		"duration " + clockDuration(r.DurationS),
+		"integrated " + unit(Loudness(r.IntegratedLUFS), "LUFS"),
+		"range " + unit(Loudness(r.LoudnessRangeLU), "LU"),
+		"true peak " + unit(Peak(r.TruePeakDBTP), "dBTP"),
+		"duration " + Duration(r.DurationS),
 	}, " · ")
 }
 
@@ -113,13 +113,13 @@ func (t *checkText) checks(all []rules.Check) {
 	idWidth, measuredWidth := 0, 0
 	for _, c := range shown {
 		idWidth = max(idWidth, width(c.ID))
-		measuredWidth = max(measuredWidth, width(measuredText(c.Measured, c.Unit)))
+		measuredWidth = max(measuredWidth, width(Measured(c.Measured, c.Unit)))
 	}
 	for _, c := range shown {
 		word := string(c.Verdict)
 		verdict := paint(t.opts.Colour, c.Verdict, verdictSymbol(c.Verdict)+" "+word) + strings.Repeat(" ", max(5-width(word), 0))
 		t.detail(fmt.Sprintf("%s %s  %s  limit %s", verdict,
-			padRight(c.ID, idWidth), padRight(measuredText(c.Measured, c.Unit), measuredWidth), c.Limit))
+			padRight(c.ID, idWidth), padRight(Measured(c.Measured, c.Unit), measuredWidth), c.Limit))
 		if c.Reason != "" {
 			t.detail(reasonIndent + c.Reason)
 		}
@@ -134,15 +134,15 @@ const reasonIndent = "        "
 
 // fix writes the suggested gain, the limiter reduction and the advice.
 func (t *checkText) fix(r *rules.Result) {
-	if defined(r.SuggestedGainDB) {
-		text := "gain " + gain(*r.SuggestedGainDB) + " dB reaches the target"
+	if Defined(r.SuggestedGainDB) {
+		text := "gain " + Gain(*r.SuggestedGainDB) + " dB reaches the target"
 		if *r.SuggestedGainDB > 0 {
 			text += " (this raises the level: check the peaks and listen at a safe volume)"
 		}
 		t.detail(text)
 	}
-	if defined(r.LimiterReductionDB) {
-		t.detail("limiter needed: " + fixed(*r.LimiterReductionDB, 1) + " dB of peak reduction after that gain")
+	if Defined(r.LimiterReductionDB) {
+		t.detail("limiter needed: " + Fixed(*r.LimiterReductionDB, 1) + " dB of peak reduction after that gain")
 	}
 	if r.Advice != "" {
 		t.detail("advice: " + r.Advice)

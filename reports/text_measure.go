@@ -32,7 +32,7 @@ func (t *measureText) line(label, text string) {
 // then its unit and any detail.
 func (t *measureText) figure(label, value, unit, detail string) {
 	text := fmt.Sprintf("%7s", value)
-	if value != notAvailable {
+	if value != NotAvailable {
 		text += " " + unit
 	}
 	if detail != "" {
@@ -63,13 +63,13 @@ func (t *measureText) Write(m *measure.Measurement) error {
 	}
 	t.line("stream", streamText(m))
 	t.line("layout", layoutText(m))
-	t.line("duration", fmt.Sprintf("%s (%s s)", clockDuration(m.DurationS), fixed(m.DurationS, 3)))
-	t.figure("integrated", loudness(m.IntegratedLUFS), "LUFS", "")
-	t.figure("loudness range", loudness(m.LoudnessRangeLU), "LU", "")
-	t.figure("true peak", peak(m.TruePeakDBTP), "dBTP", perChannel(m.ChannelLayout, m.ChannelTruePeakDBTP))
-	t.figure("sample peak", peak(m.SamplePeakDBFS), "dBFS", perChannel(m.ChannelLayout, m.ChannelSamplePeakDBFS))
-	t.figure("max momentary", loudness(m.MaxMomentaryLUFS), "LUFS", "")
-	t.figure("max short-term", loudness(m.MaxShortTermLUFS), "LUFS", "")
+	t.line("duration", fmt.Sprintf("%s (%s s)", Duration(m.DurationS), Fixed(m.DurationS, 3)))
+	t.figure("integrated", Loudness(m.IntegratedLUFS), "LUFS", "")
+	t.figure("loudness range", Loudness(m.LoudnessRangeLU), "LU", "")
+	t.figure("true peak", Peak(m.TruePeakDBTP), "dBTP", perChannel(m.ChannelLayout, m.ChannelTruePeakDBTP))
+	t.figure("sample peak", Peak(m.SamplePeakDBFS), "dBFS", perChannel(m.ChannelLayout, m.ChannelSamplePeakDBFS))
+	t.figure("max momentary", Loudness(m.MaxMomentaryLUFS), "LUFS", "")
+	t.figure("max short-term", Loudness(m.MaxShortTermLUFS), "LUFS", "")
 	t.signal(m.Signal, m.ChannelLayout)
 	if m.Bext != nil {
 		t.line(fmt.Sprintf("bext v%d", m.Bext.Version), bextOrigin(m.Bext))
@@ -88,7 +88,7 @@ func (t *measureText) notes(notes []string) {
 // signal writes the hygiene findings.
 func (t *measureText) signal(s measure.Signal, layout []string) {
 	t.line("silence", fmt.Sprintf("leading %s s, trailing %s s (below %s dBFS)",
-		fixed(s.LeadingSilenceS, 1), fixed(s.TrailingSilenceS, 1), fixed(s.SilenceThresholdDBFS, 0)))
+		Fixed(s.LeadingSilenceS, 1), Fixed(s.TrailingSilenceS, 1), Fixed(s.SilenceThresholdDBFS, 0)))
 	if s.ClippedSamples == 0 {
 		t.line("clipping", "none")
 	} else {
@@ -98,14 +98,14 @@ func (t *measureText) signal(s measure.Signal, layout []string) {
 	if len(s.DCOffset) > 0 {
 		parts := make([]string, len(s.DCOffset))
 		for i, dc := range s.DCOffset {
-			parts[i] = channelLabel(layout, i) + " " + fixed(dc*100, 3) + " %"
+			parts[i] = channelLabel(layout, i) + " " + Fixed(dc*100, 3) + " %"
 		}
 		t.line("dc offset", strings.Join(parts, ", "))
 	}
-	if defined(s.Correlation) {
-		text := "L/R " + fixed(*s.Correlation, 2)
-		if defined(s.MinWindowCorrelation) {
-			text += ", lowest 3 s window " + fixed(*s.MinWindowCorrelation, 2)
+	if Defined(s.Correlation) {
+		text := "L/R " + Fixed(*s.Correlation, 2)
+		if Defined(s.MinWindowCorrelation) {
+			text += ", lowest 3 s window " + Fixed(*s.MinWindowCorrelation, 2)
 		}
 		t.line("correlation", text)
 	}
@@ -140,7 +140,7 @@ func streamText(m *measure.Measurement) string {
 		parts = append(parts, m.SampleFormat)
 	}
 	if m.BitRateKbps > 0 {
-		parts = append(parts, fixed(m.BitRateKbps, 0)+" kbps")
+		parts = append(parts, Fixed(m.BitRateKbps, 0)+" kbps")
 	}
 	if m.Mode != "" {
 		parts = append(parts, m.Mode)
@@ -152,7 +152,7 @@ func streamText(m *measure.Measurement) string {
 // layoutText lists the channel labels and where they came from.
 func layoutText(m *measure.Measurement) string {
 	if len(m.ChannelLayout) == 0 {
-		return notAvailable
+		return NotAvailable
 	}
 	text := strings.Join(m.ChannelLayout, " ")
 	switch m.LayoutSource {
@@ -174,7 +174,7 @@ func perChannel(layout []string, peaks []*float64) string {
 	}
 	parts := make([]string, len(peaks))
 	for i, p := range peaks {
-		parts[i] = channelLabel(layout, i) + " " + peak(p)
+		parts[i] = channelLabel(layout, i) + " " + Peak(p)
 	}
 	return strings.Join(parts, "  ")
 }
@@ -184,7 +184,7 @@ func channelLabel(layout []string, i int) string {
 	if i < len(layout) && layout[i] != "" {
 		return layout[i]
 	}
-	return fmt.Sprintf("ch%d", i+1)
+	return fmt.Sprintf("Ch%d", i+1) // as decode.DefaultLayout names unlabelled channels
 }
 
 // bextOrigin says who made the file and when, as the bext chunk records.
@@ -217,8 +217,8 @@ func bextLoudness(b *decode.Bext) string {
 	}
 	var parts []string
 	for _, d := range declared {
-		if defined(d.value) {
-			parts = append(parts, fmt.Sprintf("%s %s %s", d.name, fixed(*d.value, d.decimals), d.unit))
+		if Defined(d.value) {
+			parts = append(parts, fmt.Sprintf("%s %s %s", d.name, Fixed(*d.value, d.decimals), d.unit))
 		}
 	}
 	if len(parts) == 0 {
