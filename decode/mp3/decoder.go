@@ -1,0 +1,302 @@
+package mp3
+
+import (
+	"errors"
+	"fmt"
+	"io"
+
+	gomp3 "github.com/hajimehoshi/go-mp3"
+
+	"github.com/kweigh/kweigh/decode"
+)
+
+func init() {
+	decode.Register(decode.Format{
+		Name:  "mp3",
+		Match: Match,
+		New: func(src decode.Source, size int64) (decode.Decoder, error) {
+			return New(src, size)
+		},
+	})
+}
+
+// SynthesisDelay is the delay, in samples, of the Layer III decoder's
+// hybrid and polyphase synthesis filter banks: the first sample the encoder
+// was given comes out of the decoder this many samples (plus the encoder
+// delay) after the start of the first audio frame. 529 is the figure gapless
+// players use (common practice, no published source); TestSynthesisDelay
+// measures it on go-mp3 against the source of every fixture.
+const SynthesisDelay = 529
+
+// decoderFullScale is the value go-mp3 multiplies its float output by
+// before converting to int16; it also clamps to ±decoderFullScale, so a
+// sample at that value reached or exceeded full scale.
+const decoderFullScale = 32767
+
+// bytesPerDecodedFrame is go-mp3's output: 16-bit little-endian stereo,
+// mono duplicated into both channels.
+const bytesPerDecodedFrame = 4
+
+// Decoder decodes one MPEG-1 or MPEG-2 Layer III stream. It implements
+// decode.Decoder and decode.Noter.
+type Decoder struct {
+	info decode.Info
+	feed *frameFeed
+	mp3  *gomp3.Decoder
+
+	pcm       []byte // decoded bytes, 4 per frame
+	pcmOff    int
+	skip      int64 // decoded frames still to drop at the start
+	remaining int64 // frames still to deliver; -1 when the end is unknown
+	delivered int64
+
+	clipped int64
+	notes   []string
+	err     error // damage to report once after the last frame
+	done    bool
+}
+
+// New reads the first frame header, the Xing/Info header and the encoder
+// extension of src (size bytes) and returns a Decoder ready for ReadFrames.
+// It returns a *decode.FormatError when src holds no MPEG audio frame, and
+// a *decode.UnsupportedError for MPEG-2.5, free format and layers I/II.
+func New(src decode.Source, size int64) (*Decoder, error) {
+	start, end := audioBounds(src, size)
+	off, ok := firstFrame(src, start, end)
+	if !ok {
+		return nil, &decode.FormatError{Format: "mp3", Offset: start, Problem: "no MPEG audio frame header where the audio should start"}
+	}
+	var hb [headerSize]byte
+	if _, err := src.ReadAt(hb[:], off); err != nil {
+		return nil, &decode.FormatError{Format: "mp3", Offset: off, Problem: "file ends inside the first frame header"}
+	}
+	h, err := parseHeader(hb[:])
+	if err != nil {
+		return nil, &decode.FormatError{Format: "mp3", Offset: off, Problem: err.Error()}
+	}
+	if why := h.unsupported(); why != "" {
+		return nil, &decode.UnsupportedError{Format: "mp3", What: why}
+	}
+	first := make([]byte, h.frameLen())
+	if off+int64(len(first)) > end {
+		return nil, &decode.FormatError{Format: "mp3", Offset: off, Problem: fmt.Sprintf("file ends inside the first frame (%d of %d bytes)", end-off, len(first))}
+	}
+	if _, err := src.ReadAt(first, off); err != nil {
+		return nil, &decode.FormatError{Format: "mp3", Offset: off, Problem: fmt.Sprintf("reading the first frame: %v", err)}
+	}
+
+	d := &Decoder{
+		info: decode.Info{
+			Container:     "mp3",
+			Codec:         h.codec(),
+			SampleRate:    h.sampleRate,
+			Channels:      h.channels(),
+			Layout:        decode.DefaultLayout(h.channels()),
+			BitsPerSample: 16,
+			SampleFormat:  decode.Int,
+			Frames:        -1,
+			BitRate:       h.bitRate,
+			Mode:          h.mode.String(),
+		},
+		pcm:       make([]byte, 0, h.samplesPerFrame()*bytesPerDecodedFrame),
+		remaining: -1,
+	}
+	audioStart, declared := off, int64(-1)
+	if x, ok := parseXing(first, h); ok {
+		audioStart += int64(len(first))
+		declared = d.applyXing(x, h, len(first))
+	} else {
+		d.notes = append(d.notes, fmt.Sprintf("no Xing/Info header: the encoder delay and end padding are unknown, so the audio was measured untrimmed (it starts with the decoder's %d-sample delay plus the encoder's)", SynthesisDelay))
+	}
+	d.feed = newFrameFeed(src, audioStart, end, h, declared)
+	return d, nil
+}
+
+// applyXing sets the trimming and the declared length from the Xing/Info
+// header x found in the first frame (infoLen bytes) and returns the
+// declared number of audio frames, or -1.
+func (d *Decoder) applyXing(x xingHeader, h frameHeader, infoLen int) int64 {
+	spf := int64(h.samplesPerFrame())
+	if !x.hasFrames {
+		d.notes = append(d.notes, "the Xing/Info header does not give the frame count: the audio was measured untrimmed")
+		return -1
+	}
+	frames := int64(x.frames)
+	// An "Xing" (VBR) stream reports its average rate; an "Info" (CBR)
+	// stream keeps the nominal rate of its first frame.
+	if !x.cbr && x.hasBytes && frames > 0 && int64(x.bytes) > int64(infoLen) {
+		seconds := float64(frames*spf) / float64(h.sampleRate)
+		d.info.BitRate = int(float64(int64(x.bytes)-int64(infoLen))*8/seconds + 0.5)
+	}
+	switch {
+	case x.extension && x.extensionCRCOK:
+		total := frames*spf - int64(x.delay) - int64(x.padding)
+		if total < 0 {
+			d.notes = append(d.notes, fmt.Sprintf("the encoder delay (%d) and padding (%d) exceed the %d decoded samples: the audio was measured untrimmed", x.delay, x.padding, frames*spf))
+			d.info.Frames = frames * spf
+			break
+		}
+		d.skip = int64(x.delay) + SynthesisDelay
+		d.remaining = total
+		d.info.Frames = total
+	case x.extension:
+		d.notes = append(d.notes, "the encoder extension of the Xing/Info header fails its CRC: its delay and padding were ignored and the audio was measured untrimmed")
+		d.info.Frames = frames * spf
+	default:
+		d.notes = append(d.notes, "the Xing/Info header has no encoder delay and padding: the audio was measured untrimmed")
+		d.info.Frames = frames * spf
+	}
+	return frames
+}
+
+// Info returns the stream description. Channels is 1 for a mono stream
+// even though go-mp3 decodes every stream to two channels.
+func (d *Decoder) Info() decode.Info { return d.info }
+
+// ReadFrames decodes up to len(dst)/Channels frames into dst, scaled so that
+// the decoder's full scale is ±1. It returns 0, io.EOF at the end; a
+// damaged stream yields its decodable frames, then one
+// *decode.IntegrityError, then io.EOF.
+func (d *Decoder) ReadFrames(dst []float64) (int, error) {
+	ch := d.info.Channels
+	if len(dst)%ch != 0 {
+		return 0, fmt.Errorf("mp3: ReadFrames buffer of %d samples is not a multiple of %d channels", len(dst), ch)
+	}
+	want := len(dst) / ch
+	n := 0
+	for n < want && !d.done {
+		if d.pcmOff == len(d.pcm) && !d.refill() {
+			break
+		}
+		n += d.convert(dst[n*ch:want*ch], ch)
+	}
+	if n > 0 {
+		return n, nil
+	}
+	if d.err != nil {
+		err := d.err
+		d.err = nil
+		return 0, err
+	}
+	return 0, io.EOF
+}
+
+// convert turns buffered PCM into dst after dropping the leading delay and
+// stopping at the declared end; it returns the frames written.
+func (d *Decoder) convert(dst []float64, ch int) int {
+	avail := int64(len(d.pcm)-d.pcmOff) / bytesPerDecodedFrame
+	if d.skip > 0 {
+		drop := min(d.skip, avail)
+		d.skip -= drop
+		d.pcmOff += int(drop) * bytesPerDecodedFrame
+		avail -= drop
+	}
+	take := min(avail, int64(len(dst)/ch))
+	if d.remaining >= 0 {
+		take = min(take, d.remaining)
+		d.remaining -= take
+	}
+	p := d.pcm[d.pcmOff:]
+	for i := range int(take) {
+		for c := range ch {
+			b := p[i*bytesPerDecodedFrame+2*c:]
+			s := int16(uint16(b[0]) | uint16(b[1])<<8)
+			if s >= decoderFullScale || s <= -decoderFullScale {
+				d.clipped++
+			}
+			dst[i*ch+c] = float64(s) / decoderFullScale
+		}
+	}
+	d.pcmOff += int(take) * bytesPerDecodedFrame
+	d.delivered += take
+	if d.remaining == 0 {
+		d.finish()
+	}
+	return int(take)
+}
+
+// refill decodes the next frame into pcm and reports whether it got any.
+func (d *Decoder) refill() bool {
+	d.pcm, d.pcmOff = d.pcm[:cap(d.pcm)], 0
+	n, err := d.decode(d.pcm)
+	d.pcm = d.pcm[:n]
+	if err != nil {
+		if !errors.Is(err, io.EOF) {
+			d.err = err
+		}
+		d.finish()
+	}
+	return n > 0
+}
+
+// decode reads decoded bytes from go-mp3, creating it on first use, and
+// turns its errors and panics into *decode.IntegrityError naming the frame.
+func (d *Decoder) decode(p []byte) (n int, err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			n, err = 0, d.damage(fmt.Sprintf("the MP3 decoder failed on this frame (%v)", r))
+		}
+	}()
+	if d.mp3 == nil {
+		m, err := gomp3.NewDecoder(d.feed)
+		if err != nil {
+			if errors.Is(err, io.EOF) {
+				return 0, io.EOF
+			}
+			return 0, d.damage(fmt.Sprintf("the MP3 decoder rejected the first frame (%v)", err))
+		}
+		d.mp3 = m
+	}
+	n, err = io.ReadFull(d.mp3, p)
+	switch {
+	case err == nil:
+		return n, nil
+	case errors.Is(err, io.EOF), errors.Is(err, io.ErrUnexpectedEOF):
+		return n, io.EOF
+	}
+	return n, d.damage(fmt.Sprintf("the MP3 decoder rejected this frame (%v)", err))
+}
+
+// damage returns an integrity error at the frame being decoded.
+func (d *Decoder) damage(problem string) error {
+	return &decode.IntegrityError{Format: "mp3", Offset: d.feed.frameStart, Problem: problem}
+}
+
+// finish runs once at the end of the delivered audio: it walks the frames
+// left after the declared end and collects what the feed found.
+func (d *Decoder) finish() {
+	if d.done {
+		return
+	}
+	d.done = true
+	if d.err == nil {
+		d.feed.drain()
+		if d.feed.stop != nil {
+			d.err = d.feed.stop
+		}
+	}
+	if d.feed.note != "" {
+		d.notes = append(d.notes, d.feed.note)
+	}
+	f := d.feed
+	if f.declared >= 0 && f.frames > f.declared {
+		d.notes = append(d.notes, fmt.Sprintf("%d audio frames follow the %d the Xing/Info header declares; they were not measured", f.frames-f.declared, f.declared))
+	}
+	if d.err == nil && d.info.Frames >= 0 && d.delivered < d.info.Frames {
+		d.notes = append(d.notes, fmt.Sprintf("the stream decoded to %d samples per channel, %d fewer than its header declares", d.delivered, d.info.Frames-d.delivered))
+	}
+	if f.declared < 0 && f.frames > 0 && f.minBitRate != f.maxBitRate {
+		d.notes = append(d.notes, fmt.Sprintf("variable bit rate (%d–%d kbit/s) without an Xing header: the bit rate shown is that of the first frame", f.minBitRate/1000, f.maxBitRate/1000))
+	}
+}
+
+// Notes returns what decoding found that the user must be told: samples
+// the decoder clipped at full scale, missing gapless information and
+// ignored trailing bytes. Call it after ReadFrames returned io.EOF.
+func (d *Decoder) Notes() []string {
+	notes := append([]string(nil), d.notes...)
+	if d.clipped > 0 {
+		notes = append(notes, fmt.Sprintf("decoder clipped %d samples; true peak is at least 0.0 dBTP (the decoded signal reached or exceeded full scale, where the decoder limits it)", d.clipped))
+	}
+	return notes
+}

@@ -1,0 +1,190 @@
+package mp3
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+
+	"github.com/kweigh/kweigh/decode"
+)
+
+// frameFeed hands the MPEG decoder whole, validated frames and nothing else.
+// go-mp3 silently skips bytes until it finds something that looks like a
+// frame header, and reads trailing tags as audio; frameFeed walks the frames
+// itself, so it knows where every frame starts and stops cleanly at the first
+// byte that is not a frame of the stream. Why it stopped is kept in stop
+// (damage) or note (harmless trailing bytes).
+type frameFeed struct {
+	src   io.ReaderAt
+	in    *bufio.Reader
+	pos   int64 // file offset of the next byte of in
+	end   int64 // file offset where the trailing tags begin
+	first frameHeader
+
+	frame      []byte // the frame being handed out
+	served     int    // bytes of frame already handed out
+	frameStart int64  // file offset of frame
+
+	frames     int64 // audio frames handed out so far
+	bytes      int64 // their total length
+	declared   int64 // audio frames the Xing header declares, -1 if none
+	minBitRate int
+	maxBitRate int
+	done       bool
+	stop       *decode.IntegrityError
+	note       string
+}
+
+// maxFrameLen is the longest frame any valid header describes: Layer II
+// at 160 kbit/s and 8 kHz (MPEG-2.5) with padding, 144 × 160000 / 8000 + 1
+// = 2 881 bytes [calc]. The Layer III streams decoded here stay below
+// 1 441 bytes (320 kbit/s at 32 kHz, padded). FuzzHeader checks the bound.
+const maxFrameLen = 2881
+
+// newFrameFeed returns a feed of the frames between off and end of src,
+// all of which must belong to the stream first describes.
+func newFrameFeed(src io.ReaderAt, off, end int64, first frameHeader, declared int64) *frameFeed {
+	return &frameFeed{
+		src:        src,
+		in:         bufio.NewReaderSize(io.NewSectionReader(src, off, end-off), 64<<10),
+		pos:        off,
+		end:        end,
+		first:      first,
+		frame:      make([]byte, 0, maxFrameLen),
+		declared:   declared,
+		minBitRate: first.bitRate,
+		maxBitRate: first.bitRate,
+		frameStart: off,
+	}
+}
+
+// Read implements io.Reader for go-mp3. It returns io.EOF after the last
+// whole frame of the stream.
+func (f *frameFeed) Read(p []byte) (int, error) {
+	if f.served == len(f.frame) {
+		if !f.next() {
+			return 0, io.EOF
+		}
+	}
+	n := copy(p, f.frame[f.served:])
+	f.served += n
+	return n, nil
+}
+
+// next loads the following frame and reports whether there is one.
+func (f *frameFeed) next() bool {
+	if f.done {
+		return false
+	}
+	off := f.pos
+	if off == f.end {
+		f.finish()
+		return false
+	}
+	f.frame = f.frame[:headerSize]
+	n, _ := io.ReadFull(f.in, f.frame)
+	f.pos += int64(n)
+	h, err := parseHeader(f.frame[:n])
+	if err != nil || !f.first.sameStream(h) || h.freeFormat() {
+		f.notAFrame(off, h, err == nil)
+		return false
+	}
+	size := h.frameLen()
+	if off+int64(size) > f.end {
+		f.stopAt(off, fmt.Sprintf("the last frame is cut short: %d of its %d bytes are present", f.end-off, size))
+		return false
+	}
+	if cap(f.frame) < size {
+		f.frame = append(f.frame, make([]byte, size-len(f.frame))...)
+	}
+	f.frame = f.frame[:size]
+	n, err = io.ReadFull(f.in, f.frame[headerSize:])
+	f.pos += int64(n)
+	if err != nil {
+		f.stopAt(off, fmt.Sprintf("reading the frame: %v", err))
+		return false
+	}
+	f.served = 0
+	f.frameStart = off
+	f.frames++
+	f.bytes += int64(size)
+	f.minBitRate = min(f.minBitRate, h.bitRate)
+	f.maxBitRate = max(f.maxBitRate, h.bitRate)
+	return true
+}
+
+// drain walks the remaining frames without handing them out, so that
+// damage and undeclared frames after the last delivered sample are found.
+func (f *frameFeed) drain() {
+	for f.next() {
+	}
+}
+
+// finish checks a clean end of the stream against the Xing frame count.
+func (f *frameFeed) finish() {
+	f.done = true
+	if f.stop == nil && f.declared >= 0 && f.frames < f.declared {
+		f.stopAt(f.end, fmt.Sprintf("the file ends after %d of the %d audio frames its Xing/Info header declares", f.frames, f.declared))
+	}
+}
+
+// stopAt ends the stream with damage at off.
+func (f *frameFeed) stopAt(off int64, problem string) {
+	f.done = true
+	if f.stop == nil {
+		f.stop = &decode.IntegrityError{Format: "mp3", Offset: off, Problem: problem}
+	}
+}
+
+// notAFrame decides what the bytes at off that are not a frame of the
+// stream mean: damage when frames follow them or the declared frames are not
+// all there, harmless trailing data otherwise.
+func (f *frameFeed) notAFrame(off int64, h frameHeader, validHeader bool) {
+	f.done = true
+	junk := f.end - off
+	if validHeader && !f.first.sameStream(h) && linked(f.src, off, f.end) {
+		f.stopAt(off, fmt.Sprintf("the stream changes from %s %d Hz %d-channel to %s %d Hz %d-channel; only the first part was decoded",
+			f.first.codec(), f.first.sampleRate, f.first.channels(), h.codec(), h.sampleRate, h.channels()))
+		return
+	}
+	if validHeader && h.freeFormat() {
+		f.stopAt(off, "a free-format frame follows; only the frames before it were decoded")
+		return
+	}
+	if resume, ok := f.resync(off + 1); ok {
+		f.stopAt(off, fmt.Sprintf("%d bytes that are not audio frames (frames resume at byte %d); only the frames before them were decoded", resume-off, resume))
+		return
+	}
+	if f.declared >= 0 && f.frames < f.declared {
+		f.stopAt(off, fmt.Sprintf("%d bytes that are not audio frames after %d of the %d declared frames", junk, f.frames, f.declared))
+		return
+	}
+	if f.declared < 0 && junk >= int64(f.first.frameLen()) {
+		f.stopAt(off, fmt.Sprintf("the last %d bytes are not audio frames", junk))
+		return
+	}
+	f.note = fmt.Sprintf("ignored %d bytes at byte %d after the last audio frame: neither MPEG frames nor a known tag", junk, off)
+}
+
+// resync returns the first offset at or after from where frames of the
+// stream link up again.
+func (f *frameFeed) resync(from int64) (int64, bool) {
+	buf := make([]byte, 32<<10)
+	for off := from; off < f.end; {
+		n, _ := f.src.ReadAt(buf[:min(int64(len(buf)), f.end-off)], off)
+		if n == 0 {
+			return 0, false
+		}
+		for i := range n {
+			if buf[i] != 0xFF {
+				continue
+			}
+			p := off + int64(i)
+			if h, ok := readHeader(f.src, p, f.end); ok && f.first.sameStream(h) && linked(f.src, p, f.end) {
+				return p, true
+			}
+		}
+		off += int64(n)
+	}
+	return 0, false
+}
