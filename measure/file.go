@@ -132,10 +132,13 @@ func stream(path string, d decode.Decoder, opt Options) *Measurement {
 		n, err := d.ReadFrames(buf)
 		if n > 0 {
 			block := buf[:n*info.Channels]
-			if i := firstNonFinite(block); i >= 0 {
-				at := frames + int64(i/info.Channels)
-				return fail(fmt.Errorf("sample %d of channel %s (%.3f s) is %v: the file holds invalid floating-point audio and cannot be measured",
-					at, layout[i%info.Channels], float64(at)/float64(info.SampleRate), block[i]))
+			// Only float samples can be NaN or ±Inf.
+			if info.SampleFormat == decode.Float {
+				if i := firstNonFinite(block); i >= 0 {
+					at := frames + int64(i/info.Channels)
+					return fail(fmt.Errorf("sample %d of channel %s (%.3f s) is %v: the file holds invalid floating-point audio and cannot be measured",
+						at, layout[i%info.Channels], float64(at)/float64(info.SampleRate), block[i]))
+				}
 			}
 			meter.Write(block)
 			hyg.write(block)

@@ -107,13 +107,19 @@ func newHygiene(channels, sampleRate, bits int, float bool, layout []string, sil
 func (h *hygiene) write(buf []float64) {
 	nc := h.channels
 	frames := len(buf) / nc
+	if nc == 2 && h.left == 0 && h.right == 1 {
+		h.writeStereo(buf, frames)
+		h.trackLoudness(buf, frames)
+		h.frames += int64(frames)
+		return
+	}
 	lvl := h.clipLevel
 	for c := 0; c < nc; c++ {
 		sum, run := h.sum[c], h.run[c]
 		for i := c; i < len(buf); i += nc {
 			x := buf[i]
 			sum += x
-			if x >= lvl || x <= -lvl {
+			if math.Abs(x) >= lvl {
 				h.clipped++
 				run++
 			} else if run > 0 {
@@ -128,6 +134,59 @@ func (h *hygiene) write(buf []float64) {
 		h.trackPair(buf, frames)
 	}
 	h.frames += int64(frames)
+}
+
+// writeStereo is write for the common L/R file: every probe in one pass
+// over the block, so the samples are loaded once.
+func (h *hygiene) writeStereo(buf []float64, frames int) {
+	lvl := h.clipLevel
+	sumL, sumR := h.sum[0], h.sum[1]
+	runL, runR := h.run[0], h.run[1]
+	maxDiff := h.maxDiff
+	for f := 0; f < frames; {
+		w := &h.window
+		k := min(frames-f, int(h.windowFrames-int64(w.n)))
+		sl, sr, sll, srr, slr := w.sl, w.sr, w.sll, w.srr, w.slr
+		seg := buf[2*f : 2*(f+k)]
+		for i := 0; i+1 < len(seg); i += 2 {
+			l, r := seg[i], seg[i+1]
+			sl += l
+			sr += r
+			sll += l * l
+			srr += r * r
+			slr += l * r
+			if d := math.Abs(l - r); d > maxDiff {
+				maxDiff = d
+			}
+			if math.Abs(l) >= lvl || math.Abs(r) >= lvl || runL > 0 || runR > 0 {
+				runL = h.clipStep(l, runL)
+				runR = h.clipStep(r, runR)
+			}
+		}
+		sumL += sl - w.sl
+		sumR += sr - w.sr
+		w.sl, w.sr, w.sll, w.srr, w.slr = sl, sr, sll, srr, slr
+		w.n += float64(k)
+		f += k
+		if int64(w.n) == h.windowFrames {
+			h.closeWindow()
+		}
+	}
+	h.sum[0], h.sum[1] = sumL, sumR
+	h.run[0], h.run[1] = runL, runR
+	h.maxDiff = maxDiff
+}
+
+// clipStep advances one channel's clipping run by one sample.
+func (h *hygiene) clipStep(x float64, run int64) int64 {
+	if math.Abs(x) >= h.clipLevel {
+		h.clipped++
+		return run + 1
+	}
+	if run > 0 {
+		h.endRun(run)
+	}
+	return 0
 }
 
 func (h *hygiene) endRun(run int64) {
