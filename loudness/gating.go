@@ -48,25 +48,28 @@ func gatedLoudness(z []float64) Reading {
 		return undefined(whyTooShortBlock)
 	}
 	abs := energyOf(absoluteGate)
-	sum, n := 0.0, 0
+	mean, n := meanAbove(z, abs)
+	if n == 0 {
+		return undefined(whyBelowGate)
+	}
+	mean, _ = meanAbove(z, max(abs, mean*math.Pow(10, relativeGate/10)))
+	return defined(loudnessOf(mean))
+}
+
+// meanAbove returns the mean of the values of z strictly above gate, and
+// how many there are: the power mean of the blocks a gate keeps.
+func meanAbove(z []float64, gate float64) (mean float64, n int) {
+	sum := 0.0
 	for _, v := range z {
-		if v > abs {
+		if v > gate {
 			sum += v
 			n++
 		}
 	}
 	if n == 0 {
-		return undefined(whyBelowGate)
+		return 0, 0
 	}
-	rel := max(abs, sum/float64(n)*math.Pow(10, relativeGate/10))
-	sum, n = 0, 0
-	for _, v := range z {
-		if v > rel {
-			sum += v
-			n++
-		}
-	}
-	return defined(loudnessOf(sum / float64(n)))
+	return sum / float64(n), n
 }
 
 // loudnessRange is EBU Tech 3342 over the weighted mean squares z of the
@@ -81,17 +84,11 @@ func loudnessRange(z []float64) Reading {
 		return undefined(whyTooShortWindow)
 	}
 	abs := energyOf(absoluteGate)
-	sum, n := 0.0, 0
-	for _, v := range z {
-		if v > abs {
-			sum += v
-			n++
-		}
-	}
+	mean, n := meanAbove(z, abs)
 	if n == 0 {
 		return undefined(whyRangeBelowGate)
 	}
-	rel := max(abs, sum/float64(n)*math.Pow(10, rangeRelGate/10))
+	rel := max(abs, mean*math.Pow(10, rangeRelGate/10))
 	kept := make([]float64, 0, n)
 	for _, v := range z {
 		if v > rel {
