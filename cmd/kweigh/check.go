@@ -19,17 +19,16 @@ import (
 
 func checkCommand() *cli.Command {
 	flags := append(batchFlags(reports.CheckFormats()),
-		&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME`: a built-in id (see 'kweigh specs') or a TOML file; a kweigh.toml in a file's folder (or a folder above it, up to the path named) takes precedence"},
+		&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` for every file: a built-in id (see 'kweigh specs') or a TOML file; without it each file is judged by the kweigh.toml of its folder (or the nearest folder above, up to the path named)"},
 		&cli.BoolFlag{Name: "strict", Usage: "treat warnings as failures (exit 1)"},
-		&cli.BoolFlag{Name: "ignore-folder-specs", Usage: "use --spec for every file, even where a folder has a kweigh.toml"},
 	)
 	return &cli.Command{
 		Name:      "check",
 		Usage:     "judge files against a delivery spec: verdict, reasons and the gain that fixes them",
 		ArgsUsage: "FILE|DIR|GLOB...",
 		Description: "Measures every audio file named (folders recursively) and judges it against its spec: the\n" +
-			"spec given by --spec, or the kweigh.toml of the file's folder, so one run can check deliveries\n" +
-			"for several outlets. Every check is pass, warn or fail, with the measured value, the limit and\n" +
+			"spec given by --spec or, without it, the kweigh.toml of the file's folder, so one run can check\n" +
+			"deliveries for several outlets. Every check is pass, warn or fail, with the measured value, the limit and\n" +
 			"a reason; loudness failures come with the gain that reaches the target and whether a limiter\n" +
 			"is needed.\n\n" +
 			"Raising gain raises level: audition corrected files at a safe monitoring level. A pass is not\n" +
@@ -43,7 +42,7 @@ func checkCommand() *cli.Command {
 				return err
 			}
 			applyFlacFlags(cmd)
-			co := checkOptions{batchOptions: o, strict: cmd.Bool("strict"), folderSpecs: !cmd.Bool("ignore-folder-specs")}
+			co := checkOptions{batchOptions: o, strict: cmd.Bool("strict")}
 			if name := cmd.String("spec"); name != "" {
 				if co.spec, err = loadSpec(name); err != nil {
 					return err
@@ -57,19 +56,18 @@ func checkCommand() *cli.Command {
 // checkOptions are check's options beyond the batch ones.
 type checkOptions struct {
 	batchOptions
-	spec        *rules.Spec // from --spec; nil when not given
-	strict      bool
-	folderSpecs bool
+	spec   *rules.Spec // from --spec; nil when not given
+	strict bool
 }
 
-// specFinder resolves each file's spec: the nearest kweigh.toml between the
-// file and the path it was found under, else --spec. Parsed folder specs
-// are cached; a broken one is reported for each file it governs.
+// specFinder resolves each file's spec: --spec when given (an explicit
+// choice wins), else the nearest kweigh.toml between the file and the path
+// it was found under. Parsed folder specs are cached; a broken one is
+// reported for each file it governs.
 type specFinder struct {
-	fallback *rules.Spec
-	enabled  bool
-	mu       sync.Mutex
-	cache    map[string]specOrError
+	given *rules.Spec
+	mu    sync.Mutex
+	cache map[string]specOrError
 }
 
 // noSpecError is a file with neither a folder spec nor --spec.
@@ -85,27 +83,25 @@ type specOrError struct {
 }
 
 func (f *specFinder) find(t target) (*rules.Spec, error) {
-	if f.enabled {
-		dir := filepath.Dir(t.path)
-		root := filepath.Clean(t.root)
-		for {
-			if s, ok := f.load(filepath.Join(dir, folderSpecName)); ok {
-				return s.spec, s.err
-			}
-			if dir == root || !strings.HasPrefix(dir, root) {
-				break
-			}
-			parent := filepath.Dir(dir)
-			if parent == dir {
-				break
-			}
-			dir = parent
+	if f.given != nil {
+		return f.given, nil
+	}
+	dir := filepath.Dir(t.path)
+	root := filepath.Clean(t.root)
+	for {
+		if s, ok := f.load(filepath.Join(dir, folderSpecName)); ok {
+			return s.spec, s.err
 		}
+		if dir == root || !strings.HasPrefix(dir, root) {
+			break
+		}
+		parent := filepath.Dir(dir)
+		if parent == dir {
+			break
+		}
+		dir = parent
 	}
-	if f.fallback == nil {
-		return nil, noSpecError{t.path}
-	}
-	return f.fallback, nil
+	return nil, noSpecError{t.path}
 }
 
 func (f *specFinder) load(path string) (specOrError, bool) {
@@ -128,7 +124,7 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 	if err != nil {
 		return usageError{err}
 	}
-	finder := &specFinder{fallback: o.spec, enabled: o.folderSpecs, cache: map[string]specOrError{}}
+	finder := &specFinder{given: o.spec, cache: map[string]specOrError{}}
 	if o.spec == nil {
 		// When no file has a spec the command line is wrong: say so once
 		// instead of failing every file. Files without one among others

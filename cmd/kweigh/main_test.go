@@ -280,11 +280,10 @@ func TestUnreadableFileDoesNotStopBatch(t *testing.T) {
 	}
 }
 
-func TestFolderSpecAndFallback(t *testing.T) {
-	// A folder without kweigh.toml uses --spec; without --spec it is a
-	// usage error.
+func TestFolderSpecAndExplicitSpec(t *testing.T) {
 	dir := t.TempDir()
 	copyFile(t, filepath.Join(demoDir, "harbourlight-radio", "tidewater-evenings-ep09.wav"), filepath.Join(dir, "ep09.wav"))
+	// No spec anywhere: a usage error that says what to do.
 	if code, _, errOut := kweigh(t, "check", dir); code != exitTrouble || !strings.Contains(errOut, "--spec") {
 		t.Errorf("no spec: exit %d, stderr %q", code, errOut)
 	}
@@ -292,13 +291,29 @@ func TestFolderSpecAndFallback(t *testing.T) {
 	if code, out, _ := kweigh(t, "check", "--spec", "ebu-r128", dir); code != exitOK {
 		t.Errorf("--spec ebu-r128: exit %d\n%s", code, out)
 	}
-	// A house spec in the folder takes precedence and rejects 44.1 kHz.
+	// A house spec in the folder applies when no --spec is given, and
+	// rejects 44.1 kHz.
 	copyFile(t, filepath.Join(demoDir, "harbourlight-radio", "kweigh.toml"), filepath.Join(dir, "kweigh.toml"))
-	if code, out, _ := kweigh(t, "check", "--spec", "ebu-r128", dir); code != exitFailed || !strings.Contains(out, "sample_rate") {
+	if code, out, _ := kweigh(t, "check", dir); code != exitFailed || !strings.Contains(out, "sample_rate") {
 		t.Errorf("folder spec: exit %d\n%s", code, out)
 	}
-	if code, _, _ := kweigh(t, "check", "--spec", "ebu-r128", "--ignore-folder-specs", dir); code != exitOK {
-		t.Errorf("--ignore-folder-specs: exit %d", code)
+	// An explicit --spec wins over the folder's.
+	if code, out, _ := kweigh(t, "check", "--spec", "ebu-r128", dir); code != exitOK {
+		t.Errorf("--spec over a folder spec: exit %d\n%s", code, out)
+	}
+	// A folder spec further up the tree governs the folders below it.
+	sub := filepath.Join(dir, "week-48")
+	os.Mkdir(sub, 0o755)
+	copyFile(t, filepath.Join(dir, "ep09.wav"), filepath.Join(sub, "ep09-again.wav"))
+	code, out, _ := kweigh(t, "check", "--format", "json", dir)
+	var doc checkDoc
+	if err := json.Unmarshal([]byte(out), &doc); err != nil || code != exitFailed {
+		t.Fatalf("exit %d, %v", code, err)
+	}
+	for _, f := range doc.Files {
+		if f.Spec != "harbourlight-radio" {
+			t.Errorf("%s judged by %q, want the house spec of the folder above", f.Path, f.Spec)
+		}
 	}
 }
 
