@@ -3,6 +3,8 @@ package loudness
 import (
 	"fmt"
 	"testing"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // benchSeconds is the length of the benchmark signal.
@@ -26,26 +28,10 @@ func benchSignals() []struct {
 	}
 }
 
-// realtimeClock starts measuring a benchmark loop; call report after it.
-// It reports how many seconds of audio one second of work measures: against
-// wall time ("x-realtime") and against the CPU time of the benchmark's own
-// thread ("x-realtime-cpu"; Linux only), which on a shared machine is the
-// fair one-core figure.
-func realtimeClock(b *testing.B) (report func(audioSeconds float64)) {
-	unlock := lockThread()
-	b.ResetTimer()
-	start := threadCPU()
-	return func(audioSeconds float64) {
-		cpu := threadCPU() - start
-		b.StopTimer()
-		unlock()
-		audio := audioSeconds * float64(b.N)
-		b.ReportMetric(audio/b.Elapsed().Seconds(), "x-realtime")
-		if cpu > 0 {
-			b.ReportMetric(audio/cpu.Seconds(), "x-realtime-cpu")
-		}
-	}
-}
+// The benchmarks report how many seconds of audio one second of work
+// measures: against wall time ("x-realtime") and against the CPU time of the
+// benchmark's own thread ("x-realtime-cpu"; Linux only), which on a shared
+// machine is the fair one-core figure (audiotest.StartRealtimeThread).
 
 // BenchmarkMeter48kStereo is the whole measurement (K-weighting, gating,
 // momentary, short-term, loudness range, 4× true peak, sample peak) of
@@ -58,7 +44,7 @@ func BenchmarkMeter48kStereo(b *testing.B) {
 				b.Fatal(err)
 			}
 			b.SetBytes(int64(len(sig.frames) * 3)) // as 24-bit PCM
-			report := realtimeClock(b)
+			clock := audiotest.StartRealtimeThread(b)
 			for range b.N {
 				m.Reset()
 				for f := sig.frames; len(f) > 0; {
@@ -71,7 +57,7 @@ func BenchmarkMeter48kStereo(b *testing.B) {
 					b.Fatal("no integrated loudness")
 				}
 			}
-			report(benchSeconds)
+			clock.Report(benchSeconds)
 		})
 	}
 }
@@ -82,7 +68,7 @@ func BenchmarkKWeighting48k(b *testing.B) {
 	x := musicLike(1, benchSeconds*48000, 48000)
 	k := NewKWeighting(48000)
 	b.SetBytes(int64(len(x) * 8))
-	report := realtimeClock(b)
+	clock := audiotest.StartRealtimeThread(b)
 	var sink float64
 	for range b.N {
 		for f := x; len(f) > 0; {
@@ -92,7 +78,7 @@ func BenchmarkKWeighting48k(b *testing.B) {
 		}
 	}
 	_ = sink
-	report(benchSeconds) // per channel
+	clock.Report(benchSeconds) // per channel
 }
 
 // BenchmarkTruePeak is the true-peak detector alone on one channel, at 4×
@@ -112,7 +98,7 @@ func BenchmarkTruePeak(b *testing.B) {
 					b.Fatal(err)
 				}
 				b.SetBytes(int64(len(sig.x) * 8))
-				report := realtimeClock(b)
+				clock := audiotest.StartRealtimeThread(b)
 				for range b.N {
 					tp.Reset()
 					// A fresh floor per 100 ms, as the meter does.
@@ -126,7 +112,7 @@ func BenchmarkTruePeak(b *testing.B) {
 						b.Fatal("no peak")
 					}
 				}
-				report(benchSeconds) // per channel
+				clock.Report(benchSeconds) // per channel
 			})
 		}
 	}

@@ -1,10 +1,11 @@
 package aiff
 
 import (
-	"bytes"
-	"io"
 	"math/rand"
 	"testing"
+
+	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // benchmarkDecode decodes 10 s of 48 kHz stereo in the given coding from
@@ -20,34 +21,9 @@ func benchmarkDecode(b *testing.B, spec aiffSpec) {
 			spec.ints[i] = int32(r.Intn(1<<spec.bits) - 1<<(spec.bits-1))
 		}
 	}
-	data := buildAIFF(spec)
-	buf := make([]float64, 4096*2)
-	var decoded int64
-	b.SetBytes(int64(len(data)))
-	b.ReportAllocs()
-	b.ResetTimer()
-	cpuBefore := processCPU()
-	for range b.N {
-		d, err := NewDecoder(bytes.NewReader(data), int64(len(data)))
-		if err != nil {
-			b.Fatal(err)
-		}
-		for {
-			n, err := d.ReadFrames(buf)
-			decoded += int64(n)
-			if err == io.EOF {
-				break
-			}
-			if err != nil {
-				b.Fatal(err)
-			}
-		}
-	}
-	audio := float64(decoded) / 48000
-	b.ReportMetric(audio/b.Elapsed().Seconds(), "x-realtime")
-	if cpu := processCPU() - cpuBefore; cpuBefore > 0 && cpu > 0 {
-		b.ReportMetric(audio/cpu.Seconds(), "x-realtime-cpu")
-	}
+	audiotest.RunDecodeBenchmark(b, buildAIFF(spec), func(src decode.Source, size int64) (*Decoder, error) {
+		return NewDecoder(src, size)
+	})
 }
 
 func BenchmarkDecode48kStereo24(b *testing.B) { benchmarkDecode(b, aiffSpec{bits: 24}) }

@@ -6,12 +6,14 @@ import (
 	"runtime"
 	"strings"
 	"testing"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 func TestBadHeaders(t *testing.T) {
-	st := source(t, "stereo16-44k.wav")
+	st := audiotest.FixtureWAV(t, "stereo16-44k.wav")
 	good := func() aiffSpec {
-		return aiffSpec{aifc: true, channels: 2, bits: 16, rate: 44100, ints: st.samples[:200], commFrames: -1, formSize: -1}
+		return aiffSpec{aifc: true, channels: 2, bits: 16, rate: 44100, ints: st.Samples[:200], commFrames: -1, formSize: -1}
 	}
 	file := func(edit func(*aiffSpec)) []byte {
 		s := good()
@@ -68,10 +70,10 @@ func TestBadHeaders(t *testing.T) {
 }
 
 func TestTruncatedSSND(t *testing.T) {
-	st := source(t, "stereo16-44k.wav")
-	full := buildAIFF(aiffSpec{channels: 2, bits: 16, rate: 44100, ints: st.samples, commFrames: -1, formSize: -1})
-	dataStart := len(full) - len(st.samples)*2 // 16-bit samples end the file
-	want := st.scaled()
+	st := audiotest.FixtureWAV(t, "stereo16-44k.wav")
+	full := buildAIFF(aiffSpec{channels: 2, bits: 16, rate: 44100, ints: st.Samples, commFrames: -1, formSize: -1})
+	dataStart := len(full) - len(st.Samples)*2 // 16-bit samples end the file
+	want := st.Scaled()
 	for _, cut := range []int{dataStart - 8, dataStart - 1, dataStart, dataStart + 1, dataStart + 3, dataStart + 4, dataStart + 4001, len(full) - 1} {
 		t.Run(fmt.Sprint(cut), func(t *testing.T) {
 			got, err, d := decodeAll(t, full[:cut], 1000)

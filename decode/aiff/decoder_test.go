@@ -1,13 +1,13 @@
 package aiff
 
 import (
-	"os"
 	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 func TestSoxFixtures(t *testing.T) {
@@ -27,11 +27,7 @@ func TestSoxFixtures(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.file, func(t *testing.T) {
-			data, err := os.ReadFile(filepath.Join("testdata", tc.file))
-			if err != nil {
-				t.Fatal(err)
-			}
-			got, err, d := decodeAll(t, data, 1000)
+			got, err, d := decodeAll(t, audiotest.Fixture(t, tc.file), 1000)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -40,7 +36,7 @@ func TestSoxFixtures(t *testing.T) {
 				info.Channels != tc.channels || info.BitsPerSample != tc.bits || info.Frames != tc.frames || info.Layout != nil {
 				t.Errorf("info = %+v", info)
 			}
-			want := source(t, tc.wav).scaled()
+			want := audiotest.FixtureWAV(t, tc.wav).Scaled()
 			if !reflect.DeepEqual(got, want) {
 				t.Errorf("samples differ from %s (%d vs %d samples)", tc.wav, len(got), len(want))
 			}
@@ -52,8 +48,8 @@ func TestVariantsEqualWAV(t *testing.T) {
 	// Every coding the package supports, written by buildAIFF from the
 	// integer samples of a source WAV; each must decode to the WAV's
 	// samples exactly (tolerance 0).
-	st := source(t, "stereo16-44k.wav")
-	mono := source(t, "mono24-48k.wav")
+	st := audiotest.FixtureWAV(t, "stereo16-44k.wav")
+	mono := audiotest.FixtureWAV(t, "mono24-48k.wav")
 	shift := func(v []int32, by uint) []int32 {
 		out := make([]int32, len(v))
 		for i, x := range v {
@@ -61,17 +57,17 @@ func TestVariantsEqualWAV(t *testing.T) {
 		}
 		return out
 	}
-	asFloat := func(w *sourceWAV) []float64 { return w.scaled() }
-	to8 := make([]int32, len(st.samples)) // 16-bit samples with the low byte dropped
-	want8 := make([]float64, len(st.samples))
-	for i, v := range st.samples {
+	asFloat := func(w *audiotest.SourceWAV) []float64 { return w.Scaled() }
+	to8 := make([]int32, len(st.Samples)) // 16-bit samples with the low byte dropped
+	want8 := make([]float64, len(st.Samples))
+	for i, v := range st.Samples {
 		to8[i] = v >> 8
 		want8[i] = float64(v>>8) / 128
 	}
 	// 12-bit samples, left-justified in 16 (AIFF 1.3, "Sample Points").
-	left12 := make([]int32, len(st.samples))
-	want12 := make([]float64, len(st.samples))
-	for i, v := range st.samples {
+	left12 := make([]int32, len(st.Samples))
+	want12 := make([]float64, len(st.Samples))
+	for i, v := range st.Samples {
 		left12[i] = v &^ 0xF
 		want12[i] = float64(v>>4) / (1 << 11) // value / 2^(bits-1)
 	}
@@ -80,21 +76,21 @@ func TestVariantsEqualWAV(t *testing.T) {
 		spec aiffSpec
 		want []float64
 	}{
-		{"AIFF 16", aiffSpec{channels: 2, bits: 16, rate: 44100, ints: st.samples}, st.scaled()},
-		{"AIFF 24", aiffSpec{channels: 1, bits: 24, rate: 48000, ints: mono.samples}, mono.scaled()},
-		{"AIFF 32", aiffSpec{channels: 1, bits: 32, rate: 48000, ints: shift(mono.samples, 8)}, mono.scaled()},
+		{"AIFF 16", aiffSpec{channels: 2, bits: 16, rate: 44100, ints: st.Samples}, st.Scaled()},
+		{"AIFF 24", aiffSpec{channels: 1, bits: 24, rate: 48000, ints: mono.Samples}, mono.Scaled()},
+		{"AIFF 32", aiffSpec{channels: 1, bits: 32, rate: 48000, ints: shift(mono.Samples, 8)}, mono.Scaled()},
 		{"AIFF 8", aiffSpec{channels: 2, bits: 8, rate: 44100, ints: to8}, want8},
 		{"AIFF 12 left-justified", aiffSpec{channels: 2, bits: 12, rate: 44100, ints: left12}, want12},
-		{"AIFC NONE 16", aiffSpec{aifc: true, channels: 2, bits: 16, rate: 44100, ints: st.samples}, st.scaled()},
-		{"AIFC twos 24", aiffSpec{aifc: true, compression: "twos", channels: 1, bits: 24, rate: 48000, ints: mono.samples}, mono.scaled()},
-		{"AIFC sowt 16", aiffSpec{aifc: true, compression: "sowt", channels: 2, bits: 16, rate: 44100, ints: st.samples}, st.scaled()},
-		{"AIFC sowt 24", aiffSpec{aifc: true, compression: "sowt", channels: 1, bits: 24, rate: 48000, ints: mono.samples}, mono.scaled()},
-		{"AIFC sowt 32", aiffSpec{aifc: true, compression: "sowt", channels: 1, bits: 32, rate: 48000, ints: shift(mono.samples, 8)}, mono.scaled()},
+		{"AIFC NONE 16", aiffSpec{aifc: true, channels: 2, bits: 16, rate: 44100, ints: st.Samples}, st.Scaled()},
+		{"AIFC twos 24", aiffSpec{aifc: true, compression: "twos", channels: 1, bits: 24, rate: 48000, ints: mono.Samples}, mono.Scaled()},
+		{"AIFC sowt 16", aiffSpec{aifc: true, compression: "sowt", channels: 2, bits: 16, rate: 44100, ints: st.Samples}, st.Scaled()},
+		{"AIFC sowt 24", aiffSpec{aifc: true, compression: "sowt", channels: 1, bits: 24, rate: 48000, ints: mono.Samples}, mono.Scaled()},
+		{"AIFC sowt 32", aiffSpec{aifc: true, compression: "sowt", channels: 1, bits: 32, rate: 48000, ints: shift(mono.Samples, 8)}, mono.Scaled()},
 		{"AIFC sowt 8", aiffSpec{aifc: true, compression: "sowt", channels: 2, bits: 8, rate: 44100, ints: to8}, want8},
-		{"AIFC fl32", aiffSpec{aifc: true, compression: "fl32", channels: 2, bits: 32, rate: 44100, floats: asFloat(st)}, st.scaled()},
-		{"AIFC FL32", aiffSpec{aifc: true, compression: "FL32", channels: 1, bits: 32, rate: 48000, floats: asFloat(mono)}, mono.scaled()},
-		{"AIFC fl64", aiffSpec{aifc: true, compression: "fl64", channels: 1, bits: 64, rate: 48000, floats: asFloat(mono)}, mono.scaled()},
-		{"AIFC FL64", aiffSpec{aifc: true, compression: "FL64", channels: 2, bits: 64, rate: 44100, floats: asFloat(st)}, st.scaled()},
+		{"AIFC fl32", aiffSpec{aifc: true, compression: "fl32", channels: 2, bits: 32, rate: 44100, floats: asFloat(st)}, st.Scaled()},
+		{"AIFC FL32", aiffSpec{aifc: true, compression: "FL32", channels: 1, bits: 32, rate: 48000, floats: asFloat(mono)}, mono.Scaled()},
+		{"AIFC fl64", aiffSpec{aifc: true, compression: "fl64", channels: 1, bits: 64, rate: 48000, floats: asFloat(mono)}, mono.Scaled()},
+		{"AIFC FL64", aiffSpec{aifc: true, compression: "FL64", channels: 2, bits: 64, rate: 44100, floats: asFloat(st)}, st.Scaled()},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -122,9 +118,9 @@ func TestStructureVariants(t *testing.T) {
 	// Legal layouts a reader must accept (AIFF 1.3: chunks in any order,
 	// padded to even length, unknown chunks skipped, SSND offset/blockSize,
 	// FORM size of a file still being written).
-	st := source(t, "stereo16-44k.wav")
+	st := audiotest.FixtureWAV(t, "stereo16-44k.wav")
 	base := func() aiffSpec {
-		return aiffSpec{aifc: true, channels: 2, bits: 16, rate: 44100, ints: st.samples, commFrames: -1, formSize: -1}
+		return aiffSpec{aifc: true, channels: 2, bits: 16, rate: 44100, ints: st.Samples, commFrames: -1, formSize: -1}
 	}
 	tests := []struct {
 		name   string
@@ -155,7 +151,7 @@ func TestStructureVariants(t *testing.T) {
 			if d.Info().Frames != tc.frames || len(got) != tc.n*2 {
 				t.Errorf("Frames %d, delivered %d; want %d, %d", d.Info().Frames, len(got)/2, tc.frames, tc.n)
 			}
-			if !reflect.DeepEqual(got, st.scaled()[:len(got)]) {
+			if !reflect.DeepEqual(got, st.Scaled()[:len(got)]) {
 				t.Error("samples differ from the source")
 			}
 			notes := strings.Join(d.Notes(), "\n")
@@ -177,7 +173,7 @@ func TestRegistry(t *testing.T) {
 		}
 		f.Close()
 	}
-	wav, _ := os.ReadFile(filepath.Join("testdata", "stereo16-44k.wav"))
+	wav := audiotest.Fixture(t, "stereo16-44k.wav")
 	if match(strings.NewReader(string(wav)), int64(len(wav))) {
 		t.Error("a WAV file matched as AIFF")
 	}
@@ -186,10 +182,10 @@ func TestRegistry(t *testing.T) {
 func TestFORMSizeTooSmall(t *testing.T) {
 	// A FORM size of 4 (only the form type) from a writer that never
 	// updated it: the chunks after it are still found.
-	st := source(t, "stereo16-44k.wav")
-	data := buildAIFF(aiffSpec{channels: 2, bits: 16, rate: 44100, ints: st.samples, commFrames: -1, formSize: 4})
+	st := audiotest.FixtureWAV(t, "stereo16-44k.wav")
+	data := buildAIFF(aiffSpec{channels: 2, bits: 16, rate: 44100, ints: st.Samples, commFrames: -1, formSize: 4})
 	got, err, _ := decodeAll(t, data, 1000)
-	if err != nil || len(got) != len(st.samples) {
-		t.Fatalf("err %v, %d samples; want the %d of the file", err, len(got), len(st.samples))
+	if err != nil || len(got) != len(st.Samples) {
+		t.Fatalf("err %v, %d samples; want the %d of the file", err, len(got), len(st.Samples))
 	}
 }

@@ -2,36 +2,14 @@ package aiff
 
 import (
 	"fmt"
-	"io"
 	"path/filepath"
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
 	_ "github.com/kweigh/kweigh/decode/wav"
+	"github.com/kweigh/kweigh/internal/audiotest"
 	"github.com/kweigh/kweigh/loudness"
 )
-
-func openAll(t *testing.T, name string) ([]float64, decode.Info) {
-	t.Helper()
-	f, err := decode.Open(filepath.Join("testdata", name))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	info := f.Info()
-	buf := make([]float64, 3000*info.Channels)
-	var out []float64
-	for {
-		n, err := f.ReadFrames(buf)
-		out = append(out, buf[:n*info.Channels]...)
-		if err == io.EOF {
-			return out, info
-		}
-		if err != nil {
-			t.Fatalf("%s: %v", name, err)
-		}
-	}
-}
 
 // TestEqualToWAVReader decodes each sox-made AIFF/AIFF-C fixture and its
 // source WAV with kweigh's own readers (decode/aiff, decode/wav): the
@@ -44,8 +22,8 @@ func TestEqualToWAVReader(t *testing.T) {
 		{"mono24-48k.aiff", "mono24-48k.wav"},
 	} {
 		t.Run(tc.aiff, func(t *testing.T) {
-			as, ainfo := openAll(t, tc.aiff)
-			ws, winfo := openAll(t, tc.wav)
+			as, ainfo := audiotest.DecodeFile(t, filepath.Join("testdata", tc.aiff))
+			ws, winfo := audiotest.DecodeFile(t, filepath.Join("testdata", tc.wav))
 			if fmt.Sprint(as) != fmt.Sprint(ws) {
 				t.Fatalf("samples differ (%d vs %d)", len(as), len(ws))
 			}

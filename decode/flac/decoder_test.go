@@ -9,11 +9,12 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // The expected stream properties are the parameters make-fixtures.sh gave
 // sox (rate, bits, channels, seconds × rate); the expected samples are the
-// source WAV's, read by readSourceWAV.
+// source WAV's, read by audiotest.ReadSourceWAV.
 var sourceFixtures = []struct {
 	flac, wav            string
 	rate, channels, bits int
@@ -30,11 +31,8 @@ var sourceFixtures = []struct {
 func TestDecodeEqualsSourceWAV(t *testing.T) {
 	for _, tc := range sourceFixtures {
 		t.Run(tc.flac, func(t *testing.T) {
-			src, err := readSourceWAV(filepath.Join("testdata", tc.wav))
-			if err != nil {
-				t.Fatal(err)
-			}
-			data := fixture(t, tc.flac)
+			src := audiotest.FixtureWAV(t, tc.wav)
+			data := audiotest.Fixture(t, tc.flac)
 			// 4097 frames: not a multiple of any FLAC block size, so
 			// deliveries straddle frame boundaries.
 			got, err, d := decodeAll(t, data, DefaultOptions(), 4097)
@@ -61,7 +59,7 @@ func TestDecodeEqualsSourceWAV(t *testing.T) {
 			if !d.MD5Verified() {
 				t.Error("MD5 not verified on a clean file")
 			}
-			want := src.scaled()
+			want := src.Scaled()
 			if len(got) != len(want) {
 				t.Fatalf("decoded %d samples, source WAV has %d", len(got), len(want))
 			}
@@ -76,7 +74,7 @@ func TestDecodeEqualsSourceWAV(t *testing.T) {
 }
 
 func TestReadSizesAgree(t *testing.T) {
-	data := fixture(t, "stereo24-48k.flac")
+	data := audiotest.Fixture(t, "stereo24-48k.flac")
 	whole, err, _ := decodeAll(t, data, DefaultOptions(), 1<<16)
 	if err != nil {
 		t.Fatal(err)
@@ -106,7 +104,7 @@ func TestDetectedThroughRegistry(t *testing.T) {
 }
 
 func TestID3v2Prefix(t *testing.T) {
-	data := fixture(t, "mono8-8k.flac")
+	data := audiotest.Fixture(t, "mono8-8k.flac")
 	// ID3v2.4 header (ID3v2.4 structure, section 3.1): "ID3", version 4.0,
 	// flags 0, synchsafe size 20, then 20 bytes of padding.
 	tag := append([]byte{'I', 'D', '3', 4, 0, 0, 0, 0, 0, 20}, make([]byte, 20)...)
@@ -132,8 +130,8 @@ func TestMatch(t *testing.T) {
 		data []byte
 		want bool
 	}{
-		{"flac", fixture(t, "mono8-8k.flac"), true},
-		{"wav", fixture(t, "mono8-8k.wav"), false},
+		{"flac", audiotest.Fixture(t, "mono8-8k.flac"), true},
+		{"wav", audiotest.Fixture(t, "mono8-8k.wav"), false},
 		{"empty", nil, false},
 		{"short", []byte("fLa"), false},
 		{"id3 without flac", append([]byte{'I', 'D', '3', 4, 0, 0, 0, 0, 0, 4}, "RIFFxxxxWAVE"...), false},
@@ -147,7 +145,7 @@ func TestMatch(t *testing.T) {
 }
 
 func TestThirtyTwoBitUnsupported(t *testing.T) {
-	data := fixture(t, "mono32-48k.flac")
+	data := audiotest.Fixture(t, "mono32-48k.flac")
 	_, err := NewDecoder(bytes.NewReader(data), int64(len(data)), DefaultOptions())
 	var ue *decode.UnsupportedError
 	if !errors.As(err, &ue) {
@@ -159,7 +157,7 @@ func TestThirtyTwoBitUnsupported(t *testing.T) {
 }
 
 func TestNotFLAC(t *testing.T) {
-	data := fixture(t, "mono8-8k.wav")
+	data := audiotest.Fixture(t, "mono8-8k.wav")
 	_, err := NewDecoder(bytes.NewReader(data), int64(len(data)), DefaultOptions())
 	if !isFormat(err) {
 		t.Fatalf("err = %v, want *decode.FormatError", err)

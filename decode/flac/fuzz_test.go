@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // FuzzFLAC feeds arbitrary bytes to the wrapper. Whatever the input, the
@@ -15,7 +16,7 @@ import (
 // The seed corpus is in testdata/fuzz/FuzzFLAC plus the small fixtures.
 func FuzzFLAC(f *testing.F) {
 	for _, name := range []string{"mono8-8k.flac", "mono16-24k.flac"} {
-		f.Add(fixture(f, name))
+		f.Add(audiotest.Fixture(f, name))
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
 		if !match(bytes.NewReader(data), int64(len(data))) {

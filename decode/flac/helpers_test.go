@@ -3,22 +3,11 @@ package flac
 import (
 	"bytes"
 	"errors"
-	"io"
-	"os"
-	"path/filepath"
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
-
-func fixture(t testing.TB, name string) []byte {
-	t.Helper()
-	b, err := os.ReadFile(filepath.Join("testdata", name))
-	if err != nil {
-		t.Fatal(err)
-	}
-	return b
-}
 
 // decodeAll decodes data with the given options, reading blockFrames frames
 // at a time, and returns the samples, the first non-EOF error and the
@@ -29,27 +18,8 @@ func decodeAll(t testing.TB, data []byte, opts Options, blockFrames int) ([]floa
 	if err != nil {
 		return nil, err, nil
 	}
-	ch := d.Info().Channels
-	buf := make([]float64, blockFrames*ch)
-	var out []float64
-	var firstErr error
-	for calls := 0; ; calls++ {
-		if calls > 1<<22 {
-			t.Fatal("ReadFrames never reached io.EOF")
-		}
-		n, err := d.ReadFrames(buf)
-		out = append(out, buf[:n*ch]...)
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			if firstErr != nil {
-				t.Fatalf("second error after %v: %v (want io.EOF)", firstErr, err)
-			}
-			firstErr = err
-		}
-	}
-	return out, firstErr, d
+	got, err := audiotest.ReadAll(t, d, blockFrames)
+	return got, err, d
 }
 
 func isIntegrity(err error) bool {

@@ -3,26 +3,22 @@ package flac
 import (
 	"bytes"
 	"fmt"
-	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
 
+	"github.com/kweigh/kweigh/internal/audiotest"
 	mewflac "github.com/mewkiz/flac"
 )
 
 func TestBitFlipFixtureIsDamaged(t *testing.T) {
 	// make-fixtures.sh flips one bit in the middle of stereo24-48k.flac;
 	// the reference decoder (flac -t) reports a frame CRC mismatch there.
-	got, err, _ := decodeAll(t, fixture(t, "stereo24-48k-bitflip.flac"), DefaultOptions(), 4096)
+	got, err, _ := decodeAll(t, audiotest.Fixture(t, "stereo24-48k-bitflip.flac"), DefaultOptions(), 4096)
 	if !isIntegrity(err) {
 		t.Fatalf("err = %v, want *decode.IntegrityError", err)
 	}
-	src, rerr := readSourceWAV(filepath.Join("testdata", "stereo24-48k.wav"))
-	if rerr != nil {
-		t.Fatal(rerr)
-	}
-	want := src.scaled()
+	want := audiotest.FixtureWAV(t, "stereo24-48k.wav").Scaled()
 	if len(got) == 0 || len(got) >= len(want) {
 		t.Fatalf("delivered %d samples before the damage, want some but fewer than %d", len(got), len(want))
 	}
@@ -35,7 +31,7 @@ func TestBitFlipFixtureIsDamaged(t *testing.T) {
 func TestCRCValidFlipCaughtByMD5(t *testing.T) {
 	// Flip one audio bit and repair the frame's CRC-16 so that only the MD5
 	// signature can tell: the case STREAMINFO's MD5 exists for.
-	data := fixture(t, "stereo24-48k.flac")
+	data := audiotest.Fixture(t, "stereo24-48k.flac")
 	offs := frameOffsets(t, data)
 	if len(offs) < 4 {
 		t.Fatalf("only %d frames", len(offs)-1)
@@ -82,7 +78,7 @@ func framesParse(data []byte) bool {
 }
 
 func TestStreamInfoEdits(t *testing.T) {
-	data := fixture(t, "mono16-44k.flac")
+	data := audiotest.Fixture(t, "mono16-44k.flac")
 	want, err, _ := decodeAll(t, data, DefaultOptions(), 4096)
 	if err != nil {
 		t.Fatal(err)
@@ -142,7 +138,7 @@ func TestStreamInfoEdits(t *testing.T) {
 }
 
 func TestTruncatedNeverPanics(t *testing.T) {
-	data := fixture(t, "stereo24-48k.flac")
+	data := audiotest.Fixture(t, "stereo24-48k.flac")
 	offs := frameOffsets(t, data)
 	cuts := []int{0, 3, 4, 7, 8, 20, 41, 42, 43}
 	for _, o := range offs[:3] {

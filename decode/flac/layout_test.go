@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 func TestFLACChannelOrder(t *testing.T) {
@@ -32,7 +33,7 @@ func TestFLACChannelOrder(t *testing.T) {
 }
 
 func TestChannelMaskTag(t *testing.T) {
-	stereo := fixture(t, "stereo24-48k.flac")
+	stereo := audiotest.Fixture(t, "stereo24-48k.flac")
 	tests := []struct {
 		name     string
 		data     []byte
@@ -44,11 +45,11 @@ func TestChannelMaskTag(t *testing.T) {
 		// written by flac from sox's WAVE mask (metaflac --list shows it);
 		// bits 0-5 are FL FR FC LFE BL BR (Microsoft channel-mask
 		// documentation), the back pair being the 5.1 surrounds.
-		{"5.1 fixture", fixture(t, "surround51-16-44k.flac"), "L R C LFE Ls Rs", 0x3F, ""},
+		{"5.1 fixture", audiotest.Fixture(t, "surround51-16-44k.flac"), "L R C LFE Ls Rs", 0x3F, ""},
 		// sox writes a 24-bit WAV as WAVE_FORMAT_EXTENSIBLE with mask 0x3
 		// (FL FR), and flac keeps it.
 		{"stereo fixture", stereo, "L R", 0x3, ""},
-		{"no tag", fixture(t, "mono16-44k.flac"), "M", 0, ""},
+		{"no tag", audiotest.Fixture(t, "mono16-44k.flac"), "M", 0, ""},
 		// Bits 9 and 10 are side left and side right.
 		{"side pair", withVorbisComment(stereo, "WAVEFORMATEXTENSIBLE_CHANNEL_MASK=0x0600"), "Ls Rs", 0x600, ""},
 		{"lower-case name, decimal", withVorbisComment(stereo, "waveformatextensible_channel_mask=1536"), "Ls Rs", 0x600, ""},
@@ -86,7 +87,7 @@ func TestLibraryLogSilenced(t *testing.T) {
 	log.SetOutput(&buf)
 	defer log.SetOutput(old)
 
-	if _, err, _ := decodeAll(t, fixture(t, "mono16-24k.flac"), DefaultOptions(), 4096); err != nil {
+	if _, err, _ := decodeAll(t, audiotest.Fixture(t, "mono16-24k.flac"), DefaultOptions(), 4096); err != nil {
 		t.Fatal(err)
 	}
 	log.Print("the program's own line")

@@ -2,37 +2,14 @@ package flac
 
 import (
 	"fmt"
-	"io"
 	"path/filepath"
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
 	_ "github.com/kweigh/kweigh/decode/wav"
+	"github.com/kweigh/kweigh/internal/audiotest"
 	"github.com/kweigh/kweigh/loudness"
 )
-
-// openAll decodes a whole file through the decode registry.
-func openAll(t *testing.T, name string) ([]float64, decode.Info) {
-	t.Helper()
-	f, err := decode.Open(filepath.Join("testdata", name))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	info := f.Info()
-	buf := make([]float64, 3000*info.Channels)
-	var out []float64
-	for {
-		n, err := f.ReadFrames(buf)
-		out = append(out, buf[:n*info.Channels]...)
-		if err == io.EOF {
-			return out, info
-		}
-		if err != nil {
-			t.Fatalf("%s: %v", name, err)
-		}
-	}
-}
 
 func measure(t *testing.T, samples []float64, rate int, layout []string) loudness.Result {
 	t.Helper()
@@ -61,8 +38,8 @@ func measure(t *testing.T, samples []float64, rate int, layout []string) loudnes
 func TestMeasurementsEqualWAV(t *testing.T) {
 	for _, tc := range sourceFixtures {
 		t.Run(tc.flac, func(t *testing.T) {
-			fs, finfo := openAll(t, tc.flac)
-			ws, winfo := openAll(t, tc.wav)
+			fs, finfo := audiotest.DecodeFile(t, filepath.Join("testdata", tc.flac))
+			ws, winfo := audiotest.DecodeFile(t, filepath.Join("testdata", tc.wav))
 			if len(fs) != len(ws) {
 				t.Fatalf("FLAC %d samples, WAV %d", len(fs), len(ws))
 			}
@@ -97,7 +74,7 @@ func TestSurroundWeights(t *testing.T) {
 	// BS.1770-4/5 channel weights (STANDARDS.md §1, from memory,
 	// surround weight corroborated by EBU Tech 3341 test 6): L, R, C 1.0;
 	// LFE excluded; Ls, Rs 1.41. Tolerance 0: the weights are constants.
-	_, info := openAll(t, "surround51-16-44k.flac")
+	_, info := audiotest.DecodeFile(t, filepath.Join("testdata", "surround51-16-44k.flac"))
 	weights, err := loudness.Weights(info.Layout)
 	if err != nil {
 		t.Fatal(err)

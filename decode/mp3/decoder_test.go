@@ -10,6 +10,7 @@ import (
 	gomp3 "github.com/hajimehoshi/go-mp3"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // rawGoMP3 decodes b with go-mp3 alone: 16-bit stereo, nothing trimmed.
@@ -97,7 +98,7 @@ func TestInfo(t *testing.T) {
 		{"no-info-header.mp3", "mpeg-1 layer 3", 44100, 1, []string{"M"}, "mono", 64000, -1},
 	}
 	for _, tt := range tests {
-		b := readFixture(t, tt.file)
+		b := audiotest.Fixture(t, tt.file)
 		d, err := New(bytes.NewReader(b), int64(len(b)))
 		if err != nil {
 			t.Fatalf("%s: %v", tt.file, err)
@@ -112,7 +113,7 @@ func TestInfo(t *testing.T) {
 }
 
 func TestMonoIsOneChannel(t *testing.T) {
-	b := readFixture(t, "speech-m44-128.mp3")
+	b := audiotest.Fixture(t, "speech-m44-128.mp3")
 	got := decodeBytes(t, b)
 	if got.channels != 1 {
 		t.Fatalf("mono MP3 delivered as %d channels", got.channels)
@@ -186,7 +187,7 @@ func TestSynthesisDelay(t *testing.T) {
 	// The hot fixture's square waves are periodic and correlate at many
 	// lags; the others start with a fade-in over noise and do not.
 	for _, tt := range sourcePairs[:5] {
-		b := readFixture(t, tt.mp3)
+		b := audiotest.Fixture(t, tt.mp3)
 		frame, h := firstFrameOf(t, b)
 		x, _ := parseXing(frame, h)
 		src := readSource(t, tt.source)
@@ -209,7 +210,7 @@ func TestInfoFrameDroppedExactly(t *testing.T) {
 	// here); the wrapper skips it and the delays, and otherwise hands over
 	// go-mp3's samples unchanged: sample i is raw sample 1152 + 576 + 529 + i
 	// divided by 32767.
-	b := readFixture(t, "music-s48-128.mp3")
+	b := audiotest.Fixture(t, "music-s48-128.mp3")
 	left, right := rawGoMP3(t, b)
 	for i := range 1152 {
 		if left[i] != 0 || right[i] != 0 {
@@ -276,7 +277,7 @@ func itoa(n int) string {
 }
 
 func TestTagsSkipped(t *testing.T) {
-	b := readFixture(t, "tagged-id3v2-id3v1.mp3")
+	b := audiotest.Fixture(t, "tagged-id3v2-id3v1.mp3")
 	tagged := decodeBytes(t, b)
 	// The same frames without their tags (ID3v2 is 502 bytes, ID3v1 128;
 	// TestAudioBoundsFixture) decode to the same samples.
@@ -338,7 +339,7 @@ func TestRejected(t *testing.T) {
 	// Layer III file: layer bits '10', bit-rate index 4 (64 kbit/s in the
 	// MPEG-1 Layer II table, index 5 in Layer III [memory, ISO/IEC 11172-3
 	// §2.4.2.3]); both layers then have 144·bitrate/fs-byte frames.
-	layer2 := append([]byte(nil), readFixture(t, "no-info-header.mp3")...)
+	layer2 := append([]byte(nil), audiotest.Fixture(t, "no-info-header.mp3")...)
 	for off := 0; off+4 <= len(layer2); {
 		h, err := parseHeader(layer2[off:])
 		if err != nil {
@@ -352,8 +353,8 @@ func TestRejected(t *testing.T) {
 		off += h.frameLen()
 	}
 	tests := map[string][]byte{
-		"mpeg25-8k.mp3":   readFixture(t, "mpeg25-8k.mp3"),
-		"free-format.mp3": readFixture(t, "free-format.mp3"),
+		"mpeg25-8k.mp3":   audiotest.Fixture(t, "mpeg25-8k.mp3"),
+		"free-format.mp3": audiotest.Fixture(t, "free-format.mp3"),
 		"layer II":        layer2,
 	}
 	for name, b := range tests {
@@ -387,7 +388,7 @@ func TestTruncated(t *testing.T) {
 func TestCutEverywhere(t *testing.T) {
 	// Cut the file at many points, at and between frame boundaries: never a
 	// panic, always an IntegrityError (every cut loses declared frames).
-	b := readFixture(t, "music-s48-128.mp3")
+	b := audiotest.Fixture(t, "music-s48-128.mp3")
 	for _, n := range []int{384 + 1, 384 + 4, 2 * 384, 2*384 + 37, 5000, 40 * 384, 64000, len(b) - 1} {
 		got := decodeBytes(t, b[:n])
 		var ie *decode.IntegrityError
@@ -402,7 +403,7 @@ func TestCutEverywhere(t *testing.T) {
 }
 
 func TestGarbageMidStream(t *testing.T) {
-	b := append([]byte(nil), readFixture(t, "music-s48-128.mp3")...)
+	b := append([]byte(nil), audiotest.Fixture(t, "music-s48-128.mp3")...)
 	for i := 20000; i < 21000; i++ {
 		b[i] = byte(i * 7)
 	}
@@ -419,7 +420,7 @@ func TestGarbageMidStream(t *testing.T) {
 }
 
 func TestTrailingBytesNoted(t *testing.T) {
-	b := readFixture(t, "music-s48-128.mp3")
+	b := audiotest.Fixture(t, "music-s48-128.mp3")
 	clean := decodeBytes(t, b)
 	junk := append(append([]byte(nil), b...), []byte("recorded at Saltmarsh Audio Works")...)
 	got := decodeBytes(t, junk)
@@ -431,8 +432,8 @@ func TestTrailingBytesNoted(t *testing.T) {
 func TestStreamChange(t *testing.T) {
 	// A stereo stream followed by a mono one: only the first part is
 	// decoded, and the change is reported as damage.
-	stereo := readFixture(t, "music-s48-128.mp3")
-	mono := readFixture(t, "speech-m44-128.mp3")
+	stereo := audiotest.Fixture(t, "music-s48-128.mp3")
+	mono := audiotest.Fixture(t, "speech-m44-128.mp3")
 	got := decodeBytes(t, append(append([]byte(nil), stereo...), mono...))
 	var ie *decode.IntegrityError
 	if !errors.As(got.err, &ie) || ie.Offset != int64(len(stereo)) {
@@ -441,7 +442,7 @@ func TestStreamChange(t *testing.T) {
 }
 
 func TestBufferSizes(t *testing.T) {
-	b := readFixture(t, "speech-m44-v2.mp3")
+	b := audiotest.Fixture(t, "speech-m44-v2.mp3")
 	want := decodeBytes(t, b).samples
 	for _, size := range []int{1, 7, 576, 1152, 1153, 100000} {
 		d, err := New(bytes.NewReader(b), int64(len(b)))

@@ -4,10 +4,9 @@ import (
 	"bytes"
 	"errors"
 	"io"
-	"os"
-	"path/filepath"
 	"testing"
 
+	"github.com/kweigh/kweigh/internal/audiotest"
 	"github.com/mewkiz/flac"
 )
 
@@ -28,21 +27,11 @@ func (p pcm) channel(c int) []float64 {
 	return out
 }
 
-// readFixture returns the bytes of testdata/name.
-func readFixture(t testing.TB, name string) []byte {
-	t.Helper()
-	b, err := os.ReadFile(filepath.Join("testdata", name))
-	if err != nil {
-		t.Fatal(err)
-	}
-	return b
-}
-
 // readSource decodes a FLAC source fixture (the exact samples lame was
 // given) with github.com/mewkiz/flac, scaled by 1/32768 as a 16-bit WAV is.
 func readSource(t testing.TB, name string) pcm {
 	t.Helper()
-	stream, err := flac.New(bytes.NewReader(readFixture(t, name)))
+	stream, err := flac.New(bytes.NewReader(audiotest.Fixture(t, name)))
 	if err != nil {
 		t.Fatalf("%s: %v", name, err)
 	}
@@ -84,20 +73,7 @@ func decodeBytes(t testing.TB, b []byte) decoded {
 	}
 	ch := d.Info().Channels
 	out := decoded{pcm: pcm{rate: d.Info().SampleRate, channels: ch}, dec: d}
-	buf := make([]float64, 1000*ch)
-	for {
-		n, err := d.ReadFrames(buf)
-		out.samples = append(out.samples, buf[:n*ch]...)
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			if out.err != nil {
-				t.Fatalf("second error after %v: %v", out.err, err)
-			}
-			out.err = err
-		}
-	}
+	out.samples, out.err = audiotest.ReadAll(t, d, 1000)
 	out.notes = d.Notes()
 	return out
 }
@@ -105,5 +81,5 @@ func decodeBytes(t testing.TB, b []byte) decoded {
 // decodeFixture decodes testdata/name.
 func decodeFixture(t testing.TB, name string) decoded {
 	t.Helper()
-	return decodeBytes(t, readFixture(t, name))
+	return decodeBytes(t, audiotest.Fixture(t, name))
 }

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // The seed corpora are in testdata/fuzz/Fuzz*/ (headers, Info frames and
@@ -57,7 +58,7 @@ func FuzzXing(f *testing.F) {
 
 func FuzzDecode(f *testing.F) {
 	for _, name := range []string{"mpeg2-22k.mp3", "no-info-header.mp3"} {
-		b := readFixture(f, name)
+		b := audiotest.Fixture(f, name)
 		f.Add(b[:min(len(b), 3000)])
 	}
 	f.Fuzz(func(t *testing.T, b []byte) {

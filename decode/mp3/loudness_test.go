@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 	"github.com/kweigh/kweigh/loudness"
 )
 
@@ -64,7 +65,7 @@ func TestMonoLoudness(t *testing.T) {
 	// stereo would read 10·log10(2) = 3.01 LU more (BS.1770 sums the
 	// channel powers [calc]; STANDARDS.md §1), which this test also shows
 	// on the same samples. Tolerance 0.01 LU: only rounding differs.
-	b := readFixture(t, "speech-m44-128.mp3")
+	b := audiotest.Fixture(t, "speech-m44-128.mp3")
 	got := decodeBytes(t, b)
 	src := readSource(t, "speech-m44.flac")
 	mono := integrated(t, got.pcm, got.dec.Info().Layout)

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 func TestMatchFixtures(t *testing.T) {
@@ -17,7 +18,7 @@ func TestMatchFixtures(t *testing.T) {
 		"speech-m44-v2.mp3", "hot-s44-128.mp3", "tagged-id3v2-id3v1.mp3", "no-info-header.mp3",
 		"mpeg2-22k.mp3", "mpeg25-8k.mp3", "free-format.mp3", "truncated.mp3",
 	} {
-		b := readFixture(t, file)
+		b := audiotest.Fixture(t, file)
 		if !Match(bytes.NewReader(b), int64(len(b))) {
 			t.Errorf("%s: not matched", file)
 		}
@@ -42,12 +43,12 @@ func wavOf(data []byte) []byte {
 }
 
 func TestMatchRejects(t *testing.T) {
-	mp3 := readFixture(t, "music-s48-128.mp3")
+	mp3 := audiotest.Fixture(t, "music-s48-128.mp3")
 	one := header(mpeg1, 3, 9, 1, false, modeStereo)
 	tests := map[string][]byte{
 		"empty":       {},
 		"one header":  one,
-		"FLAC source": readFixture(t, "music-s48.flac"),
+		"FLAC source": audiotest.Fixture(t, "music-s48.flac"),
 		// A WAV whose samples are MP3 bytes: full of valid frame headers.
 		"WAV holding MP3 bytes": wavOf(mp3),
 		"AIFF":                  append([]byte("FORM\x00\x00\x10\x00AIFFCOMM"), mp3...),
@@ -87,7 +88,7 @@ func TestMatchRandom(t *testing.T) {
 }
 
 func TestMatchLeadingZeros(t *testing.T) {
-	mp3 := readFixture(t, "no-info-header.mp3")
+	mp3 := audiotest.Fixture(t, "no-info-header.mp3")
 	b := append(make([]byte, 1000), mp3...)
 	if !Match(bytes.NewReader(b), int64(len(b))) {
 		t.Error("1000 zero bytes before the first frame: not matched")
@@ -99,7 +100,7 @@ func TestMatchLeadingZeros(t *testing.T) {
 }
 
 func TestRegistered(t *testing.T) {
-	b := readFixture(t, "speech-m44-128.mp3")
+	b := audiotest.Fixture(t, "speech-m44-128.mp3")
 	d, err := decode.New(bytes.NewReader(b))
 	if err != nil {
 		t.Fatal(err)

@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"encoding/binary"
 	"testing"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 func bytesReaderAt(b []byte) *bytes.Reader { return bytes.NewReader(b) }
@@ -52,7 +54,7 @@ func id3v24(n int, footer bool) []byte {
 }
 
 func TestAudioBoundsFixture(t *testing.T) {
-	b := readFixture(t, "tagged-id3v2-id3v1.mp3")
+	b := audiotest.Fixture(t, "tagged-id3v2-id3v1.mp3")
 	start, end := audioBounds(bytesReaderAt(b), int64(len(b)))
 	// ID3v2 header: size bytes 00 00 03 6C = 3·128 + 108 = 492, plus the
 	// 10-byte header = 502 (syncsafe rule of the ID3v2 description [desc]);
@@ -63,7 +65,7 @@ func TestAudioBoundsFixture(t *testing.T) {
 }
 
 func TestAudioBoundsBuilt(t *testing.T) {
-	audio := readFixture(t, "no-info-header.mp3")
+	audio := audiotest.Fixture(t, "no-info-header.mp3")
 	var b []byte
 	b = append(b, id3v24(300, true)...)
 	b = append(b, id3v24(20, false)...)

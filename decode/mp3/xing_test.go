@@ -2,6 +2,8 @@ package mp3
 
 import (
 	"testing"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // firstFrameOf returns the first frame of an MP3 fixture and its header.
@@ -38,7 +40,7 @@ func TestParseXingFixtures(t *testing.T) {
 		{"tagged-id3v2-id3v1.mp3", true, 78, 16508, 576, 1080, 88200},
 	}
 	for _, tt := range tests {
-		frame, h := firstFrameOf(t, readFixture(t, tt.file))
+		frame, h := firstFrameOf(t, audiotest.Fixture(t, tt.file))
 		x, ok := parseXing(frame, h)
 		if !ok {
 			t.Fatalf("%s: no Xing/Info header found", tt.file)
@@ -55,7 +57,7 @@ func TestParseXingFixtures(t *testing.T) {
 
 func TestParseXingAbsent(t *testing.T) {
 	for _, file := range []string{"no-info-header.mp3", "mpeg25-8k.mp3"} {
-		frame, h := firstFrameOf(t, readFixture(t, file))
+		frame, h := firstFrameOf(t, audiotest.Fixture(t, file))
 		if x, ok := parseXing(frame, h); ok {
 			t.Errorf("%s: found %+v in an audio frame", file, x)
 		}
@@ -63,7 +65,7 @@ func TestParseXingAbsent(t *testing.T) {
 }
 
 func TestParseXingBadCRC(t *testing.T) {
-	frame, h := firstFrameOf(t, readFixture(t, "music-s48-128.mp3"))
+	frame, h := firstFrameOf(t, audiotest.Fixture(t, "music-s48-128.mp3"))
 	frame = append([]byte(nil), frame...)
 	// Change the delay field (extension byte 22 = frame byte 36+120+22).
 	frame[36+120+22] ^= 0x10

@@ -11,6 +11,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/decode/wav"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // Offsets in the files of these tests: RIFF header 12 bytes, chunk header
@@ -153,7 +154,7 @@ func TestTruncatedData(t *testing.T) {
 			if d.Info().Frames != tt.frames {
 				t.Errorf("Info().Frames = %d, want %d", d.Info().Frames, tt.frames)
 			}
-			got, err := readAll(t, d, 256)
+			got, err := audiotest.ReadAll(t, d, 256)
 			var ie *decode.IntegrityError
 			if !errors.As(err, &ie) || !strings.Contains(err.Error(), tt.problem) {
 				t.Fatalf("err = %v, want *decode.IntegrityError with %q", err, tt.problem)
@@ -211,7 +212,7 @@ func TestUnsetDataSize(t *testing.T) {
 	if d.Info().Frames != -1 {
 		t.Errorf("Frames = %d, want -1", d.Info().Frames)
 	}
-	got, err := readAll(t, d, 16)
+	got, err := audiotest.ReadAll(t, d, 16)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -227,7 +228,7 @@ func TestAbsurdDS64Table(t *testing.T) {
 	ds := ds64Chunk(0, 4, 1, nil)
 	binary.LittleEndian.PutUint32(ds.body[24:], 0xFFFFFFFF)
 	file := wavFile("RF64", ds, fmtChunk(1, 1, 8000, 16), chunk("data", []byte{0, 0x80, 0xFF, 0x7F}).declaring(0xFFFFFFFF))
-	got, err := readAll(t, open(t, file), 4)
+	got, err := audiotest.ReadAll(t, open(t, file), 4)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,12 +1,11 @@
 package wav_test
 
 import (
-	"bytes"
-	"io"
 	"math"
 	"testing"
 
 	"github.com/kweigh/kweigh/decode/wav"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // benchSeconds is the length of the benchmark files: one minute of audio.
@@ -43,36 +42,9 @@ func BenchmarkReadFrames(b *testing.B) {
 		{"float32", 3, 32},
 	} {
 		b.Run(bc.name, func(b *testing.B) {
-			file := benchFile(bc.tag, bc.bits)
-			buf := make([]float64, 4096*2)
-			b.SetBytes(int64(len(file)))
-			b.ReportAllocs()
-			cpuBefore := processCPU()
-			for b.Loop() {
-				d, err := wav.New(bytes.NewReader(file), int64(len(file)))
-				if err != nil {
-					b.Fatal(err)
-				}
-				frames := 0
-				for {
-					n, err := d.ReadFrames(buf)
-					frames += n
-					if err == io.EOF {
-						break
-					}
-					if err != nil {
-						b.Fatal(err)
-					}
-				}
-				if frames != 48000*benchSeconds {
-					b.Fatalf("decoded %d frames", frames)
-				}
-			}
-			b.ReportMetric(float64(b.N)*benchSeconds/b.Elapsed().Seconds(), "x-realtime")
-			if cpu := processCPU() - cpuBefore; cpuBefore > 0 && cpu > 0 {
-				// The same per second of CPU time: what one core does when
-				// the machine is shared.
-				b.ReportMetric(float64(b.N)*benchSeconds/cpu.Seconds(), "x-realtime-cpu")
+			frames := audiotest.RunDecodeBenchmark(b, benchFile(bc.tag, bc.bits), wav.New)
+			if frames != 48000*benchSeconds {
+				b.Fatalf("decoded %d frames", frames)
 			}
 		})
 	}

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // stereo16 is a short 16-bit stereo fixture and its expected samples
@@ -56,7 +57,7 @@ func TestContainers(t *testing.T) {
 			if info := d.Info(); info.Container != tt.container || info.Frames != tt.frames || info.Channels != 2 {
 				t.Fatalf("Info = %+v, want container %s, %d frames", info, tt.container, tt.frames)
 			}
-			got, err := readAll(t, d, 64)
+			got, err := audiotest.ReadAll(t, d, 64)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -76,7 +77,7 @@ func TestRF64OddDataPadding(t *testing.T) {
 	if b := d.Info().Bext; b == nil || b.Description != "after odd data" {
 		t.Fatalf("Bext = %+v, want the chunk after the padded data", b)
 	}
-	got, err := readAll(t, d, 2)
+	got, err := audiotest.ReadAll(t, d, 2)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -3,7 +3,6 @@ package wav_test
 import (
 	"bytes"
 	"errors"
-	"io"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -11,6 +10,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/decode/wav"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // open decodes an in-memory file with wav.New.
@@ -21,35 +21,6 @@ func open(t testing.TB, file []byte) decode.Decoder {
 		t.Fatalf("New: %v", err)
 	}
 	return d
-}
-
-// readAll reads a decoder to its end with a buffer of bufFrames frames and
-// returns the samples and the first non-EOF error.
-func readAll(t testing.TB, d decode.Decoder, bufFrames int) ([]float64, error) {
-	t.Helper()
-	ch := d.Info().Channels
-	buf := make([]float64, bufFrames*ch)
-	var out []float64
-	var damage error
-	for range 1 << 20 {
-		n, err := d.ReadFrames(buf)
-		if n*ch > len(buf) {
-			t.Fatalf("ReadFrames returned %d frames into a %d-frame buffer", n, bufFrames)
-		}
-		out = append(out, buf[:n*ch]...)
-		switch {
-		case err == io.EOF:
-			return out, damage
-		case err != nil && damage != nil:
-			t.Fatalf("second error after %v: %v", damage, err)
-		case err != nil:
-			damage = err
-		case n == 0:
-			t.Fatalf("ReadFrames returned 0 frames and no error")
-		}
-	}
-	t.Fatal("ReadFrames never returned io.EOF")
-	return nil, nil
 }
 
 // testInts returns n samples of the given bit depth: the extremes first,
@@ -120,7 +91,7 @@ func TestIntegerRoundTrip(t *testing.T) {
 					info.Channels != tt.channels || info.SampleRate != 48000 || info.Frames != int64(tt.frames) || info.Container != "wav" {
 					t.Fatalf("Info = %+v", info)
 				}
-				got, err := readAll(t, d, bufFrames)
+				got, err := audiotest.ReadAll(t, d, bufFrames)
 				if err != nil {
 					t.Fatalf("read with %d-frame buffer: %v", bufFrames, err)
 				}
@@ -165,7 +136,7 @@ func TestFloatRoundTrip(t *testing.T) {
 			if info := d.Info(); info.SampleFormat != decode.Float || info.Codec != "ieee-float" || info.Frames != 1000 {
 				t.Fatalf("Info = %+v", info)
 			}
-			got, err := readAll(t, d, 333)
+			got, err := audiotest.ReadAll(t, d, 333)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -204,7 +175,7 @@ func TestExtensibleLayouts(t *testing.T) {
 		if !slices.Equal(info.Layout, tt.want) || info.ChannelMask != tt.mask {
 			t.Errorf("mask %#x: Layout %v ChannelMask %#x, want %v", tt.mask, info.Layout, info.ChannelMask, tt.want)
 		}
-		got, err := readAll(t, d, 3)
+		got, err := audiotest.ReadAll(t, d, 3)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -220,7 +191,7 @@ func TestViaRegistry(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	got, err := readAll(t, d, 16)
+	got, err := audiotest.ReadAll(t, d, 16)
 	if err != nil {
 		t.Fatal(err)
 	}

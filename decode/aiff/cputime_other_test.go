@@ -1,9 +1,0 @@
-//go:build !unix
-
-package aiff
-
-import "time"
-
-// processCPU is not measured on this system; benchmarks then report wall
-// clock only.
-func processCPU() time.Duration { return 0 }

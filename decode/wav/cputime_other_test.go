@@ -1,9 +1,0 @@
-//go:build !unix
-
-package wav_test
-
-import "time"
-
-// processCPU is not measured on this platform; the CPU-time metric is
-// then left out.
-func processCPU() time.Duration { return 0 }
