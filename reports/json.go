@@ -38,7 +38,9 @@ func (d *jsonDocument) start() {
 	d.member("tool", "kweigh")
 	d.member("version", d.opts.version())
 	d.member("generated", d.opts.generated().Format(time.RFC3339))
-	if d.withSpec {
+	// The run's spec, when one was named for every file; with per-folder
+	// specs each file object carries its own.
+	if d.withSpec && d.opts.Spec != "" {
 		d.member("spec", d.opts.Spec)
 	}
 	d.print(`  "files": [`)
