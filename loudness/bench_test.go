@@ -81,6 +81,35 @@ func BenchmarkKWeighting48k(b *testing.B) {
 	clock.Report(benchSeconds) // per channel
 }
 
+// BenchmarkKWeighting48kStereo is the K-weighting energy of a stereo pair
+// as the meter runs it, both channels at once (energyPair), against one
+// channel after the other (Energy).
+func BenchmarkKWeighting48kStereo(b *testing.B) {
+	x := musicLike(1, benchSeconds*48000, 48000)
+	y := musicLike(2, benchSeconds*48000, 48000)
+	for _, mode := range []string{"pair", "one-by-one"} {
+		b.Run(mode, func(b *testing.B) {
+			k, l := NewKWeighting(48000), NewKWeighting(48000)
+			b.SetBytes(int64(len(x) * 16))
+			clock := audiotest.StartRealtimeThread(b)
+			var sink float64
+			for range b.N {
+				for i := 0; i < len(x); i += chunkFrames {
+					j := min(i+chunkFrames, len(x))
+					if mode == "pair" {
+						ea, eb := energyPair(&k, &l, x[i:j], y[i:j])
+						sink += ea + eb
+					} else {
+						sink += k.Energy(x[i:j]) + l.Energy(y[i:j])
+					}
+				}
+			}
+			_ = sink
+			clock.Report(benchSeconds) // per stereo pair
+		})
+	}
+}
+
 // BenchmarkTruePeak is the true-peak detector alone on one channel, at 4×
 // (48 kHz) and 2× (96 kHz), on both signals.
 func BenchmarkTruePeak(b *testing.B) {
@@ -115,5 +144,27 @@ func BenchmarkTruePeak(b *testing.B) {
 				clock.Report(benchSeconds) // per channel
 			})
 		}
+	}
+}
+
+// BenchmarkTruePeakKernel is the 4× interpolator alone on one chunk of
+// dense 48 kHz noise (every window computed, nothing skipped): the Go loop
+// against the kernel in use (the SIMD one on amd64).
+func BenchmarkTruePeakKernel(b *testing.B) {
+	w := denseFullScale(5, history+chunkFrames)
+	for _, k := range []struct {
+		name   string
+		kernel func(w []float64, sq float64) float64
+	}{{"go", peak4SquaresGo}, {"in-use", peak4Squares}} {
+		b.Run(k.name, func(b *testing.B) {
+			b.SetBytes(chunkFrames * 8)
+			clock := audiotest.StartRealtimeThread(b)
+			var sink float64
+			for range b.N {
+				sink += k.kernel(w, 0)
+			}
+			_ = sink
+			clock.Report(chunkFrames / 48000.0) // per channel
+		})
 	}
 }

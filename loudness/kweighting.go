@@ -130,12 +130,15 @@ func (k *KWeighting) Energy(src []float64) float64 {
 	for _, x := range src {
 		// Terms that do not depend on the previous output first, so the
 		// loop-carried chain is one multiply and one subtract per stage.
-		u := (b0*x + b1*x1 + b2*x2 - a2*u2) - a1*u1
-		v := (u - 2*u1 + u2 - c2*v2) - c1*v1
+		// Each product is rounded before it is added (float64), which
+		// forbids fused multiply-adds: the same bits on every platform,
+		// and the same as energyPair's.
+		u := (float64(b0*x) + float64(b1*x1) + float64(b2*x2) - float64(a2*u2)) - float64(a1*u1)
+		v := (u - 2*u1 + u2 - float64(c2*v2)) - float64(c1*v1)
 		x2, x1 = x1, x
 		u2, u1 = u1, u
 		v2, v1 = v1, v
-		e += v * v
+		e += float64(v * v)
 	}
 	s.x1, s.x2, s.y1, s.y2 = x1, x2, u1, u2
 	// The high-pass input history is the shelf output history.

@@ -198,12 +198,12 @@ func (m *Meter) Write(frames []float64) {
 }
 
 // process measures n ≤ chunkFrames frames that lie inside one 100 ms
-// block, one channel at a time.
+// block: it copies each channel into its true-peak detector's input (where
+// the K-weighting reads it too), then weighs and peaks every channel.
 func (m *Meter) process(frames []float64, n int) {
 	nch := m.channels
 	for c := range nch {
-		tp := m.peaks[c]
-		in := tp.input(n)
+		in := m.peaks[c].input(n)
 		var peak uint64 // bits of max|v|: see maxAbs
 		j := c
 		for i := range in {
@@ -219,10 +219,34 @@ func (m *Meter) process(frames []float64, n int) {
 			}
 		}
 		m.blockPeak[c] = max(m.blockPeak[c], math.Float64frombits(peak))
-		if w := m.weights[c]; w > 0 {
-			m.energy += w * m.filters[c].Energy(in)
-		}
+	}
+	m.addEnergy(n)
+	for c, tp := range m.peaks {
 		m.blockTrue[c] = tp.peakBuffered(n, m.blockTrue[c])
+	}
+}
+
+// addEnergy adds the weighted K-filtered energy of the n samples waiting in
+// each channel's input. The filter is latency-bound, so channels go through
+// it two at a time (energyPair); an odd one out goes alone. Channels of
+// weight 0 are skipped, and the sum is taken in channel order either way.
+func (m *Meter) addEnergy(n int) {
+	waiting := -1 // a weighted channel not yet filtered
+	for c, w := range m.weights {
+		if !(w > 0) {
+			continue
+		}
+		if waiting < 0 {
+			waiting = c
+			continue
+		}
+		ea, eb := energyPair(&m.filters[waiting], &m.filters[c], m.peaks[waiting].input(n), m.peaks[c].input(n))
+		m.energy += m.weights[waiting] * ea
+		m.energy += w * eb
+		waiting = -1
+	}
+	if waiting >= 0 {
+		m.energy += m.weights[waiting] * m.filters[waiting].Energy(m.peaks[waiting].input(n))
 	}
 }
 

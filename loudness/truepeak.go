@@ -272,48 +272,64 @@ func maxAbs(x []float64) float64 {
 const signBit = 1 << 63
 
 // peak4 returns max(floor, |y|) over the 4× interpolated values y of the
-// inputs w[11:], w[:11] being their history.
+// inputs w[11:], w[:11] being their history. peak4Squares does the work:
+// peak4SquaresGo, or a two-lane SIMD version of it where there is one.
+func peak4(w []float64, floor float64) float64 {
+	sq := peak4Squares(w, floor*floor)
+	if sq > floor*floor {
+		return math.Sqrt(sq)
+	}
+	return floor
+}
+
+// peak4SquaresGo returns the largest of sq and y² over the 4× interpolated
+// values y of the inputs w[11:], w[:11] being their history; a NaN y is
+// ignored. It is the portable kernel and the reference for the SIMD ones.
 //
 // With sₜ = x[n−t] + x[n−11+t] and dₜ = x[n−t] − x[n−11+t] (t = 0…5) the
 // linear-phase symmetry gives (y₀+y₃)/2 = Σ ½(h0[t]+h0[11−t])·sₜ and
 // (y₀−y₃)/2 = Σ ½(h0[t]−h0[11−t])·dₜ, and likewise for phases 1 and 2: 24
 // multiplications per input sample instead of 48. The four outputs are
-// compared squared, against floor², so that no absolute value is needed.
-func peak4(w []float64, floor float64) float64 {
-	sq := floor * floor
+// compared squared, so that no absolute value is needed.
+//
+// The float64 conversions round every product before it is added, which
+// forbids the compiler to fuse the two into one FMA instruction (as it does
+// on arm64 or with GOAMD64=v3): results are then the same bits on every
+// platform and equal to those of the SIMD kernels, which do not fuse.
+func peak4SquaresGo(w []float64, sq float64) float64 {
 	for i := 0; i+interpolatorTaps <= len(w); i++ {
 		x := (*[interpolatorTaps]float64)(w[i : i+interpolatorTaps])
 		// x[11] is the newest sample x[n], x[0] is x[n−11].
 		s, d := x[11]+x[0], x[11]-x[0]
-		p := (h0t0 + h0t11) / 2 * s
-		r := (h1t0 + h1t11) / 2 * s
-		q := (h0t0 - h0t11) / 2 * d
-		u := (h1t0 - h1t11) / 2 * d
+		p := float64((h0t0 + h0t11) / 2 * s)
+		r := float64((h1t0 + h1t11) / 2 * s)
+		q := float64((h0t0 - h0t11) / 2 * d)
+		u := float64((h1t0 - h1t11) / 2 * d)
 		s, d = x[10]+x[1], x[10]-x[1]
-		p += (h0t1 + h0t10) / 2 * s
-		r += (h1t1 + h1t10) / 2 * s
-		q += (h0t1 - h0t10) / 2 * d
-		u += (h1t1 - h1t10) / 2 * d
+		p += float64((h0t1 + h0t10) / 2 * s)
+		r += float64((h1t1 + h1t10) / 2 * s)
+		q += float64((h0t1 - h0t10) / 2 * d)
+		u += float64((h1t1 - h1t10) / 2 * d)
 		s, d = x[9]+x[2], x[9]-x[2]
-		p += (h0t2 + h0t9) / 2 * s
-		r += (h1t2 + h1t9) / 2 * s
-		q += (h0t2 - h0t9) / 2 * d
-		u += (h1t2 - h1t9) / 2 * d
+		p += float64((h0t2 + h0t9) / 2 * s)
+		r += float64((h1t2 + h1t9) / 2 * s)
+		q += float64((h0t2 - h0t9) / 2 * d)
+		u += float64((h1t2 - h1t9) / 2 * d)
 		s, d = x[8]+x[3], x[8]-x[3]
-		p += (h0t3 + h0t8) / 2 * s
-		r += (h1t3 + h1t8) / 2 * s
-		q += (h0t3 - h0t8) / 2 * d
-		u += (h1t3 - h1t8) / 2 * d
+		p += float64((h0t3 + h0t8) / 2 * s)
+		r += float64((h1t3 + h1t8) / 2 * s)
+		q += float64((h0t3 - h0t8) / 2 * d)
+		u += float64((h1t3 - h1t8) / 2 * d)
 		s, d = x[7]+x[4], x[7]-x[4]
-		p += (h0t4 + h0t7) / 2 * s
-		r += (h1t4 + h1t7) / 2 * s
-		q += (h0t4 - h0t7) / 2 * d
-		u += (h1t4 - h1t7) / 2 * d
+		p += float64((h0t4 + h0t7) / 2 * s)
+		r += float64((h1t4 + h1t7) / 2 * s)
+		q += float64((h0t4 - h0t7) / 2 * d)
+		u += float64((h1t4 - h1t7) / 2 * d)
 		s, d = x[6]+x[5], x[6]-x[5]
-		p += (h0t5 + h0t6) / 2 * s
-		r += (h1t5 + h1t6) / 2 * s
-		q += (h0t5 - h0t6) / 2 * d
-		u += (h1t5 - h1t6) / 2 * d
+		p += float64((h0t5 + h0t6) / 2 * s)
+		r += float64((h1t5 + h1t6) / 2 * s)
+		q += float64((h0t5 - h0t6) / 2 * d)
+		u += float64((h1t5 - h1t6) / 2 * d)
 		y0, y3, y1, y2 := p+q, p-q, r+u, r-u
 		if v := y0 * y0; v > sq {
 			sq = v
@@ -328,10 +344,7 @@ func peak4(w []float64, floor float64) float64 {
 			sq = v
 		}
 	}
-	if sq > floor*floor {
-		return math.Sqrt(sq)
-	}
-	return floor
+	return sq
 }
 
 // peak2 is peak4 for 2× oversampling: phases 0 and 2 only.
