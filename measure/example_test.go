@@ -1,0 +1,35 @@
+package measure_test
+
+import (
+	"bytes"
+	"fmt"
+
+	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/measure"
+)
+
+// ExampleStream measures a line-up tone a studio might put at the head of
+// a reel: 10 s of 997 Hz at -23 dBFS on both channels of a 48 kHz 24-bit
+// WAV, built in memory. EBU Tech 3341 test 1 (from memory per
+// STANDARDS.md §3) expects -23.0 LUFS; the true and sample peaks are the
+// tone's amplitude, -23 dBFS. (Lower your monitors before playing any
+// line-up tone.)
+func ExampleStream() {
+	a := dbfs(-23)
+	file := wavBytes(2, 24, false, 0, tone(10, a, a))
+	d, err := decode.New(bytes.NewReader(file))
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	m := measure.Stream("line-up.wav", d, measure.Options{})
+	fmt.Printf("%s: %s %d Hz %d-bit, %d channels %v, %.1f s\n",
+		m.Path, m.Format, m.SampleRateHz, m.BitsPerSample, m.Channels, m.ChannelLayout, m.DurationS)
+	fmt.Printf("integrated %.1f LUFS, true peak %.1f dBTP, sample peak %.1f dBFS\n",
+		*m.IntegratedLUFS, *m.TruePeakDBTP, *m.SamplePeakDBFS)
+	fmt.Printf("correlation %.2f, dual mono %v\n", *m.Signal.Correlation, m.Signal.DualMono)
+	// Output:
+	// line-up.wav: wav 48000 Hz 24-bit, 2 channels [L R], 10.0 s
+	// integrated -23.0 LUFS, true peak -23.0 dBTP, sample peak -23.0 dBFS
+	// correlation 1.00, dual mono true
+}
