@@ -174,6 +174,12 @@ func plotName(path string) string {
 	return strings.NewReplacer("/", "__", ":", "_").Replace(clean) + ".svg"
 }
 
+// errNoAudio is returned when a run found nothing to measure: an empty
+// delivery must not pass a gate silently.
+func errNoAudio(args []string) error {
+	return usagef("no audio files found in %s", strings.Join(args, ", "))
+}
+
 // runBatch does the work for every target on o.jobs goroutines and hands
 // each record to write: in target order for document formats (as soon as
 // every earlier record is in, so text output is progressive but stable),

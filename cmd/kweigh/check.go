@@ -124,6 +124,9 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 	if err != nil {
 		return usageError{err}
 	}
+	if len(targets) == 0 {
+		return errNoAudio(args)
+	}
 	finder := &specFinder{given: o.spec, cache: map[string]specOrError{}}
 	if o.spec == nil {
 		// When no file has a spec the command line is wrong: say so once
@@ -204,6 +207,9 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 	summary.Elapsed = time.Since(start)
 	if err := closeWriters(writers, summary, writeErr); err != nil {
 		return err
+	}
+	if summary.Files == 0 {
+		return errNoAudio(args)
 	}
 	if err := writeVisuals(o.batchOptions, nil, kept, keptSpecs); err != nil {
 		return err

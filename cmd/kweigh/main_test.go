@@ -385,3 +385,19 @@ func copyFile(t *testing.T, from, to string) {
 		t.Fatal(err)
 	}
 }
+
+// TestEmptyDeliveryIsAnError: a pipeline gate must not pass a delivery
+// folder with nothing in it, or with nothing that is audio.
+func TestEmptyDeliveryIsAnError(t *testing.T) {
+	empty := t.TempDir()
+	notes := t.TempDir()
+	os.WriteFile(filepath.Join(notes, "running-order.txt"), []byte("1. cold open\n"), 0o644)
+	for _, dir := range []string{empty, notes} {
+		for _, cmd := range [][]string{{"measure", dir}, {"check", "--spec", "ebu-r128", dir}} {
+			code, _, errOut := kweigh(t, cmd...)
+			if code != exitTrouble || !strings.Contains(errOut, "no audio files") {
+				t.Errorf("%v: exit %d, stderr %q", cmd, code, errOut)
+			}
+		}
+	}
+}

@@ -39,6 +39,9 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	if err != nil {
 		return usageError{err}
 	}
+	if len(targets) == 0 {
+		return errNoAudio(args)
+	}
 	out, err := openOutputs(o, stdout)
 	if err != nil {
 		return err
@@ -82,6 +85,9 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	summary.Elapsed = time.Since(start)
 	if err := closeWriters(writers, summary, writeErr); err != nil {
 		return err
+	}
+	if summary.Files == 0 {
+		return errNoAudio(args)
 	}
 	if err := writeVisuals(o, kept, nil, nil); err != nil {
 		return err
