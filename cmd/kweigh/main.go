@@ -37,7 +37,7 @@ const (
 	exitsHelpFmt = `EXIT STATUS:
    0  %s
    1  %s
-   2  a file could not be measured, or the command line is wrong
+   2  a file could not be measured, no audio file was found, or the command line is wrong
 `
 )
 
