@@ -124,6 +124,7 @@ func stream(path string, d decode.Decoder, opt Options) *Measurement {
 	if clipRun <= 0 {
 		clipRun = DefaultClipRunMinSamples
 	}
+	fold := newDownmixer(layout, info.SampleRate)
 	hyg := newHygiene(info.Channels, info.SampleRate, info.BitsPerSample, info.SampleFormat == decode.Float, layout, silence, clipRun)
 
 	buf := make([]float64, blockFrames*info.Channels)
@@ -142,6 +143,9 @@ func stream(path string, d decode.Decoder, opt Options) *Measurement {
 			}
 			meter.Write(block)
 			hyg.write(block)
+			if fold != nil {
+				fold.write(block)
+			}
 			frames += int64(n)
 		}
 		if err == io.EOF {
@@ -166,6 +170,9 @@ func stream(path string, d decode.Decoder, opt Options) *Measurement {
 		m.Notes = append(m.Notes, fmt.Sprintf("header declares %d frames but %d were decoded", info.Frames, frames))
 	}
 	fillLoudness(m, r)
+	if fold != nil {
+		m.StereoDownmix = fold.result()
+	}
 	m.Signal = hyg.finish(info.SampleRate, layout, r.SamplePeak, silence)
 	if opt.KeepSeries {
 		s := r.Series

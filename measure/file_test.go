@@ -276,3 +276,48 @@ func TestDecoderPanicBecomesFileError(t *testing.T) {
 		t.Errorf("error %q should name the file and the decoder failure", m.Error)
 	}
 }
+
+func TestStereoDownmixOfSurround(t *testing.T) {
+	a := dbfs(-23)
+	tests := []struct {
+		name     string
+		amps     []float64 // L R C LFE Ls Rs
+		surround float64   // integrated LUFS of the 5.1 mix
+		downmix  float64   // integrated LUFS of the Lo/Ro fold-down
+	}{
+		// A -23 dBFS tone in C alone. 5.1: one front channel, -23 - 3.01
+		// (BS.1770: a sine in one channel reads 3.01 dB below its peak
+		// level, STANDARDS.md §1). Fold-down: 0.707·C into Lo and Ro, two
+		// channels at -26.01 dBFS each: -26.01 - 3.01 + 3.01 (two equal
+		// channels sum +3.01). Both -26.01.
+		{"centre", []float64{0, 0, a, 0, 0, 0}, -26.01, -26.01},
+		// The tone in Ls alone. 5.1: weight 1.41 (+1.49 dB, BS.1770
+		// channel weights) → -24.52. Fold-down: 0.707·Ls into Lo only, one
+		// channel at -26.01 dBFS → -29.02.
+		{"left surround", []float64{0, 0, 0, 0, a, 0}, -24.52, -29.02},
+		// A loud LFE is dropped from the fold-down as from BS.1770.
+		{"LFE", []float64{a, a, 0, 0.9, 0, 0}, -23, -23},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			m := measure.File(writeTemp(t, "mix51.wav", wavBytes(6, 24, false, 0x3F, tone(10, tc.amps...))), measure.Options{})
+			if m.Error != "" {
+				t.Fatal(m.Error)
+			}
+			if math.Abs(*m.IntegratedLUFS-tc.surround) > 0.05 {
+				t.Errorf("5.1 integrated %.2f, want %.2f", *m.IntegratedLUFS, tc.surround)
+			}
+			if m.StereoDownmix == nil || m.StereoDownmix.IntegratedLUFS == nil {
+				t.Fatalf("no downmix figure: %+v", m.StereoDownmix)
+			}
+			if got := *m.StereoDownmix.IntegratedLUFS; math.Abs(got-tc.downmix) > 0.05 {
+				t.Errorf("downmix integrated %.2f, want %.2f", got, tc.downmix)
+			}
+		})
+	}
+	// Stereo files have no fold-down.
+	m := measure.File(writeTemp(t, "st.wav", wavBytes(2, 16, false, 0, tone(2, 0.1, 0.1))), measure.Options{})
+	if m.StereoDownmix != nil {
+		t.Errorf("stereo file with a downmix: %+v", m.StereoDownmix)
+	}
+}

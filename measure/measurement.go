@@ -42,6 +42,10 @@ type Measurement struct {
 	ChannelTruePeakDBTP   []*float64 `json:"channel_true_peak_dbtp"`
 	ChannelSamplePeakDBFS []*float64 `json:"channel_sample_peak_dbfs"`
 
+	// StereoDownmix is the loudness of the Lo/Ro fold-down of a surround
+	// file (see DownmixMethod); absent for mono and stereo files.
+	StereoDownmix *Downmix `json:"stereo_downmix,omitempty"`
+
 	Signal Signal       `json:"signal"`
 	Bext   *decode.Bext `json:"bext,omitempty"`
 

@@ -70,6 +70,9 @@ func (t *measureText) Write(m *measure.Measurement) error {
 	t.figure("sample peak", Peak(m.SamplePeakDBFS), "dBFS", perChannel(m.ChannelLayout, m.ChannelSamplePeakDBFS))
 	t.figure("max momentary", Loudness(m.MaxMomentaryLUFS), "LUFS", "")
 	t.figure("max short-term", Loudness(m.MaxShortTermLUFS), "LUFS", "")
+	if d := m.StereoDownmix; d != nil {
+		t.line("stereo downmix", fmt.Sprintf("integrated %s LUFS, true peak %s dBTP (Lo/Ro fold-down)", Loudness(d.IntegratedLUFS), Peak(d.TruePeakDBTP)))
+	}
 	t.signal(m.Signal, m.ChannelLayout)
 	if m.Bext != nil {
 		t.line(fmt.Sprintf("bext v%d", m.Bext.Version), bextOrigin(m.Bext))

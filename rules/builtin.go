@@ -69,7 +69,8 @@ func atscA85() *Spec {
 	s.Loudness.MaxTruePeakDBTP = ptr(-2.0)
 	s.LimitSources["integrated"] = "ATSC A/85:2013: target -24 LKFS, tolerance ±2 dB [desc]"
 	s.LimitSources["true_peak"] = "ATSC A/85:2013: maximum true peak -2 dBTP [memory]"
-	s.Notes = append(s.Notes, "ATSC A/85 also asks that surround programmes be checked on their stereo downmix; kweigh measures the delivered channels only.")
+	s.Loudness.CheckDownmix = true
+	s.LimitSources["downmix_integrated"] = "ATSC A/85:2013: surround programmes also checked on their stereo downmix [desc]; fold-down per ITU-R BS.775 [memory]"
 	return s
 }
 

@@ -230,3 +230,34 @@ func rangeLimit(lo, hi *float64, unit string) string {
 	}
 	return ""
 }
+
+// checkDownmixIntegrated judges the stereo fold-down of a surround file
+// against the same integrated limit as the file (for specs that ask for it,
+// e.g. ATSC A/85). Files without a fold-down (mono, stereo) skip it.
+func checkDownmixIntegrated(j *judge) (Check, bool) {
+	s, m := j.spec, j.m
+	if !s.Loudness.CheckDownmix || m.StereoDownmix == nil {
+		return Check{}, false
+	}
+	lo, hi, _, ok := s.integratedWindow(2)
+	if !ok {
+		return Check{}, false
+	}
+	c := Check{ID: "downmix_integrated", Unit: "LUFS", Limit: s.integratedLimit(2) + " (stereo fold-down)"}
+	if m.StereoDownmix.IntegratedLUFS == nil {
+		c.Verdict = Fail
+		c.Reason = "the stereo fold-down has no integrated loudness: nothing rose above the -70 LUFS absolute gate"
+		return c, true
+	}
+	v := *m.StereoDownmix.IntegratedLUFS
+	c.Measured = round2(v)
+	margin := hundredths(s.Loudness.WarnMarginLU)
+	var reason string
+	if t := s.targetFor(2); t != nil {
+		c.Verdict, reason = judgeTarget(v, *t, s.Loudness.ToleranceLU, margin, false)
+	} else {
+		c.Verdict, reason = judgeWindow(v, lo, hi, margin)
+	}
+	c.Reason = "stereo fold-down: " + reason
+	return c, true
+}

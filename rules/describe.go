@@ -120,6 +120,9 @@ func (s *Spec) limitRows() []limitRow {
 		}
 		add("loudness_range", lim, s.sourceOf("loudness_range"))
 	}
+	if l.CheckDownmix {
+		add("downmix_integrated", "surround files: the Lo/Ro fold-down within the integrated limit too", s.sourceOf("downmix_integrated"))
+	}
 	f := s.Format
 	if len(f.Containers) > 0 {
 		add("container", "one of "+strings.Join(f.Containers, ", "), s.sourceOf("container"))

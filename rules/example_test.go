@@ -73,7 +73,7 @@ tolerance_lu = 0.5
 	fmt.Println(err)
 	// Output:
 	// quayside-podcasts extends podcast: -16.0 LUFS ±0.5 LU (mono -19.0 LUFS), true peak ≤ -1.5 dBTP; user spec kweigh.toml
-	// kweigh.toml:3: loudness.max_truepeak_dbtp: unknown key "max_truepeak_dbtp" (did you mean "max_true_peak_dbtp"?) (known in [loudness]: target_lufs, tolerance_lu, mono_target_lufs, min_integrated_lufs, max_integrated_lufs, warn_margin_lu, max_true_peak_dbtp, max_short_term_lufs, max_momentary_lufs, min_lra_lu, max_lra_lu, lra_advisory)
+	// kweigh.toml:3: loudness.max_truepeak_dbtp: unknown key "max_truepeak_dbtp" (did you mean "max_true_peak_dbtp"?) (known in [loudness]: target_lufs, tolerance_lu, mono_target_lufs, min_integrated_lufs, max_integrated_lufs, warn_margin_lu, max_true_peak_dbtp, max_short_term_lufs, max_momentary_lufs, min_lra_lu, max_lra_lu, lra_advisory, check_downmix)
 }
 
 func ExampleSpec_Describe() {

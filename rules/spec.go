@@ -91,6 +91,11 @@ type LoudnessLimits struct {
 	// LRAAdvisory makes the LRA limits recommendations: outside them the
 	// file warns instead of failing.
 	LRAAdvisory bool
+
+	// CheckDownmix judges the integrated loudness of a surround file's
+	// stereo fold-down (measure.Downmix) against the same target as the
+	// file itself.
+	CheckDownmix bool
 }
 
 // FormatLimits restrict the file format; an empty list allows anything.

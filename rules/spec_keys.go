@@ -54,6 +54,7 @@ var specTables = map[string][]specKey{
 		number("min_lra_lu", "loudness_range", inRange(0, 60, "LU"), func(s *Spec, v float64) { s.Loudness.MinLRALU = &v }),
 		number("max_lra_lu", "loudness_range", inRange(0, 60, "LU"), func(s *Spec, v float64) { s.Loudness.MaxLRALU = &v }),
 		boolean("lra_advisory", "loudness_range", func(s *Spec, v bool) { s.Loudness.LRAAdvisory = v }),
+		boolean("check_downmix", "downmix_integrated", func(s *Spec, v bool) { s.Loudness.CheckDownmix = v }),
 	},
 	"format": {
 		stringList("containers", "container", oneOf(knownContainers), func(s *Spec, v []string) { s.Format.Containers = v }),
