@@ -163,6 +163,11 @@ func NewMeter(sampleRate int, weights []float64) (*Meter, error) {
 // round(k·rate/10), halves up.
 func (m *Meter) boundary(k int64) int64 { return (k*int64(m.rate) + 5) / 10 }
 
+// NonFinite returns how many NaN or ±Inf samples have been written since
+// the meter was built or reset. Unlike Result it costs nothing, so a caller
+// can ask after every Write.
+func (m *Meter) NonFinite() int64 { return m.nonFinite }
+
 // Reset makes the meter ready for a new stream with the same configuration.
 func (m *Meter) Reset() {
 	for c := range m.channels {

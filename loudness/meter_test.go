@@ -254,6 +254,27 @@ func TestNonFinite(t *testing.T) {
 	}
 }
 
+// TestNonFiniteRunningCount: the running count a caller checks after each
+// Write agrees with Result and starts again at Reset.
+func TestNonFiniteRunningCount(t *testing.T) {
+	m, err := NewMeter(48000, []float64{1, 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m.Write([]float64{0.1, 0.1, math.NaN(), 0.2})
+	if m.NonFinite() != 1 {
+		t.Errorf("after one NaN: %d", m.NonFinite())
+	}
+	m.Write([]float64{math.Inf(1), math.Inf(-1)})
+	if got := m.NonFinite(); got != 3 || m.Result().NonFinite != 3 {
+		t.Errorf("after three: running %d, Result %d", got, m.Result().NonFinite)
+	}
+	m.Reset()
+	if m.NonFinite() != 0 {
+		t.Errorf("after Reset: %d", m.NonFinite())
+	}
+}
+
 // TestOverFullScale: float input above full scale is reported as it is.
 func TestOverFullScale(t *testing.T) {
 	x := toneSegments(48000, 997, segment{6, 1}) // +6 dBFS, peak ≈ 2.0

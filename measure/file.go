@@ -133,15 +133,16 @@ func stream(path string, d decode.Decoder, opt Options) *Measurement {
 		n, err := d.ReadFrames(buf)
 		if n > 0 {
 			block := buf[:n*info.Channels]
-			// Only float samples can be NaN or ±Inf.
-			if info.SampleFormat == decode.Float {
-				if i := firstNonFinite(block); i >= 0 {
-					at := frames + int64(i/info.Channels)
-					return fail(fmt.Errorf("sample %d of channel %s (%.3f s) is %v: the file holds invalid floating-point audio and cannot be measured",
-						at, layout[i%info.Channels], float64(at)/float64(info.SampleRate), block[i]))
-				}
-			}
+			// The engine counts NaN and ±Inf samples as it goes; only when
+			// it has seen one is the block searched for where.
+			before := meter.NonFinite()
 			meter.Write(block)
+			if meter.NonFinite() != before {
+				i := firstNonFinite(block)
+				at := frames + int64(i/info.Channels)
+				return fail(fmt.Errorf("sample %d of channel %s (%.3f s) is %v: the file holds invalid floating-point audio and cannot be measured",
+					at, layout[i%info.Channels], float64(at)/float64(info.SampleRate), block[i]))
+			}
 			hyg.write(block)
 			if fold != nil {
 				fold.write(block)

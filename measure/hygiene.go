@@ -109,35 +109,32 @@ func (h *hygiene) write(buf []float64) {
 	frames := len(buf) / nc
 	if nc == 2 && h.left == 0 && h.right == 1 {
 		h.writeStereo(buf, frames)
-		h.trackLoudness(buf, frames)
-		h.frames += int64(frames)
-		return
-	}
-	lvl := h.clipLevel
-	for c := 0; c < nc; c++ {
-		sum, run := h.sum[c], h.run[c]
-		for i := c; i < len(buf); i += nc {
-			x := buf[i]
-			sum += x
-			if math.Abs(x) >= lvl {
-				h.clipped++
-				run++
-			} else if run > 0 {
-				h.endRun(run)
-				run = 0
+	} else {
+		lvl := h.clipLevel
+		for c := 0; c < nc; c++ {
+			sum, run := h.sum[c], h.run[c]
+			for i := c; i < len(buf); i += nc {
+				x := buf[i]
+				sum += x
+				if math.Abs(x) >= lvl || run > 0 {
+					run = h.clipStep(x, run)
+				}
 			}
+			h.sum[c], h.run[c] = sum, run
 		}
-		h.sum[c], h.run[c] = sum, run
+		if h.left >= 0 {
+			h.trackPair(buf, frames)
+		}
 	}
 	h.trackLoudness(buf, frames)
-	if h.left >= 0 {
-		h.trackPair(buf, frames)
-	}
 	h.frames += int64(frames)
 }
 
-// writeStereo is write for the common L/R file: every probe in one pass
-// over the block, so the samples are loaded once.
+// writeStereo is write for the common L/R file: the per-channel sums and
+// clipping runs and the pair statistics of trackPair in one pass over the
+// block, so the samples are loaded once. (It is trackPair's loop with the
+// per-channel work folded in; kept separate because the general loop over
+// any channel count cannot be fused the same way.)
 func (h *hygiene) writeStereo(buf []float64, frames int) {
 	lvl := h.clipLevel
 	sumL, sumR := h.sum[0], h.sum[1]

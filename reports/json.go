@@ -111,6 +111,7 @@ func elapsedSeconds(s Summary) *float64 {
 type measureSummaryJSON struct {
 	Files        int      `json:"files"`
 	Measured     int      `json:"measured"`
+	Damaged      int      `json:"damaged"`
 	Errors       int      `json:"errors"`
 	AudioSeconds float64  `json:"audio_s"`
 	Elapsed      *float64 `json:"elapsed_s"`
@@ -139,7 +140,7 @@ func (w *measureJSON) Write(m *measure.Measurement) error {
 
 func (w *measureJSON) Close(s Summary) error {
 	return w.doc.finish(measureSummaryJSON{
-		Files: s.Files, Measured: s.Measured(), Errors: s.Errors,
+		Files: s.Files, Measured: s.Measured(), Damaged: s.Damaged, Errors: s.Errors,
 		AudioSeconds: audioSeconds(s), Elapsed: elapsedSeconds(s),
 	})
 }

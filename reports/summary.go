@@ -18,6 +18,9 @@ type Summary struct {
 	Failed int
 	// Errors counts files that could not be measured or checked.
 	Errors int
+	// Damaged counts measure's files whose audio is damaged: measured only
+	// as far as it decoded (check fails them instead).
+	Damaged int
 	// AudioSeconds is the total duration of the files measured.
 	AudioSeconds float64
 	// Elapsed is the wall time of the run; zero when unknown.
@@ -49,6 +52,9 @@ func (s *Summary) AddMeasurement(m *measure.Measurement) {
 		s.Errors++
 		return
 	}
+	if m.Damaged != "" {
+		s.Damaged++
+	}
 	s.AudioSeconds += m.DurationS
 }
 
@@ -72,6 +78,9 @@ func (s Summary) String() string {
 func (s Summary) MeasureString() string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s measured", plural(s.Measured(), "file"))
+	if s.Damaged > 0 {
+		fmt.Fprintf(&b, " (%d only in part: damaged)", s.Damaged)
+	}
 	if s.Errors > 0 {
 		fmt.Fprintf(&b, ", %d could not be", s.Errors)
 	}

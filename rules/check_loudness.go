@@ -203,18 +203,30 @@ func checkLoudnessRange(j *judge) (Check, bool) {
 	}
 	v := *j.m.LoudnessRangeLU
 	c.Measured = round2(v)
-	switch {
-	case l.MaxLRALU != nil && above(v, *l.MaxLRALU):
-		c.Verdict = out
-		c.Reason = fmt.Sprintf("loudness range %s LU is wider than the %s LU maximum", near(v, *l.MaxLRALU), limitNum(*l.MaxLRALU))
-	case l.MinLRALU != nil && below(v, *l.MinLRALU):
-		c.Verdict = out
-		c.Reason = fmt.Sprintf("loudness range %s LU is narrower than the %s LU minimum", near(v, *l.MinLRALU), limitNum(*l.MinLRALU))
-	default:
-		c.Verdict = Pass
-		c.Reason = fmt.Sprintf("loudness range %s LU is within %s", num(v, 1), rangeLimit(l.MinLRALU, l.MaxLRALU, "LU"))
-	}
+	c.Verdict, c.Reason = judgeRange(v, l.MinLRALU, l.MaxLRALU, out, rangeWords{
+		what: "loudness range", unit: "LU", over: "wider", under: "narrower", limit: limitNum,
+	})
 	return c, true
+}
+
+// rangeWords says how judgeRange talks about one quantity.
+type rangeWords struct {
+	what, unit  string               // "duration", "s"
+	over, under string               // "longer", "shorter"
+	limit       func(float64) string // how the limit is written
+}
+
+// judgeRange judges v against a range whose sides may be open: out (Fail,
+// or Warn for a recommendation) when v lies beyond a side, Pass otherwise,
+// with the reason in words.
+func judgeRange(v float64, lo, hi *float64, out Verdict, w rangeWords) (Verdict, string) {
+	switch {
+	case hi != nil && above(v, *hi):
+		return out, fmt.Sprintf("%s %s %s is %s than the %s %s maximum", w.what, near(v, *hi), w.unit, w.over, w.limit(*hi), w.unit)
+	case lo != nil && below(v, *lo):
+		return out, fmt.Sprintf("%s %s %s is %s than the %s %s minimum", w.what, near(v, *lo), w.unit, w.under, w.limit(*lo), w.unit)
+	}
+	return Pass, fmt.Sprintf("%s %s %s is within %s", w.what, num(v, 1), w.unit, rangeLimit(lo, hi, w.unit))
 }
 
 // rangeLimit writes a range whose sides may be open, e.g. "4.0 to 15.0 LU",

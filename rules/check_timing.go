@@ -10,17 +10,9 @@ func checkDuration(j *judge) (Check, bool) {
 	}
 	v := j.m.DurationS
 	c := Check{ID: "duration", Unit: "s", Measured: round2(v), Limit: rangeLimit(t.MinDurationS, t.MaxDurationS, "s")}
-	switch {
-	case t.MinDurationS != nil && below(v, *t.MinDurationS):
-		c.Verdict = Fail
-		c.Reason = fmt.Sprintf("duration %s s is shorter than the %s s minimum", near(v, *t.MinDurationS), magnitude(*t.MinDurationS))
-	case t.MaxDurationS != nil && above(v, *t.MaxDurationS):
-		c.Verdict = Fail
-		c.Reason = fmt.Sprintf("duration %s s is longer than the %s s maximum", near(v, *t.MaxDurationS), magnitude(*t.MaxDurationS))
-	default:
-		c.Verdict = Pass
-		c.Reason = fmt.Sprintf("duration %s s is within %s", num(v, 1), c.Limit)
-	}
+	c.Verdict, c.Reason = judgeRange(v, t.MinDurationS, t.MaxDurationS, Fail, rangeWords{
+		what: "duration", unit: "s", over: "longer", under: "shorter", limit: magnitude,
+	})
 	return c, true
 }
 

@@ -80,30 +80,87 @@ func (o batchOptions) measureOptions() measure.Options {
 	return measure.Options{Layout: o.layout, KeepSeries: o.report != "" || o.plots != ""}
 }
 
-// outputs opens where the records go: the chosen format to --output (or
-// stdout), and text to stdout when --output is given. close flushes both.
-type outputs struct {
-	file    *os.File
-	primary io.Writer
-	console io.Writer // nil when the primary output is stdout
+// recordWriter is what package reports gives for either command: a
+// streaming writer of one kind of record.
+type recordWriter[T any] interface {
+	Write(T) error
+	Close(reports.Summary) error
 }
 
-func openOutputs(o batchOptions, stdout io.Writer) (*outputs, error) {
-	if o.output == "" {
-		return &outputs{primary: stdout}, nil
+// runOutput is where a run's records go: the chosen format to --output (or
+// stdout) and, when --output is given, the text report to stdout as well.
+// It keeps the first error of writing so that one failing output neither
+// stops the run nor goes unreported.
+type runOutput[T any] struct {
+	file    *os.File // the --output file, nil without it
+	writers []recordWriter[T]
+	err     error
+}
+
+// openRunOutput opens the run's outputs. newWriter is the reports
+// constructor for the command's record type; colour goes only to a
+// terminal.
+func openRunOutput[T any](o batchOptions, stdout io.Writer, opts reports.Options,
+	newWriter func(io.Writer, reports.Format, reports.Options) (recordWriter[T], error)) (*runOutput[T], error) {
+	out := &runOutput[T]{}
+	primary := stdout
+	if o.output != "" {
+		f, err := os.Create(o.output)
+		if err != nil {
+			return nil, usageError{fmt.Errorf("--output: %w", err)}
+		}
+		out.file, primary = f, f
 	}
-	f, err := os.Create(o.output)
+	terminal := opts
+	opts.Colour = o.colour && out.file == nil
+	w, err := newWriter(primary, o.format, opts)
 	if err != nil {
-		return nil, usageError{fmt.Errorf("--output: %w", err)}
+		out.closeFile()
+		return nil, usageError{err}
 	}
-	return &outputs{file: f, primary: f, console: stdout}, nil
+	out.writers = append(out.writers, w)
+	if out.file != nil {
+		terminal.Colour = o.colour
+		console, err := newWriter(stdout, reports.Text, terminal)
+		if err != nil {
+			out.closeFile()
+			return nil, err
+		}
+		out.writers = append(out.writers, console)
+	}
+	return out, nil
 }
 
-func (o *outputs) close() error {
-	if o.file != nil {
-		return o.file.Close()
+// write hands one record to every writer.
+func (r *runOutput[T]) write(rec T) {
+	for _, w := range r.writers {
+		if err := w.Write(rec); err != nil && r.err == nil {
+			r.err = err
+		}
 	}
-	return nil
+}
+
+// close closes the writers with the summary, then the --output file, and
+// returns the first error of the whole run's output.
+func (r *runOutput[T]) close(summary reports.Summary) error {
+	for _, w := range r.writers {
+		if err := w.Close(summary); err != nil && r.err == nil {
+			r.err = err
+		}
+	}
+	if err := r.closeFile(); err != nil && r.err == nil {
+		r.err = fmt.Errorf("--output: %w", err)
+	}
+	return r.err
+}
+
+func (r *runOutput[T]) closeFile() error {
+	if r.file == nil {
+		return nil
+	}
+	f := r.file
+	r.file = nil
+	return f.Close()
 }
 
 // orderedEmitter hands results on in index order as soon as every earlier
@@ -225,15 +282,4 @@ func runBatch[T any](ctx context.Context, o batchOptions, targets []target, stde
 type indexedRecord[T any] struct {
 	i int
 	r T
-}
-
-// closeWriters closes every writer with the summary and returns the first
-// error of writing or closing.
-func closeWriters[W interface{ Close(reports.Summary) error }](writers []W, summary reports.Summary, writeErr error) error {
-	for _, w := range writers {
-		if err := w.Close(summary); err != nil && writeErr == nil {
-			writeErr = err
-		}
-	}
-	return writeErr
 }

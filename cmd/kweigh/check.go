@@ -144,32 +144,23 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 		}
 	}
 
-	out, err := openOutputs(o.batchOptions, stdout)
-	if err != nil {
-		return err
-	}
-	defer out.close()
 	specName := ""
 	if o.spec != nil {
 		specName = o.spec.ID
 	}
-	opts := reports.Options{Colour: o.colour && out.console == nil, Spec: specName, Strict: o.strict, Version: version}
-	primary, err := reports.NewCheckWriter(out.primary, o.format, opts)
+	opts := reports.Options{Spec: specName, Strict: o.strict, Version: version}
+	out, err := openRunOutput(o.batchOptions, stdout, opts,
+		func(w io.Writer, f reports.Format, opts reports.Options) (recordWriter[*rules.Result], error) {
+			return reports.NewCheckWriter(w, f, opts)
+		})
 	if err != nil {
-		return usageError{err}
-	}
-	writers := []reports.CheckWriter{primary}
-	if out.console != nil {
-		opts.Colour = o.colour
-		console, _ := reports.NewCheckWriter(out.console, reports.Text, opts)
-		writers = append(writers, console)
+		return err
 	}
 
 	start := time.Now()
 	var summary reports.Summary
 	var kept []*rules.Result
 	var keptSpecs []*rules.Spec
-	var writeErr error
 	specs := make([]*rules.Spec, len(targets))
 	mopt := o.measureOptions()
 	runBatch(ctx, o.batchOptions, targets, stderr,
@@ -194,18 +185,14 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 		},
 		func(i int, r *rules.Result) {
 			summary.Add(r)
-			for _, w := range writers {
-				if err := w.Write(r); err != nil && writeErr == nil {
-					writeErr = err
-				}
-			}
+			out.write(r)
 			if o.report != "" || o.plots != "" {
 				kept = append(kept, r)
 				keptSpecs = append(keptSpecs, specs[i])
 			}
 		})
 	summary.Elapsed = time.Since(start)
-	if err := closeWriters(writers, summary, writeErr); err != nil {
+	if err := out.close(summary); err != nil {
 		return err
 	}
 	if summary.Files == 0 {

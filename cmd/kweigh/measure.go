@@ -42,26 +42,17 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	if len(targets) == 0 {
 		return errNoAudio(args)
 	}
-	out, err := openOutputs(o, stdout)
+	out, err := openRunOutput(o, stdout, reports.Options{Version: version},
+		func(w io.Writer, f reports.Format, opts reports.Options) (recordWriter[*measure.Measurement], error) {
+			return reports.NewMeasureWriter(w, f, opts)
+		})
 	if err != nil {
 		return err
-	}
-	defer out.close()
-	opts := reports.Options{Colour: o.colour && out.console == nil, Version: version}
-	primary, err := reports.NewMeasureWriter(out.primary, o.format, opts)
-	if err != nil {
-		return usageError{err}
-	}
-	writers := []reports.MeasureWriter{primary}
-	if out.console != nil {
-		console, _ := reports.NewMeasureWriter(out.console, reports.Text, reports.Options{Colour: o.colour, Version: version})
-		writers = append(writers, console)
 	}
 
 	start := time.Now()
 	var summary reports.Summary
 	var kept []*measure.Measurement
-	var writeErr error
 	mopt := o.measureOptions()
 	runBatch(ctx, o, targets, stderr,
 		func(i int) (*measure.Measurement, bool) {
@@ -70,20 +61,13 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 		},
 		func(_ int, m *measure.Measurement) {
 			summary.AddMeasurement(m)
-			if m.Damaged != "" {
-				summary.Errors++ // measured only in part: not a complete measurement
-			}
-			for _, w := range writers {
-				if err := w.Write(m); err != nil && writeErr == nil {
-					writeErr = err
-				}
-			}
+			out.write(m)
 			if o.report != "" || o.plots != "" {
 				kept = append(kept, m)
 			}
 		})
 	summary.Elapsed = time.Since(start)
-	if err := closeWriters(writers, summary, writeErr); err != nil {
+	if err := out.close(summary); err != nil {
 		return err
 	}
 	if summary.Files == 0 {
@@ -95,8 +79,9 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	if err := ctx.Err(); err != nil {
 		return fmt.Errorf("interrupted: %w", err)
 	}
-	if summary.Errors > 0 {
-		return troubleError{summary.Errors}
+	// A damaged file is not a complete measurement: exit 2 as for errors.
+	if n := summary.Errors + summary.Damaged; n > 0 {
+		return troubleError{n}
 	}
 	return nil
 }
