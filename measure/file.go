@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strings"
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/loudness"
@@ -41,20 +42,15 @@ func File(path string, opt Options) *Measurement {
 		return &Measurement{Path: path, Error: errorText(path, err), Err: err, Notes: []string{}}
 	}
 	defer f.Close()
-	m := Stream(path, f, opt)
-	if m.Error == "" {
-		m.Notes = append(m.Notes, f.Notes()...)
-	}
-	return m
+	return Stream(path, f, opt)
 }
 
 // errorText makes sure an error message names the file once.
 func errorText(path string, err error) string {
-	msg := err.Error()
-	if len(msg) >= len(path) && msg[:len(path)] == path {
+	if msg := err.Error(); strings.HasPrefix(msg, path) {
 		return msg
 	}
-	return path + ": " + msg
+	return path + ": " + err.Error()
 }
 
 // Stream measures an open decoder; path is used for the record and for
@@ -169,6 +165,9 @@ func stream(path string, d decode.Decoder, opt Options) *Measurement {
 	m.DurationS = float64(frames) / float64(info.SampleRate)
 	if info.Frames >= 0 && frames != info.Frames && m.Damaged == "" {
 		m.Notes = append(m.Notes, fmt.Sprintf("header declares %d frames but %d were decoded", info.Frames, frames))
+	}
+	if n, ok := d.(decode.Noter); ok {
+		m.Notes = append(m.Notes, n.Notes()...)
 	}
 	fillLoudness(m, r)
 	if fold != nil {

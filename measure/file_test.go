@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/decode/flac"
 	_ "github.com/kweigh/kweigh/decode/wav"
 	"github.com/kweigh/kweigh/measure"
 )
@@ -319,5 +320,19 @@ func TestStereoDownmixOfSurround(t *testing.T) {
 	m := measure.File(writeTemp(t, "st.wav", wavBytes(2, 16, false, 0, tone(2, 0.1, 0.1))), measure.Options{})
 	if m.StereoDownmix != nil {
 		t.Errorf("stereo file with a downmix: %+v", m.StereoDownmix)
+	}
+}
+
+// TestDecoderNotesReachTheRecord: what a decoder learns while decoding
+// (here, that FLAC's MD5 check was turned off) is in the file's notes.
+func TestDecoderNotesReachTheRecord(t *testing.T) {
+	flac.SetDefaultOptions(flac.Options{VerifyMD5: false})
+	defer flac.SetDefaultOptions(flac.DefaultOptions())
+	m := measure.File(filepath.Join("..", "decode", "flac", "testdata", "stereo24-48k.flac"), measure.Options{})
+	if m.Error != "" {
+		t.Fatal(m.Error)
+	}
+	if !strings.Contains(strings.Join(m.Notes, "\n"), "MD5 verification turned off") {
+		t.Errorf("notes %q lack the decoder's note", m.Notes)
 	}
 }
