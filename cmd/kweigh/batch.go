@@ -12,6 +12,7 @@ import (
 	"github.com/urfave/cli/v3"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/decode/flac"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/reports"
 )
@@ -39,6 +40,7 @@ func batchFlags(formats []reports.Format) []cli.Flag {
 		&cli.StringFlag{Name: "layout", Usage: "channel layout for files without (or with a wrong) one: mono, stereo, 5.0, 5.1, 7.1 or labels like L,R,C,LFE,Ls,Rs"},
 		&cli.StringFlag{Name: "report", Usage: "also write a self-contained HTML QC page to `FILE`"},
 		&cli.StringFlag{Name: "plots", Usage: "also write each file's loudness plot as an SVG into `DIR`"},
+		&cli.BoolFlag{Name: "skip-flac-md5", Usage: "do not verify FLAC audio against its MD5 signature (faster; frame CRCs are still checked)"},
 	}
 }
 
@@ -66,6 +68,11 @@ func readBatchOptions(cmd *cli.Command, formats []reports.Format) (batchOptions,
 			return o, usageError{err}
 		}
 	}
+	// The FLAC decoder is reached through the format registry, so its
+	// option is set for the process.
+	flacOpts := flac.DefaultOptions()
+	flacOpts.VerifyMD5 = !cmd.Bool("skip-flac-md5")
+	flac.SetDefaultOptions(flacOpts)
 	o.report = cmd.String("report")
 	o.plots = cmd.String("plots")
 	o.colour = isTerminal(cmd.Root().Writer) && os.Getenv("NO_COLOR") == ""

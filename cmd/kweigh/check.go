@@ -35,13 +35,12 @@ func checkCommand() *cli.Command {
 			"a broadcaster's or regulator's acceptance; local regulation and the receiving party's own QC\n" +
 			"decide.\n\n" +
 			fmt.Sprintf(exitsHelpFmt, "every file passed (warnings allowed unless --strict)", "at least one file failed its spec (or warned, with --strict)"),
-		Flags: append(flags, flacFlags()...),
+		Flags: flags,
 		Action: func(ctx context.Context, cmd *cli.Command) error {
 			o, err := readBatchOptions(cmd, reports.CheckFormats())
 			if err != nil {
 				return err
 			}
-			applyFlacFlags(cmd)
 			co := checkOptions{batchOptions: o, strict: cmd.Bool("strict")}
 			if name := cmd.String("spec"); name != "" {
 				if co.spec, err = loadSpec(name); err != nil {

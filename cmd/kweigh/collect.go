@@ -6,7 +6,6 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"sort"
 	"strings"
 
 	"github.com/kweigh/kweigh/decode"
@@ -74,7 +73,8 @@ func collect(args []string) ([]target, error) {
 	return out, nil
 }
 
-// walk lists the files under root, recursively, in lexical order. Hidden
+// walk lists the files under root, recursively, in filepath.WalkDir's
+// lexical order (stable from run to run). Hidden
 // entries (name starting with ".") and folder spec files are passed over.
 // A folder that cannot be read becomes an error target so that the problem
 // is reported with the other files instead of stopping the run.
@@ -101,7 +101,6 @@ func walk(root string, add func(target)) {
 		files = append(files, target{path: path, root: root})
 		return nil
 	})
-	sort.SliceStable(files, func(i, j int) bool { return files[i].path < files[j].path })
 	for _, f := range files {
 		add(f)
 	}

@@ -401,3 +401,22 @@ func TestEmptyDeliveryIsAnError(t *testing.T) {
 		}
 	}
 }
+
+func TestSkipFlacMD5(t *testing.T) {
+	file := filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac")
+	for _, tc := range []struct {
+		args []string
+		note bool
+	}{
+		{[]string{"measure", "--format", "json", "--skip-flac-md5", file}, true},
+		{[]string{"measure", "--format", "json", file}, false}, // verification is on by default
+	} {
+		code, out, _ := kweigh(t, tc.args...)
+		if code != exitOK {
+			t.Fatalf("%v: exit %d", tc.args, code)
+		}
+		if got := strings.Contains(out, "MD5 verification turned off"); got != tc.note {
+			t.Errorf("%v: note present %v, want %v", tc.args, got, tc.note)
+		}
+	}
+}

@@ -21,13 +21,12 @@ func measureCommand() *cli.Command {
 			"skipped with a note) per ITU-R BS.1770 and EBU Tech 3341/3342. Files are measured in parallel\n" +
 			"and listed in a stable order; --format jsonl writes each file as soon as it is done.\n\n" +
 			fmt.Sprintf(exitsHelpFmt, "every file was measured", "(not used by measure)"),
-		Flags: append(batchFlags(reports.MeasureFormats()), flacFlags()...),
+		Flags: batchFlags(reports.MeasureFormats()),
 		Action: func(ctx context.Context, cmd *cli.Command) error {
 			o, err := readBatchOptions(cmd, reports.MeasureFormats())
 			if err != nil {
 				return err
 			}
-			applyFlacFlags(cmd)
 			return runMeasure(ctx, o, cmd.Args().Slice(), cmd.Root().Writer, cmd.Root().ErrWriter)
 		},
 	}

@@ -7,9 +7,6 @@ import (
 	"path/filepath"
 	"time"
 
-	"github.com/urfave/cli/v3"
-
-	"github.com/kweigh/kweigh/decode/flac"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/reports/htmlpage"
 	"github.com/kweigh/kweigh/rules"
@@ -19,18 +16,6 @@ import (
 const cautionText = "Full-scale test signals and gain increases can damage hearing and loudspeakers: keep monitoring " +
 	"levels down when auditioning. A pass is not a broadcaster's or regulator's acceptance; local regulation " +
 	"and the receiving party's own QC decide."
-
-func flacFlags() []cli.Flag {
-	return []cli.Flag{
-		&cli.BoolFlag{Name: "skip-flac-md5", Usage: "do not verify FLAC audio against its MD5 signature (faster; frame CRCs are still checked)"},
-	}
-}
-
-func applyFlacFlags(cmd *cli.Command) {
-	o := flac.DefaultOptions()
-	o.VerifyMD5 = !cmd.Bool("skip-flac-md5")
-	flac.SetDefaultOptions(o)
-}
 
 // writeVisuals writes the --report page and the --plots SVGs. A measure run
 // passes measurements; a check run passes results with their specs.
