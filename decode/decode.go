@@ -106,8 +106,17 @@ type Format struct {
 	// anywhere in r but must be cheap and must not panic on any input.
 	Match func(r io.ReaderAt, size int64) bool
 	// New reads the header from src (positioned at offset 0; size bytes
-	// long) and returns a Decoder ready for ReadFrames.
-	New func(src Source, size int64) (Decoder, error)
+	// long) and returns a Decoder ready for ReadFrames. opt is passed per
+	// call, so two files opened at once may use different options.
+	New func(src Source, size int64, opt Options) (Decoder, error)
+}
+
+// Options tune decoding, per call. The zero value checks everything a
+// format can check.
+type Options struct {
+	// SkipMD5 skips verifying a stream's MD5 signature of the decoded
+	// audio (FLAC). Frame CRCs are still checked.
+	SkipMD5 bool
 }
 
 var (
@@ -138,8 +147,12 @@ func Formats() []string {
 // content.
 var ErrUnknownFormat = errors.New("not a recognised audio file")
 
-// New detects the format of src and returns its decoder.
-func New(src Source) (Decoder, error) {
+// New detects the format of src and returns its decoder, with the default
+// options.
+func New(src Source) (Decoder, error) { return NewWith(src, Options{}) }
+
+// NewWith detects the format of src and returns its decoder, with opt.
+func NewWith(src Source, opt Options) (Decoder, error) {
 	size, err := src.Seek(0, io.SeekEnd)
 	if err != nil {
 		return nil, err
@@ -157,7 +170,7 @@ func New(src Source) (Decoder, error) {
 		if _, err := src.Seek(0, io.SeekStart); err != nil {
 			return nil, err
 		}
-		return f.New(src, size)
+		return f.New(src, size, opt)
 	}
 	return nil, ErrUnknownFormat
 }
@@ -168,22 +181,20 @@ type File struct {
 	f *os.File
 }
 
-// Open opens the named file and detects its format. Errors name the file.
-func Open(path string) (*File, error) {
-	f, err := os.Open(path)
+// Open opens the named file with the default options and detects its
+// format. Errors name the file.
+func Open(path string) (*File, error) { return OpenWith(path, Options{}) }
+
+// OpenWith opens the named file and detects its format, with opt. Only
+// regular files are read (symbolic links to them are followed): a FIFO, a
+// device or a socket is refused at once, without blocking on it. Errors
+// name the file.
+func OpenWith(path string, opt Options) (*File, error) {
+	f, err := OpenRegular(path)
 	if err != nil {
 		return nil, err
 	}
-	st, err := f.Stat()
-	if err != nil {
-		f.Close()
-		return nil, err
-	}
-	if st.IsDir() {
-		f.Close()
-		return nil, fmt.Errorf("%s: is a directory", path)
-	}
-	d, err := New(f)
+	d, err := NewWith(f, opt)
 	if err != nil {
 		f.Close()
 		return nil, fmt.Errorf("%s: %w", path, err)
@@ -200,6 +211,39 @@ func (f *File) Notes() []string {
 		return n.Notes()
 	}
 	return nil
+}
+
+// ErrNotRegular is returned (wrapped with the path) for a path that is not
+// a regular file: a folder, FIFO, device or socket.
+var ErrNotRegular = errors.New("not a regular file")
+
+// OpenRegular opens path for reading only if it is a regular file. The file
+// is opened without blocking (a FIFO would otherwise wait for a writer
+// forever) and checked on the open descriptor, so a name swapped between a
+// check and the open cannot slip through.
+func OpenRegular(path string) (*os.File, error) {
+	f, err := openNonBlocking(path)
+	if err != nil {
+		return nil, err
+	}
+	st, err := f.Stat()
+	if err != nil {
+		f.Close()
+		return nil, err
+	}
+	if !st.Mode().IsRegular() {
+		f.Close()
+		what := "not a regular file"
+		if st.IsDir() {
+			what = "is a directory, not a regular file"
+		}
+		return nil, fmt.Errorf("%s: %s: %w", path, what, ErrNotRegular)
+	}
+	if err := clearNonBlocking(f); err != nil {
+		f.Close()
+		return nil, err
+	}
+	return f, nil
 }
 
 // FormatError reports a header or structure the decoder cannot read.

@@ -1,6 +1,7 @@
 package measure_test
 
 import (
+	"context"
 	"encoding/binary"
 	"errors"
 	"io"
@@ -51,7 +52,7 @@ func BenchmarkFile48kStereo24(b *testing.B) {
 	b.SetBytes(60 * rate * 2 * 3)
 	clock := audiotest.StartRealtime(b)
 	for b.Loop() {
-		if m := measure.File(path, measure.Options{}); m.Error != "" {
+		if m := measure.File(context.Background(), path, measure.Options{}); m.Error != "" {
 			b.Fatal(m.Error)
 		}
 	}
@@ -143,7 +144,7 @@ func BenchmarkTwoHourMemory(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		m := measure.Stream("two-hours.wav", d, measure.Options{KeepSeries: true})
+		m := measure.Stream(context.Background(), "two-hours.wav", d, measure.Options{KeepSeries: true})
 		if m.Error != "" || m.DurationS != 7200 {
 			b.Fatalf("error %q, duration %v", m.Error, m.DurationS)
 		}

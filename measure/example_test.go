@@ -2,6 +2,7 @@ package measure_test
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 
 	"github.com/kweigh/kweigh/decode"
@@ -22,7 +23,7 @@ func ExampleStream() {
 		fmt.Println(err)
 		return
 	}
-	m := measure.Stream("line-up.wav", d, measure.Options{})
+	m := measure.Stream(context.Background(), "line-up.wav", d, measure.Options{})
 	fmt.Printf("%s: %s %d Hz %d-bit, %d channels %v, %.1f s\n",
 		m.Path, m.Format, m.SampleRateHz, m.BitsPerSample, m.Channels, m.ChannelLayout, m.DurationS)
 	fmt.Printf("integrated %.1f LUFS, true peak %.1f dBTP, sample peak %.1f dBFS\n",

@@ -1,6 +1,7 @@
 package measure
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -27,6 +28,9 @@ type Options struct {
 	// KeepSeries keeps the 10 Hz time series in Measurement.Series (for
 	// plots).
 	KeepSeries bool
+	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
+	// passed to this file's decoder only.
+	Decode decode.Options
 }
 
 // blockFrames is how many frames are decoded and metered at a time: large
@@ -35,14 +39,16 @@ type Options struct {
 const blockFrames = 4096
 
 // File measures the file at path. It never returns nil: a file that cannot
-// be measured yields a Measurement whose Error names the problem.
-func File(path string, opt Options) *Measurement {
-	f, err := decode.Open(path)
+// be measured yields a Measurement whose Error names the problem. When ctx
+// is cancelled, measuring stops between two blocks and the Measurement's
+// Err is ctx's error.
+func File(ctx context.Context, path string, opt Options) *Measurement {
+	f, err := decode.OpenWith(path, opt.Decode)
 	if err != nil {
 		return &Measurement{Path: path, Error: errorText(path, err), Err: err, Notes: []string{}}
 	}
 	defer f.Close()
-	return Stream(path, f, opt)
+	return Stream(ctx, path, f, opt)
 }
 
 // errorText makes sure an error message names the file once.
@@ -59,17 +65,19 @@ func errorText(path string, err error) string {
 // A panic inside a decoder (the FLAC and MP3 decoders wrap third-party
 // libraries) is turned into the file's error: one bad file must never stop
 // a batch.
-func Stream(path string, d decode.Decoder, opt Options) (m *Measurement) {
+// Cancelling ctx stops measuring between two blocks (a few milliseconds of
+// work), so a long file is abandoned within a fraction of a second.
+func Stream(ctx context.Context, path string, d decode.Decoder, opt Options) (m *Measurement) {
 	defer func() {
 		if p := recover(); p != nil {
 			err := fmt.Errorf("decoder failed on this file: %v", p)
 			m = &Measurement{Path: path, Error: errorText(path, err), Err: err, Notes: []string{}}
 		}
 	}()
-	return stream(path, d, opt)
+	return stream(ctx, path, d, opt)
 }
 
-func stream(path string, d decode.Decoder, opt Options) *Measurement {
+func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Measurement {
 	info := d.Info()
 	m := &Measurement{
 		Path:          path,
@@ -126,6 +134,9 @@ func stream(path string, d decode.Decoder, opt Options) *Measurement {
 	buf := make([]float64, blockFrames*info.Channels)
 	var frames int64
 	for {
+		if err := ctx.Err(); err != nil {
+			return fail(fmt.Errorf("interrupted after %.1f s of audio: %w", float64(frames)/float64(info.SampleRate), err))
+		}
 		n, err := d.ReadFrames(buf)
 		if n > 0 {
 			block := buf[:n*info.Channels]

@@ -1,6 +1,7 @@
 package measure_test
 
 import (
+	"context"
 	"encoding/binary"
 	"math"
 	"os"
@@ -10,7 +11,7 @@ import (
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
-	"github.com/kweigh/kweigh/decode/flac"
+	_ "github.com/kweigh/kweigh/decode/flac"
 	_ "github.com/kweigh/kweigh/decode/wav"
 	"github.com/kweigh/kweigh/measure"
 )
@@ -117,7 +118,7 @@ func TestFileLoudness(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			path := writeTemp(t, "tone.wav", wavBytes(tc.channels, 24, false, tc.mask, tone(10, tc.amps...)))
-			m := measure.File(path, measure.Options{})
+			m := measure.File(context.Background(), path, measure.Options{})
 			if m.Error != "" {
 				t.Fatal(m.Error)
 			}
@@ -139,8 +140,8 @@ func TestLayoutOverride(t *testing.T) {
 	// (last) carries a loud tone. Default order would weight it as Rs.
 	a := dbfs(-23)
 	path := writeTemp(t, "film.wav", wavBytes(6, 24, false, 0, tone(10, a, 0, a, 0, 0, 0.9)))
-	def := measure.File(path, measure.Options{})
-	film := measure.File(path, measure.Options{Layout: []string{"L", "C", "R", "Ls", "Rs", "LFE"}})
+	def := measure.File(context.Background(), path, measure.Options{})
+	film := measure.File(context.Background(), path, measure.Options{Layout: []string{"L", "C", "R", "Ls", "Rs", "LFE"}})
 	if def.LayoutSource != "default" || film.LayoutSource != "user" {
 		t.Fatalf("layout sources %q %q", def.LayoutSource, film.LayoutSource)
 	}
@@ -154,7 +155,7 @@ func TestLayoutOverride(t *testing.T) {
 	if len(def.Notes) == 0 || !strings.Contains(strings.Join(def.Notes, " "), "does not declare its channel layout") {
 		t.Errorf("default layout of a 6-channel file needs a note: %v", def.Notes)
 	}
-	bad := measure.File(path, measure.Options{Layout: []string{"L", "R"}})
+	bad := measure.File(context.Background(), path, measure.Options{Layout: []string{"L", "R"}})
 	if !strings.Contains(bad.Error, "2 channels but the file has 6") {
 		t.Errorf("mismatched layout: %q", bad.Error)
 	}
@@ -174,7 +175,7 @@ func TestUndefinedFiguresAreNullWithNotes(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			m := measure.File(writeTemp(t, "x.wav", wavBytes(2, 16, false, 0, tc.frames)), measure.Options{})
+			m := measure.File(context.Background(), writeTemp(t, "x.wav", wavBytes(2, 16, false, 0, tc.frames)), measure.Options{})
 			if m.Error != "" {
 				t.Fatal(m.Error)
 			}
@@ -194,7 +195,7 @@ func TestUndefinedFiguresAreNullWithNotes(t *testing.T) {
 func TestFloatOversAreReportedAsTheyAre(t *testing.T) {
 	// A float file may exceed full scale: a +6 dBFS tone must read a
 	// sample peak of +6.02 dBFS (20·log10 2), not a clipped 0.
-	m := measure.File(writeTemp(t, "hot.wav", wavBytes(1, 32, true, 0, tone(2, 2.0))), measure.Options{})
+	m := measure.File(context.Background(), writeTemp(t, "hot.wav", wavBytes(1, 32, true, 0, tone(2, 2.0))), measure.Options{})
 	if m.Error != "" {
 		t.Fatal(m.Error)
 	}
@@ -209,7 +210,7 @@ func TestFloatOversAreReportedAsTheyAre(t *testing.T) {
 func TestNonFiniteSamplesAreAnError(t *testing.T) {
 	frames := tone(1, 0.5)
 	frames[12345] = math.NaN()
-	m := measure.File(writeTemp(t, "nan.wav", wavBytes(1, 32, true, 0, frames)), measure.Options{})
+	m := measure.File(context.Background(), writeTemp(t, "nan.wav", wavBytes(1, 32, true, 0, frames)), measure.Options{})
 	if !strings.Contains(m.Error, "nan.wav") || !strings.Contains(m.Error, "sample 12345") || !strings.Contains(m.Error, "NaN") {
 		t.Errorf("error %q should name the file, the sample and NaN", m.Error)
 	}
@@ -221,7 +222,7 @@ func TestNonFiniteSamplesAreAnError(t *testing.T) {
 func TestTruncatedFileIsFlaggedDamaged(t *testing.T) {
 	full := wavBytes(2, 16, false, 0, tone(6, 0.1, 0.1))
 	cut := full[:len(full)-4*rate] // one second of stereo 16-bit missing
-	m := measure.File(writeTemp(t, "cut.wav", cut), measure.Options{})
+	m := measure.File(context.Background(), writeTemp(t, "cut.wav", cut), measure.Options{})
 	if m.Error != "" {
 		t.Fatal(m.Error)
 	}
@@ -242,7 +243,7 @@ func TestBadFilesNameTheFile(t *testing.T) {
 	}
 	for name, data := range tests {
 		t.Run(name, func(t *testing.T) {
-			m := measure.File(writeTemp(t, name, data), measure.Options{})
+			m := measure.File(context.Background(), writeTemp(t, name, data), measure.Options{})
 			if m.Error == "" || !strings.Contains(m.Error, name) {
 				t.Errorf("error %q should name %s", m.Error, name)
 			}
@@ -254,7 +255,7 @@ func TestTruePeakNeverBelowSamplePeak(t *testing.T) {
 	// A low-frequency tone has no inter-sample overs: its true peak equals
 	// its sample peak (BS.1770 Annex 2: true peak is the peak of the
 	// continuous signal, which passes through every sample).
-	m := measure.File(writeTemp(t, "low.wav", wavBytes(2, 24, false, 0, tone(3, 0.5, 0.25))), measure.Options{})
+	m := measure.File(context.Background(), writeTemp(t, "low.wav", wavBytes(2, 24, false, 0, tone(3, 0.5, 0.25))), measure.Options{})
 	for c := range m.ChannelTruePeakDBTP {
 		tp, sp := *m.ChannelTruePeakDBTP[c], *m.ChannelSamplePeakDBFS[c]
 		if tp < sp || tp-sp > 0.01 {
@@ -272,7 +273,7 @@ func (panicky) Info() decode.Info {
 func (panicky) ReadFrames([]float64) (int, error) { panic("index out of range [7] with length 3") }
 
 func TestDecoderPanicBecomesFileError(t *testing.T) {
-	m := measure.Stream("broken.flac", panicky{}, measure.Options{})
+	m := measure.Stream(context.Background(), "broken.flac", panicky{}, measure.Options{})
 	if !strings.Contains(m.Error, "broken.flac") || !strings.Contains(m.Error, "decoder failed") {
 		t.Errorf("error %q should name the file and the decoder failure", m.Error)
 	}
@@ -301,7 +302,7 @@ func TestStereoDownmixOfSurround(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			m := measure.File(writeTemp(t, "mix51.wav", wavBytes(6, 24, false, 0x3F, tone(10, tc.amps...))), measure.Options{})
+			m := measure.File(context.Background(), writeTemp(t, "mix51.wav", wavBytes(6, 24, false, 0x3F, tone(10, tc.amps...))), measure.Options{})
 			if m.Error != "" {
 				t.Fatal(m.Error)
 			}
@@ -317,7 +318,7 @@ func TestStereoDownmixOfSurround(t *testing.T) {
 		})
 	}
 	// Stereo files have no fold-down.
-	m := measure.File(writeTemp(t, "st.wav", wavBytes(2, 16, false, 0, tone(2, 0.1, 0.1))), measure.Options{})
+	m := measure.File(context.Background(), writeTemp(t, "st.wav", wavBytes(2, 16, false, 0, tone(2, 0.1, 0.1))), measure.Options{})
 	if m.StereoDownmix != nil {
 		t.Errorf("stereo file with a downmix: %+v", m.StereoDownmix)
 	}
@@ -326,9 +327,7 @@ func TestStereoDownmixOfSurround(t *testing.T) {
 // TestDecoderNotesReachTheRecord: what a decoder learns while decoding
 // (here, that FLAC's MD5 check was turned off) is in the file's notes.
 func TestDecoderNotesReachTheRecord(t *testing.T) {
-	flac.SetDefaultOptions(flac.Options{VerifyMD5: false})
-	defer flac.SetDefaultOptions(flac.DefaultOptions())
-	m := measure.File(filepath.Join("..", "decode", "flac", "testdata", "stereo24-48k.flac"), measure.Options{})
+	m := measure.File(context.Background(), filepath.Join("..", "decode", "flac", "testdata", "stereo24-48k.flac"), measure.Options{Decode: decode.Options{SkipMD5: true}})
 	if m.Error != "" {
 		t.Fatal(m.Error)
 	}

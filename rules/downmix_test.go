@@ -1,6 +1,7 @@
 package rules_test
 
 import (
+	"context"
 	"encoding/binary"
 	"math"
 	"os"
@@ -58,7 +59,7 @@ func TestDownmixCheck(t *testing.T) {
 	// Ls and Rs at amplitude a: 5.1 loudness = -0.691 + 10·log10(2 · 1.41 ·
 	// a²/2 · K(997)) with K(997 Hz) = +0.691 dB; solve for -24.0.
 	a := math.Sqrt(math.Pow(10, -24.0/10) / 1.41)
-	surroundHeavy := measure.File(surroundWAV(t, [6]float64{0, 0, 0, 0, a, a}), measure.Options{})
+	surroundHeavy := measure.File(context.Background(), surroundWAV(t, [6]float64{0, 0, 0, 0, a, a}), measure.Options{})
 	r := rules.Evaluate(spec, surroundHeavy)
 	if v := verdictOf(r, "integrated"); v != rules.Pass {
 		t.Errorf("5.1 integrated %v: %q, want pass", *surroundHeavy.IntegratedLUFS, v)
@@ -68,7 +69,7 @@ func TestDownmixCheck(t *testing.T) {
 	}
 	// A front-only mix folds down to the same loudness: both pass.
 	b := math.Pow(10, -24.0/20)
-	front := measure.File(surroundWAV(t, [6]float64{b, b, 0, 0, 0, 0}), measure.Options{})
+	front := measure.File(context.Background(), surroundWAV(t, [6]float64{b, b, 0, 0, 0, 0}), measure.Options{})
 	r = rules.Evaluate(spec, front)
 	if v := verdictOf(r, "downmix_integrated"); v != rules.Pass {
 		t.Errorf("front-only fold-down %v: %q, want pass", *front.StereoDownmix.IntegratedLUFS, v)

@@ -1,6 +1,7 @@
 package rules_test
 
 import (
+	"context"
 	"encoding/binary"
 	"math"
 	"math/rand/v2"
@@ -121,14 +122,14 @@ func TestSignalChecksOnRealSignals(t *testing.T) {
 		}},
 	}
 	cl, cr := programmeLR()
-	clean := rules.Evaluate(spec, measure.File(stereoWAV(t, cl, cr), measure.Options{}))
+	clean := rules.Evaluate(spec, measure.File(context.Background(), stereoWAV(t, cl, cr), measure.Options{}))
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			if v := verdictOf(clean, tc.check); v != rules.Pass {
 				t.Errorf("clean programme: %s = %q, want pass", tc.check, v)
 			}
 			l, r := tc.spoil(programmeLR())
-			res := rules.Evaluate(spec, measure.File(stereoWAV(t, l, r), measure.Options{}))
+			res := rules.Evaluate(spec, measure.File(context.Background(), stereoWAV(t, l, r), measure.Options{}))
 			if v := verdictOf(res, tc.check); v != rules.Fail {
 				t.Errorf("%s: %s = %q, want fail; checks: %+v", tc.name, tc.check, v, res.Checks)
 			}

@@ -12,7 +12,6 @@ import (
 	"github.com/urfave/cli/v3"
 
 	"github.com/kweigh/kweigh/decode"
-	"github.com/kweigh/kweigh/decode/flac"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/reports"
 )
@@ -26,6 +25,7 @@ type batchOptions struct {
 	report string // HTML report file
 	plots  string // folder for standalone SVG plots
 	colour bool
+	decode decode.Options
 }
 
 func batchFlags(formats []reports.Format) []cli.Flag {
@@ -68,11 +68,7 @@ func readBatchOptions(cmd *cli.Command, formats []reports.Format) (batchOptions,
 			return o, usageError{err}
 		}
 	}
-	// The FLAC decoder is reached through the format registry, so its
-	// option is set for the process.
-	flacOpts := flac.DefaultOptions()
-	flacOpts.VerifyMD5 = !cmd.Bool("skip-flac-md5")
-	flac.SetDefaultOptions(flacOpts)
+	o.decode = decode.Options{SkipMD5: cmd.Bool("skip-flac-md5")}
 	o.report = cmd.String("report")
 	o.plots = cmd.String("plots")
 	o.colour = isTerminal(cmd.Root().Writer) && os.Getenv("NO_COLOR") == ""
@@ -84,7 +80,7 @@ func readBatchOptions(cmd *cli.Command, formats []reports.Format) (batchOptions,
 
 // measureOptions turns batch options into the measurement's.
 func (o batchOptions) measureOptions() measure.Options {
-	return measure.Options{Layout: o.layout, KeepSeries: o.report != "" || o.plots != ""}
+	return measure.Options{Layout: o.layout, KeepSeries: o.report != "" || o.plots != "", Decode: o.decode}
 }
 
 // recordWriter is what package reports gives for either command: a
@@ -196,11 +192,11 @@ func (e *orderedEmitter[T]) add(i int, r T) {
 }
 
 // measureTarget measures one collected file.
-func measureTarget(t target, opt measure.Options) *measure.Measurement {
+func measureTarget(ctx context.Context, t target, opt measure.Options) *measure.Measurement {
 	if t.walkErr != nil {
 		return &measure.Measurement{Path: t.path, Error: fmt.Sprintf("%s: %v", t.path, t.walkErr), Err: t.walkErr, Notes: []string{}}
 	}
-	return measure.File(t.path, opt)
+	return measure.File(ctx, t.path, opt)
 }
 
 // skipped reports whether a measurement is of a non-audio file found by

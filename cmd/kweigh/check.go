@@ -172,7 +172,7 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 				// A broken folder spec: no point measuring.
 				return specFailure(t, spec, specErr), true
 			}
-			m := measureTarget(t, mopt)
+			m := measureTarget(ctx, t, mopt)
 			if skipped(t, m) {
 				return nil, false
 			}

@@ -20,10 +20,7 @@ import (
 	"github.com/urfave/cli/v3"
 
 	// The formats kweigh reads, registered with package decode.
-	_ "github.com/kweigh/kweigh/decode/aiff"
-	_ "github.com/kweigh/kweigh/decode/flac"
-	_ "github.com/kweigh/kweigh/decode/mp3"
-	_ "github.com/kweigh/kweigh/decode/wav"
+	_ "github.com/kweigh/kweigh/decode/formats"
 )
 
 // version is set at build time with -ldflags "-X main.version=…".

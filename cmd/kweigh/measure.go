@@ -55,7 +55,7 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	mopt := o.measureOptions()
 	runBatch(ctx, o, targets, stderr,
 		func(i int) (*measure.Measurement, bool) {
-			m := measureTarget(targets[i], mopt)
+			m := measureTarget(ctx, targets[i], mopt)
 			return m, !skipped(targets[i], m)
 		},
 		func(_ int, m *measure.Measurement) {

@@ -10,7 +10,7 @@ func init() {
 	decode.Register(decode.Format{
 		Name:  "aiff",
 		Match: match,
-		New: func(src decode.Source, size int64) (decode.Decoder, error) {
+		New: func(src decode.Source, size int64, opt decode.Options) (decode.Decoder, error) {
 			return NewDecoder(src, size)
 		},
 	})

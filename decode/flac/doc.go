@@ -23,9 +23,9 @@
 //     shorter than STREAMINFO declares;
 //   - 32-bit FLAC (allowed since FLAC 1.4) is rejected as unsupported.
 //
-// MD5 verification is on by default; NewDecoder takes Options, and
-// SetDefaultOptions changes the options of the registered decoder (e.g. for
-// a command-line flag that turns verification off for speed).
+// MD5 verification is on by default; NewDecoder takes Options, and the
+// registered decoder follows decode.Options.SkipMD5, given per call to
+// decode.OpenWith or decode.NewWith.
 //
 // The file is opened by the caller (decode.Open) and read through
 // flac.New, never flac.Open, whose Close does not close the file.

@@ -39,13 +39,10 @@ func Example() {
 	// 22050 frames, MD5 verified: true
 }
 
-// Turn MD5 verification off for every FLAC file opened through package
-// decode, e.g. from a command-line flag; frame CRCs are still checked.
-func ExampleSetDefaultOptions() {
-	flac.SetDefaultOptions(flac.Options{VerifyMD5: false})
-	defer flac.SetDefaultOptions(flac.DefaultOptions())
-
-	f, err := decode.Open("testdata/mono8-8k.flac")
+// Turn MD5 verification off for one file opened through package decode,
+// e.g. from a command-line flag; frame CRCs are still checked.
+func Example_skipMD5() {
+	f, err := decode.OpenWith("testdata/mono8-8k.flac", decode.Options{SkipMD5: true})
 	if err != nil {
 		log.Fatal(err)
 	}

@@ -1,7 +1,5 @@
 package flac
 
-import "sync"
-
 // Options tune the decoder.
 type Options struct {
 	// VerifyMD5 recomputes the MD5 of the decoded samples and compares it
@@ -13,23 +11,3 @@ type Options struct {
 
 // DefaultOptions are the options of a fresh process: MD5 verification on.
 func DefaultOptions() Options { return Options{VerifyMD5: true} }
-
-var (
-	registeredMu   sync.RWMutex
-	registeredOpts = DefaultOptions()
-)
-
-// SetDefaultOptions sets the options used by the decoder registered with
-// package decode (decode.Open, decode.New). Call it before opening files,
-// e.g. from a command-line flag; decoders already open keep their options.
-func SetDefaultOptions(o Options) {
-	registeredMu.Lock()
-	registeredOpts = o
-	registeredMu.Unlock()
-}
-
-func registeredOptions() Options {
-	registeredMu.RLock()
-	defer registeredMu.RUnlock()
-	return registeredOpts
-}

@@ -11,8 +11,8 @@ func init() {
 	decode.Register(decode.Format{
 		Name:  "flac",
 		Match: match,
-		New: func(src decode.Source, size int64) (decode.Decoder, error) {
-			return NewDecoder(src, size, registeredOptions())
+		New: func(src decode.Source, size int64, opt decode.Options) (decode.Decoder, error) {
+			return NewDecoder(src, size, Options{VerifyMD5: !opt.SkipMD5})
 		},
 	})
 }

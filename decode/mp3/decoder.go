@@ -14,7 +14,7 @@ func init() {
 	decode.Register(decode.Format{
 		Name:  "mp3",
 		Match: Match,
-		New: func(src decode.Source, size int64) (decode.Decoder, error) {
+		New: func(src decode.Source, size int64, opt decode.Options) (decode.Decoder, error) {
 			return New(src, size)
 		},
 	})

@@ -7,7 +7,7 @@ import (
 )
 
 func init() {
-	decode.Register(decode.Format{Name: "wav", Match: Match, New: New})
+	decode.Register(decode.Format{Name: "wav", Match: Match, New: func(src decode.Source, size int64, _ decode.Options) (decode.Decoder, error) { return New(src, size) }})
 }
 
 // riffMagics are the first FourCCs of the containers this package reads (and

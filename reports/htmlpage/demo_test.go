@@ -1,6 +1,7 @@
 package htmlpage
 
 import (
+	"context"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -90,7 +91,7 @@ func measureDemoSet() error {
 			specs[specPath] = spec
 			demoSetSpecs = append(demoSetSpecs, spec.ID)
 		}
-		m := measure.File(path, measure.Options{KeepSeries: true})
+		m := measure.File(context.Background(), path, measure.Options{KeepSeries: true})
 		r := rules.Evaluate(spec, m)
 		demoSetEntries = append(demoSetEntries, Entry{Result: &r, Target: TargetFor(spec, m.Channels)})
 	}

@@ -1,6 +1,7 @@
 package htmlpage
 
 import (
+	"context"
 	"io"
 	"math"
 	"sync"
@@ -146,7 +147,7 @@ func (s *synthSource) sample(frame int64) float64 {
 // 10 Hz series.
 func measureProgramme(t testing.TB, p programme) *measure.Measurement {
 	t.Helper()
-	m := measure.Stream(p.path, newSynthSource(p), measure.Options{KeepSeries: true})
+	m := measure.Stream(context.Background(), p.path, newSynthSource(p), measure.Options{KeepSeries: true})
 	if m.Error == "" && m.Series == nil {
 		t.Fatalf("%s: measurement kept no series", p.path)
 	}
