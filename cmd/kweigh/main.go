@@ -130,16 +130,19 @@ func main() {
 	ctx, cancel := context.WithCancelCause(context.Background())
 	signals := make(chan os.Signal, 2)
 	signal.Notify(signals, os.Interrupt, syscall.SIGTERM)
-	go func() {
-		// The first signal stops the run between two blocks of audio and
-		// lets it write what it has; a second one ends the process at once.
-		first := <-signals
-		fmt.Fprintf(os.Stderr, "kweigh: %s: stopping (send it again to quit at once)\n", signalName(first))
-		cancel(interruptedError{sig: first})
-		second := <-signals
-		os.Exit(interruptedError{sig: second}.status())
-	}()
+	go onSignals(signals, cancel, os.Exit, os.Stderr)
 	os.Exit(run(ctx, os.Args, os.Stdout, os.Stderr))
+}
+
+// onSignals handles SIGINT and SIGTERM: the first cancels the run (it
+// stops between two blocks of audio and writes what it has, marked as
+// interrupted); a second one ends the process at once.
+func onSignals(signals <-chan os.Signal, cancel context.CancelCauseFunc, exit func(int), stderr io.Writer) {
+	first := <-signals
+	fmt.Fprintf(stderr, "kweigh: %s: stopping (send it again to quit at once)\n", signalName(first))
+	cancel(interruptedError{sig: first})
+	second := <-signals
+	exit(interruptedError{sig: second}.status())
 }
 
 // run executes the command line and returns the exit status; tests call it
