@@ -301,3 +301,50 @@ func TestSpecSearchUpwards(t *testing.T) {
 		}
 	}
 }
+
+// TestMixedFolderConcurrent runs check on four workers over a folder of
+// every kind of entry (WAV, FLAC, MP3, a damaged WAV, a cue sheet, a FIFO,
+// a sub-folder with its own spec); .ci/run runs it under the race
+// detector. Every audio entry is reported once, in folder order.
+func TestMixedFolderConcurrent(t *testing.T) {
+	dir := t.TempDir()
+	writeTestFile(t, dir, "kweigh.toml", []byte("name = \"saltmarsh-fm\"\nextends = \"ebu-r128\"\n"))
+	writeTestFile(t, dir, "a-tone.wav", lineUpWAV())
+	writeTestFile(t, dir, "b-music.flac", readTestFile(t, filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac")))
+	writeTestFile(t, dir, "c-talk.mp3", readTestFile(t, filepath.Join(demoDir, "northgate-podcasts", "lamplighters-almanac-s02e12.mp3")))
+	writeTestFile(t, dir, "d-cut.wav", lineUpWAV()[:30])
+	writeTestFile(t, dir, "e-notes.txt", []byte("running order\n"))
+	if err := syscall.Mkfifo(filepath.Join(dir, "f-pipe.wav"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	writeTestFile(t, dir, "g-podcast/kweigh.toml", []byte("name = \"reedbank-audio\"\nextends = \"podcast\"\n"))
+	writeTestFile(t, dir, "g-podcast/h-episode.wav", lineUpWAV())
+	code, out, errOut := kweighWithin(t, time.Minute, "check", "--jobs", "4", "--format", "json", dir)
+	if code != exitTrouble {
+		t.Errorf("exit %d, want %d (a cut WAV and a FIFO): %s", code, exitTrouble, errOut)
+	}
+	var doc checkDoc
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	want := []struct{ name, spec, verdict string }{
+		{"a-tone.wav", "saltmarsh-fm", ""},
+		{"b-music.flac", "saltmarsh-fm", ""},
+		{"c-talk.mp3", "saltmarsh-fm", ""},
+		{"d-cut.wav", "saltmarsh-fm", "error"},
+		{"f-pipe.wav", "saltmarsh-fm", "error"},
+		{"h-episode.wav", "reedbank-audio", ""},
+	}
+	if len(doc.Files) != len(want) {
+		t.Fatalf("%d files reported, want %d: %+v", len(doc.Files), len(want), doc.Files)
+	}
+	for i, w := range want {
+		f := doc.Files[i]
+		if filepath.Base(f.Path) != w.name || w.verdict != "" && f.Verdict != w.verdict || w.verdict == "" && f.Verdict == "error" {
+			t.Errorf("file %d: %s %s %s (%s), want %s by %s, verdict %q", i, f.Path, f.Spec, f.Verdict, f.Error, w.name, w.spec, w.verdict)
+		}
+		if w.spec != "none" && f.Spec != w.spec {
+			t.Errorf("%s judged by %s, want %s", w.name, f.Spec, w.spec)
+		}
+	}
+}
