@@ -34,11 +34,12 @@ type Result struct {
 	// Oversampling is the true-peak oversampling factor used (4, 2 or 1).
 	Oversampling int
 
-	// NonFinite counts NaN and ±Inf samples written. The meter measured
+	// Rejected counts the samples written that the meter cannot measure:
+	// NaN, ±Inf and finite values beyond ±MaxMagnitude. The meter measured
 	// each of them as 0 (silence) so that one bad sample cannot poison the
-	// filter state for the rest of the stream; when NonFinite is not zero
-	// the figures describe damaged audio and a caller should say so.
-	NonFinite int64
+	// filter state for the rest of the stream; when Rejected is not zero the
+	// figures describe damaged audio and a caller should say so.
+	Rejected int64
 
 	// Series holds the 10 Hz time series behind the figures above.
 	Series Series
@@ -103,7 +104,7 @@ type Meter struct {
 
 	frames       int64 // frames written
 	nextBoundary int64 // frame index where the current 100 ms block ends
-	nonFinite    int64
+	rejected     int64 // samples beyond MaxMagnitude, NaN included
 
 	// The current, unfinished 100 ms block.
 	energy     float64   // Σ weight·Σy² over channels
@@ -163,10 +164,10 @@ func NewMeter(sampleRate int, weights []float64) (*Meter, error) {
 // round(k·rate/10), halves up.
 func (m *Meter) boundary(k int64) int64 { return (k*int64(m.rate) + 5) / 10 }
 
-// NonFinite returns how many NaN or ±Inf samples have been written since
-// the meter was built or reset. Unlike Result it costs nothing, so a caller
-// can ask after every Write.
-func (m *Meter) NonFinite() int64 { return m.nonFinite }
+// Rejected returns how many samples the meter could not measure (NaN, ±Inf,
+// or beyond ±MaxMagnitude) since it was built or reset. Unlike Result it
+// costs nothing, so a caller can ask after every Write.
+func (m *Meter) Rejected() int64 { return m.rejected }
 
 // Reset makes the meter ready for a new stream with the same configuration.
 func (m *Meter) Reset() {
@@ -174,7 +175,7 @@ func (m *Meter) Reset() {
 		m.filters[c].Reset()
 		m.peaks[c].Reset()
 	}
-	m.frames, m.nonFinite, m.energy = 0, 0, 0
+	m.frames, m.rejected, m.energy = 0, 0, 0
 	m.nextBoundary = m.boundary(1)
 	clear(m.blockTrue)
 	clear(m.blockPeak)
@@ -184,8 +185,8 @@ func (m *Meter) Reset() {
 }
 
 // Write feeds interleaved frames. len(frames) must be a multiple of the
-// channel count; Write panics otherwise. NaN and ±Inf samples are measured
-// as 0 and counted in Result.NonFinite.
+// channel count; Write panics otherwise. NaN, ±Inf and samples beyond
+// ±MaxMagnitude are measured as 0 and counted in Result.Rejected.
 func (m *Meter) Write(frames []float64) {
 	nch := m.channels
 	if len(frames)%nch != 0 {
@@ -214,12 +215,15 @@ func (m *Meter) process(frames []float64, n int) {
 		for i := range in {
 			v := frames[j]
 			j += nch
-			if v-v != 0 { // NaN or ±Inf
-				v = 0
-				m.nonFinite++
+			// The bits of |v| order like |v|, and NaN and ±Inf order above
+			// every finite value: one integer comparison rejects all three.
+			a := math.Float64bits(v) &^ signBit
+			if a > maxMagnitudeBits {
+				v, a = 0, 0
+				m.rejected++
 			}
 			in[i] = v
-			if a := math.Float64bits(v) &^ signBit; a > peak {
+			if a > peak {
 				peak = a
 			}
 		}
@@ -303,7 +307,7 @@ func (m *Meter) Result() Result {
 		Channels:     m.channels,
 		Frames:       m.frames,
 		Oversampling: m.peaks[0].Factor(),
-		NonFinite:    m.nonFinite,
+		Rejected:     m.rejected,
 		TruePeak:     make([]float64, m.channels),
 		SamplePeak:   make([]float64, m.channels),
 	}
