@@ -40,7 +40,7 @@ func kweighBinary(t *testing.T) string {
 			return
 		}
 		binaryPath = filepath.Join(binaryDir, "kweigh")
-		out, err := exec.Command("go", "build", "-o", binaryPath, ".").CombinedOutput()
+		out, err := exec.Command("go", "build", "-trimpath", "-o", binaryPath, ".").CombinedOutput()
 		if err != nil {
 			binaryErr = err
 			t.Logf("%s", out)
