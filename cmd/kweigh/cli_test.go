@@ -60,6 +60,13 @@ func TestVersionFromBuildInfo(t *testing.T) {
 			{Key: "vcs.revision", Value: "0123456789abcdef0123"}, {Key: "vcs.modified", Value: "true"}}},
 			"devel 0123456789ab modified"},
 		{"no VCS", debug.BuildInfo{Main: debug.Module{Version: "(devel)"}}, "devel (built without version-control information)"},
+		// Go 1.24 and later stamp a pseudo-version from the checkout.
+		{"pseudo-version", debug.BuildInfo{Main: debug.Module{Version: "v0.0.0-20261201220526-107d7b25a852+dirty"}, Settings: []debug.BuildSetting{
+			{Key: "vcs.revision", Value: "107d7b25a8521234"}, {Key: "vcs.modified", Value: "true"}}},
+			"devel 107d7b25a852 modified"},
+		{"tagged checkout with changes", debug.BuildInfo{Main: debug.Module{Version: "v1.4.0+dirty"}, Settings: []debug.BuildSetting{
+			{Key: "vcs.revision", Value: "107d7b25a8521234"}, {Key: "vcs.modified", Value: "true"}}},
+			"v1.4.0 modified"},
 	}
 	for _, tc := range tests {
 		if got := versionFrom(&tc.info); got != tc.want {

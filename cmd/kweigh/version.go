@@ -3,8 +3,10 @@ package main
 import (
 	"context"
 	"fmt"
+	"regexp"
 	"runtime"
 	"runtime/debug"
+	"strings"
 
 	"github.com/urfave/cli/v3"
 )
@@ -31,9 +33,6 @@ func versionString() string {
 }
 
 func versionFrom(info *debug.BuildInfo) string {
-	if v := info.Main.Version; v != "" && v != "(devel)" {
-		return v
-	}
 	var rev, at string
 	modified := false
 	for _, s := range info.Settings {
@@ -46,13 +45,26 @@ func versionFrom(info *debug.BuildInfo) string {
 			modified = s.Value == "true"
 		}
 	}
+	// Since Go 1.24 a build in a checkout gets a pseudo-version
+	// (v0.0.0-20261201220526-107d7b25a852, "+dirty" when modified); the
+	// revision, its time and the word "modified" say the same more plainly.
+	v := strings.TrimSuffix(info.Main.Version, "+dirty")
+	if v != "" && v != "(devel)" && !pseudoVersion.MatchString(v) {
+		if modified {
+			v += " modified"
+		}
+		return v
+	}
 	if rev == "" {
+		if v != "" && v != "(devel)" {
+			return v
+		}
 		return "devel (built without version-control information)"
 	}
 	if len(rev) > 12 {
 		rev = rev[:12]
 	}
-	v := "devel " + rev
+	v = "devel " + rev
 	if at != "" {
 		v += " " + at
 	}
@@ -61,6 +73,10 @@ func versionFrom(info *debug.BuildInfo) string {
 	}
 	return v
 }
+
+// pseudoVersion matches the tail of a Go module pseudo-version: a UTC
+// timestamp and a 12-digit revision prefix.
+var pseudoVersion = regexp.MustCompile(`-(0\.)?\d{14}-[0-9a-f]{12}$`)
 
 func versionCommand() *cli.Command {
 	return &cli.Command{
