@@ -171,6 +171,14 @@ func TestSignalsInterruptRun(t *testing.T) {
 		}
 	})
 
+	t.Run("SIGINT csv", func(t *testing.T) {
+		code, out, errOut, _ := interrupt(t, syscall.SIGINT, 700*time.Millisecond,
+			"measure", "--jobs", "1", "--format", "csv", delivery)
+		if code != 130 || out != "" || !strings.Contains(errOut, "CSV table is not written") {
+			t.Errorf("exit %d, stdout %q, stderr %q: an interrupted CSV run writes no table", code, out, errOut)
+		}
+	})
+
 	t.Run("SIGINT jsonl", func(t *testing.T) {
 		code, out, _, _ := interrupt(t, syscall.SIGINT, 700*time.Millisecond,
 			"check", "--spec", "ebu-r128", "--jobs", "1", "--format", "jsonl", delivery)
