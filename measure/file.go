@@ -104,13 +104,13 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		return fail(fmt.Errorf("header declares %d channels at %d Hz", info.Channels, info.SampleRate))
 	}
 
-	layout, source, err := chooseLayout(info, opt.Layout)
-	if err != nil {
-		return fail(err)
-	}
+	layout, source, note := chooseLayout(info, opt.Layout)
 	m.ChannelLayout, m.LayoutSource = layout, source
+	if note != "" {
+		m.Notes = append(m.Notes, note)
+	}
 	if source == "default" && info.Channels > 2 {
-		m.Notes = append(m.Notes, fmt.Sprintf("the file does not declare its channel layout; assumed %v by channel count (override with a layout option)", layout))
+		m.Notes = append(m.Notes, fmt.Sprintf("the file does not declare its channel layout; assumed %v by channel count (override with --layout)", layout))
 	}
 	weights, err := loudness.Weights(layout)
 	if err != nil {
@@ -198,19 +198,20 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 }
 
 // chooseLayout picks the user's layout, then the file's, then the default
-// by channel count.
-func chooseLayout(info decode.Info, user []string) ([]string, string, error) {
-	switch {
-	case user != nil:
-		if len(user) != info.Channels {
-			return nil, "", fmt.Errorf("the layout option names %d channels but the file has %d", len(user), info.Channels)
-		}
-		return user, "user", nil
-	case len(info.Layout) == info.Channels:
-		return info.Layout, "file", nil
-	default:
-		return decode.DefaultLayout(info.Channels), "default", nil
+// by channel count. A user layout applies only to files whose channel
+// count it fits: in a mixed batch the others keep their own layout, with a
+// note saying so.
+func chooseLayout(info decode.Info, user []string) (layout []string, source, note string) {
+	if user != nil && len(user) == info.Channels {
+		return user, "user", ""
 	}
+	if user != nil {
+		note = fmt.Sprintf("--layout %s names %d channels but the file has %d: it was not applied to this file", strings.Join(user, ","), len(user), info.Channels)
+	}
+	if len(info.Layout) == info.Channels {
+		return info.Layout, "file", note
+	}
+	return decode.DefaultLayout(info.Channels), "default", note
 }
 
 // firstRejected returns the index of the first sample the engine rejects
