@@ -25,7 +25,7 @@ func decimatedEntry(t *testing.T) Entry {
 		s.Momentary[i], s.ShortTerm[i], s.TruePeak[i], s.SamplePeak[i] = -24, -24, -6, -6.5
 	}
 	s.Momentary[0], s.ShortTerm[0] = float32(math.NaN()), float32(math.NaN())
-	s.TruePeak[50001] = 0.4 // in pair 25000
+	s.TruePeak[50001] = 0.4                // in pair 25000
 	s.ShortTermLevels[460] = 20*36000 - 29 // every short-term value, in the bin from -24.0 to -23.9 LUFS
 	m := &measure.Measurement{
 		Path: "archive/harbour-night-log.wav", Format: "rf64", Codec: "pcm",
