@@ -185,6 +185,10 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 	if n, ok := d.(decode.Noter); ok {
 		m.Notes = append(m.Notes, n.Notes()...)
 	}
+	if u := info.Undeclared; u != nil {
+		m.Undeclared = u
+		m.Notes = append(m.Notes, UndeclaredText(m.DurationS, u)+"; only the declared audio was measured")
+	}
 	fillLoudness(m, r)
 	if fold != nil {
 		m.StereoDownmix = fold.result()
@@ -287,4 +291,17 @@ func peak(linear float64) *float64 {
 	}
 	v := loudness.DB(linear)
 	return &v
+}
+
+// UndeclaredText says in words what a file holds beyond the declared
+// seconds of audio, e.g. "the header declares 10.0 s but 10.0 s more
+// audio-like data follows (960000 bytes from byte 960044 that are neither
+// chunks nor tags)". Less than 0.05 s is given in bytes.
+func UndeclaredText(declaredS float64, u *decode.Undeclared) string {
+	if u.Seconds < 0.05 {
+		return fmt.Sprintf("the header declares %.1f s but %d more bytes follow the audio from byte %d that are neither chunks nor tags",
+			declaredS, u.Bytes, u.Offset)
+	}
+	return fmt.Sprintf("the header declares %.1f s but %.1f s more audio-like data follows (%d bytes from byte %d that are neither chunks nor tags)",
+		declaredS, u.Seconds, u.Bytes, u.Offset)
 }
