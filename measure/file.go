@@ -27,7 +27,8 @@ type Options struct {
 	// DefaultClipRunMinSamples.
 	ClipRunMinSamples int
 	// KeepSeries keeps the 10 Hz time series in Measurement.Series (for
-	// plots).
+	// plots). Their size is bounded: past 1 h 49 min the engine decimates
+	// them (see loudness.Series).
 	KeepSeries bool
 	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
 	// passed to this file's decoder only.

@@ -112,6 +112,7 @@ func checkIntegrity(j *judge) (Check, bool) {
 	}
 	if u := j.m.Undeclared; u != nil {
 		c.Verdict, c.Measured = Warn, "undeclared data"
+		c.Limit = "audio decodes without damage; the header declares all of it"
 		if u.Seconds >= undeclaredFailS {
 			c.Verdict = Fail
 		}
