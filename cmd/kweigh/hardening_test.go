@@ -193,6 +193,18 @@ func TestFIFOsNeverBlock(t *testing.T) {
 	if code != exitTrouble || !strings.Contains(out, "not a regular file") {
 		t.Errorf("FIFO as kweigh.toml: exit %d\n%s", code, out)
 	}
+	// A device named on the command line or as --spec (issue 8: /dev/zero
+	// was "file is empty", and as a spec grew without bound).
+	if _, err := os.Stat("/dev/zero"); err == nil {
+		code, out, _ = kweighWithin(t, 20*time.Second, "measure", "/dev/zero")
+		if code != exitTrouble || !strings.Contains(out, "not a regular file") {
+			t.Errorf("measure /dev/zero: exit %d\n%s", code, out)
+		}
+		code, _, errOut := kweighWithin(t, 20*time.Second, "check", "--spec", "/dev/zero", filepath.Join(dir, "delivery", "good.wav"))
+		if code != exitTrouble || !strings.Contains(errOut, "not a regular file") {
+			t.Errorf("--spec /dev/zero: exit %d, stderr %q", code, errOut)
+		}
+	}
 	fifo := filepath.Join(dir, "house.toml")
 	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
 		t.Fatal(err)
