@@ -77,3 +77,31 @@ func TestResyncFindsFramesAfterJunk(t *testing.T) {
 		t.Errorf("got %v, want damage with frames resuming at byte %d", err, cut+100_000)
 	}
 }
+
+func TestAbsurdInfoCounts(t *testing.T) {
+	// An Info header declaring 2³²−1 frames and bytes: nothing is
+	// allocated for them (the length comes from the stream), the frames
+	// present are delivered untrimmed, and the missing ones are damage.
+	b := append([]byte(nil), audiotest.Fixture(t, "music-s48-128.mp3")...)
+	at := bytes.Index(b[:384], []byte("Info"))
+	for i := at + 8; i < at+16; i++ {
+		b[i] = 0xFF
+	}
+	got := decodeBytes(t, b)
+	if got.dec.Info().Frames != 168*1152 || got.frames() != 168*1152 {
+		t.Errorf("Info.Frames %d, %d delivered; want 168 frames of 1152 (the fixture's, TestParseXingFixtures)", got.dec.Info().Frames, got.frames())
+	}
+	if got.err == nil || !strings.Contains(got.err.Error(), "after 168 of the 4294967295 audio frames") {
+		t.Errorf("got %v, want damage: 168 of 4294967295 declared frames", got.err)
+	}
+	allocs := testing.AllocsPerRun(3, func() {
+		d, err := New(bytes.NewReader(b), int64(len(b)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		_ = d
+	})
+	if allocs > 40 {
+		t.Errorf("New made %.0f allocations", allocs)
+	}
+}
