@@ -29,8 +29,12 @@
 // The checks are independent of this package's own formulas: decoding
 // lame's streams must end every granule exactly on the length the encoder
 // wrote (part2_3_length) — a strong test of the side information, the
-// scale factors, the band tables and every Huffman table used — and the
-// arithmetic parts are compared with the standard's defining sums.
+// scale factors, the band tables and the code lengths of every Huffman
+// table used — and the arithmetic parts are compared with the standard's
+// defining sums. One thing these checks cannot see: two codewords of the
+// same length assigned to each other's (x, y) values. That is left to the
+// differential PCM tests against go-mp3 and lame, which need the whole
+// decoder.
 //
 // Missing before the decoder can be assembled and registered: Huffman
 // tables 13, 15, 16 (the base of 16–23) and 24 (the base of 24–31), and

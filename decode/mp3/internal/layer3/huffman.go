@@ -12,6 +12,8 @@ import (
 // table is a complete prefix code (Kraft sum exactly 1, no codeword a prefix
 // of another: TestHuffmanCodesComplete) and decoding lame's streams ends
 // every granule exactly on its part2_3_length (TestGranuleBitsFromLame).
+// Neither check would notice two codewords of equal length swapped between
+// their values; the differential tests of the assembled decoder will.
 //
 // Not here: the 16×16 tables 13, 15, 16 (with 24, the base of tables
 // 16–31) and 24. They could not be recalled reliably (a recalled table 13
