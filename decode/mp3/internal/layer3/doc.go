@@ -16,8 +16,8 @@
 //   - readMPEG1, readLSF: scale factors, with the MPEG-2 slen tables and
 //     their intensity-stereo variant for the right channel.
 //   - Huffman decoding, table-driven (a root table of up to 8 bits and
-//     second-level tables): big_values tables 0–12 with sign bits and
-//     linbits, count1 tables A and B, region boundaries from the
+//     second-level tables): every big_values table (0–31, linbits
+//     included) and count1 tables A and B, region boundaries from the
 //     scale-factor band tables.
 //   - requantise: |is|^(4/3) and 2^(e/4) by table (no math.Pow per line).
 //   - matrix: the synthesis matrixing as one 32-point DCT-II (Lee's
@@ -36,15 +36,16 @@
 // differential PCM tests against go-mp3 and lame, which need the whole
 // decoder.
 //
-// Missing before the decoder can be assembled and registered: Huffman
-// tables 13, 15, 16 (the base of 16–23) and 24 (the base of 24–31), and
-// the 512 coefficients of the synthesis window (ISO/IEC 11172-3 Annex B,
-// Table 3-B.3). They are data printed in the standard that could not be
-// written out reliably from memory (a recalled table 13 failed the
-// completeness check), and must be typed in from the document and then
-// verified as the others are. After them: joint stereo (M/S and intensity),
+// Missing before the decoder can be assembled and registered: the 512
+// coefficients of the synthesis window (ISO/IEC 11172-3 Annex B, Table
+// 3-B.3). They are data printed in the standard that could not be written
+// out reliably from memory (a recall gave 226 of the first 257 values,
+// each a plausible multiple of 2⁻¹⁶, with the rest lost), and must be
+// typed in from the document. After it: joint stereo (M/S and intensity),
 // short-block reordering, alias reduction, overlap-add with frequency
-// inversion, the bit reservoir across frames (the walk in the tests shows
-// the accounting), and the differential tests against go-mp3 and
-// `lame --decode` that must pass before package mp3 switches over.
+// inversion, the bit reservoir across frames (walkGranules in the tests
+// shows the accounting), and the differential tests against go-mp3 and
+// `lame --decode` that must pass before package mp3 switches over; they
+// also settle the one unconfirmed Huffman entry (table 15, see
+// bigValueCodes).
 package layer3
