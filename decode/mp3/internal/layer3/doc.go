@@ -25,6 +25,11 @@
 //   - imdct36, imdct12, hybridBlock: the IMDCT as a DCT-IV through a
 //     9-point (3 × 3) or 3-point complex DFT, with the block-type windows
 //     and the short-block overlap.
+//   - midSide, reorder, aliasReduce, hybrid: M/S stereo, short-block
+//     reordering, the alias-reduction butterflies, and the hybrid filter
+//     bank with overlap-add and frequency inversion (checked against their
+//     definitions and invariants: rotations keep energy, reordering is the
+//     defined permutation).
 //
 // The checks are independent of this package's own formulas: decoding
 // lame's streams must end every granule exactly on the length the encoder
@@ -41,11 +46,12 @@
 // 3-B.3). They are data printed in the standard that could not be written
 // out reliably from memory (a recall gave 226 of the first 257 values,
 // each a plausible multiple of 2⁻¹⁶, with the rest lost), and must be
-// typed in from the document. After it: joint stereo (M/S and intensity),
-// short-block reordering, alias reduction, overlap-add with frequency
-// inversion, the bit reservoir across frames (walkGranules in the tests
-// shows the accounting), and the differential tests against go-mp3 and
-// `lame --decode` that must pass before package mp3 switches over; they
-// also settle the one unconfirmed Huffman entry (table 15, see
-// bigValueCodes).
+// typed in from the document, with the windowing of the synthesis (the
+// 1024-value V buffer and the 16-term sums). After it: intensity stereo
+// (MPEG-1 tan(is_pos·π/12) ratios, MPEG-2 intensity_scale positions), the
+// bit reservoir across frames (walkGranules in the tests shows the
+// accounting), the frame loop with CRC checks, and the differential tests
+// against go-mp3 and `lame --decode` that must pass before package mp3
+// switches over; they also settle the one unconfirmed Huffman entry (table
+// 15, see bigValueCodes).
 package layer3
