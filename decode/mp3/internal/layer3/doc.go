@@ -20,8 +20,11 @@
 //     included) and count1 tables A and B, region boundaries from the
 //     scale-factor band tables.
 //   - requantise: |is|^(4/3) and 2^(e/4) by table (no math.Pow per line).
-//   - matrix: the synthesis matrixing as one 32-point DCT-II (Lee's
-//     factorisation, 80 multiplications instead of 2048).
+//   - matrix, synthesis: the polyphase synthesis, its matrixing as one
+//     32-point DCT-II (Lee's factorisation, 80 multiplications instead of
+//     2048) and its windowing as a 16-term sum per sample over a ring of
+//     V blocks, with the window passed in (checked against the standard's
+//     step-by-step procedure for arbitrary windows).
 //   - imdct36, imdct12, hybridBlock: the IMDCT as a DCT-IV through a
 //     9-point (3 × 3) or 3-point complex DFT, with the block-type windows
 //     and the short-block overlap.
@@ -46,8 +49,8 @@
 // 3-B.3). They are data printed in the standard that could not be written
 // out reliably from memory (a recall gave 226 of the first 257 values,
 // each a plausible multiple of 2⁻¹⁶, with the rest lost), and must be
-// typed in from the document, with the windowing of the synthesis (the
-// 1024-value V buffer and the 16-term sums). After it: intensity stereo
+// typed in from the document (synthesis.run takes it as a parameter).
+// After it: intensity stereo
 // (MPEG-1 tan(is_pos·π/12) ratios, MPEG-2 intensity_scale positions), the
 // bit reservoir across frames (walkGranules in the tests shows the
 // accounting), the frame loop with CRC checks, and the differential tests
