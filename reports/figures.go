@@ -55,12 +55,22 @@ func Peak(p *float64) string {
 	return Fixed(*p, 2)
 }
 
-// Gain formats a gain in dB with one decimal, like loudness, and an
-// explicit sign ("+3.4", "-2.0"; zero as "0.0"), so a boost cannot be read
-// as a cut.
+// Adjustment formats a gain or a peak reduction in dB as package rules
+// works it out, to 0.01 dB: one decimal when the hundredths digit is 0
+// ("-2.6"), two otherwise ("1.23"), so the figure is the one the advice
+// beside it states.
+func Adjustment(db float64) string {
+	if s := Fixed(db, 2); s != NotAvailable && !strings.HasSuffix(s, "0") {
+		return s
+	}
+	return Fixed(db, 1)
+}
+
+// Gain formats a gain in dB like Adjustment with an explicit sign ("+3.4",
+// "-2.0", "-0.04"; zero as "0.0"), so a boost cannot be read as a cut.
 func Gain(db float64) string {
-	s := Fixed(db, 1)
-	if s != NotAvailable && !strings.HasPrefix(s, "-") && s != "0.0" {
+	s := Adjustment(db)
+	if s != NotAvailable && !strings.HasPrefix(s, "-") && strings.Trim(s, "0.") != "" {
 		s = "+" + s
 	}
 	return s

@@ -132,21 +132,32 @@ func (t *checkText) checks(all []rules.Check) {
 // reasonIndent puts a check's reason under its id.
 const reasonIndent = "        "
 
-// fix writes the suggested gain, the limiter reduction and the advice.
+// fix writes the suggested gain, the limiter reduction and the advice,
+// each worded for the case at hand: a limiter after a gain, or alone.
 func (t *checkText) fix(r *rules.Result) {
-	if Defined(r.SuggestedGainDB) {
-		text := "gain " + Gain(*r.SuggestedGainDB) + " dB reaches the target"
+	gain := Defined(r.SuggestedGainDB)
+	if gain {
+		text := "gain " + Gain(*r.SuggestedGainDB) + " dB suggested"
 		if *r.SuggestedGainDB > 0 {
 			text += " (this raises the level: check the peaks and listen at a safe volume)"
 		}
 		t.detail(text)
 	}
 	if Defined(r.LimiterReductionDB) {
-		t.detail("limiter needed: " + Fixed(*r.LimiterReductionDB, 1) + " dB of peak reduction after that gain")
+		t.detail("limiter needed: " + limiterText(*r.LimiterReductionDB, gain))
 	}
 	if r.Advice != "" {
 		t.detail("advice: " + r.Advice)
 	}
+}
+
+// limiterText words a limiter reduction: after the suggested gain when
+// there is one, on the file as it is otherwise.
+func limiterText(db float64, afterGain bool) string {
+	if afterGain {
+		return Adjustment(db) + " dB of true-peak reduction after that gain"
+	}
+	return Adjustment(db) + " dB of true-peak reduction, with no change of level"
 }
 
 func (t *checkText) Close(s Summary) error {

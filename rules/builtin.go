@@ -60,6 +60,7 @@ func ebuR128S1() *Spec {
 
 func atscA85() *Spec {
 	s := newSpec()
+	s.LoudnessUnit = "LKFS" // the unit the document writes
 	s.ID = "atsc-a85"
 	s.Title = "ATSC A/85:2013, US digital television"
 	s.Description = "Television programmes and commercials at -24 LKFS ±2 dB (LKFS and LUFS are the same unit)."
@@ -76,6 +77,7 @@ func atscA85() *Spec {
 
 func aribTRB32() *Spec {
 	s := newSpec()
+	s.LoudnessUnit = "LKFS" // the unit the document writes
 	s.ID = "arib-tr-b32"
 	s.Title = "ARIB TR-B32, Japanese television"
 	s.Description = "Television programmes at -24 LKFS ±1 dB, LFE excluded from the measurement."
@@ -91,6 +93,7 @@ func aribTRB32() *Spec {
 
 func op59() *Spec {
 	s := newSpec()
+	s.LoudnessUnit = "LKFS" // the unit the document writes
 	s.ID = "op-59"
 	s.Title = "Free TV Australia OP-59, Australian commercial television"
 	s.Description = "Programmes and advertisements at the same target, -24 LKFS."

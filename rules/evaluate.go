@@ -17,7 +17,7 @@ type checkRun func(j *judge) (c Check, ok bool)
 var checkOrder = []checkRun{
 	checkIntegrity,
 	checkIntegrated, checkTruePeak, checkMaxShortTerm, checkMaxMomentary, checkLoudnessRange,
-	checkDownmixIntegrated,
+	checkDownmixIntegrated, checkDownmixTruePeak,
 	checkContainer, checkSampleRate, checkBitDepth, checkSampleFormat, checkChannels, checkChannelLayout,
 	checkDuration, checkLeadingSilence, checkTrailingSilence,
 	checkClipping, checkDCOffset, checkPhase, checkPhaseWindow, checkDualMono, checkSilentChannels,
@@ -29,7 +29,7 @@ var checkOrder = []checkRun{
 var CheckIDs = []string{
 	"integrity",
 	"integrated", "true_peak", "max_short_term", "max_momentary", "loudness_range",
-	"downmix_integrated",
+	"downmix_integrated", "downmix_true_peak",
 	"container", "sample_rate", "bit_depth", "sample_format", "channels", "channel_layout",
 	"duration", "leading_silence", "trailing_silence",
 	"clipping", "dc_offset", "phase", "phase_window", "dual_mono", "silent_channels",

@@ -24,6 +24,11 @@ type Spec struct {
 	Extends string
 	// File is the path a user spec was read from; empty for built-ins.
 	File string
+	// LoudnessUnit is the name the spec's own document gives loudness
+	// figures: "LKFS" (ATSC A/85, ARIB TR-B32, OP-59) or "LUFS" (empty means
+	// LUFS). The two are the same unit; reports and reasons use the spec's
+	// word, JSON keys keep _lufs.
+	LoudnessUnit string
 
 	Loudness LoudnessLimits
 	Format   FormatLimits
@@ -272,6 +277,14 @@ func (s *Spec) integratedWindow(channels int) (lo, hi *float64, aim float64, ok 
 		return nil, l.MaxIntegratedLUFS, *l.MaxIntegratedLUFS, true
 	}
 	return nil, nil, 0, false
+}
+
+// Unit returns the spec's loudness unit, "LUFS" or "LKFS".
+func (s *Spec) Unit() string {
+	if s.LoudnessUnit == "" {
+		return "LUFS"
+	}
+	return s.LoudnessUnit
 }
 
 // targetFor returns the integrated target for a file with the given channel

@@ -194,7 +194,7 @@ func buildFile(i int, e Entry) fileView {
 		f.GainRaises = *r.SuggestedGainDB > 0
 	}
 	if r.LimiterReductionDB != nil {
-		f.Limiter = reports.Measured(*r.LimiterReductionDB, "dB")
+		f.Limiter = reports.Adjustment(*r.LimiterReductionDB) + " dB"
 	}
 	return f
 }
