@@ -195,6 +195,10 @@ func (a *adviser) downmix() {
 			exact(float64(gap)/100), side, exact(float64(d)/100), exact(float64(*a.fileShownOr(d))/100), a.u, limit))
 		return
 	}
+	// Keep both clear of the near-edge warning when the room allows.
+	if m := hundredths(s.Loudness.WarnMarginLU); gLo+m <= gHi-m {
+		gLo, gHi = gLo+m, gHi-m
+	}
 	// The gain nearest to the one that brings the fold-down to its aim.
 	g := min(max(hundredths(aim2)-d, gLo), gHi)
 	a.gain, a.gainSet = g, true
