@@ -65,6 +65,14 @@ func (t *checkText) Write(r *rules.Result) error {
 		}
 		t.checks(r.Checks)
 	}
+	if m != nil {
+		// Notes carry what the figures alone do not say (a decoder that
+		// clipped, an assumed layout, an undefined figure), as measure
+		// prints them.
+		for _, n := range m.Notes {
+			t.detail("note: " + n)
+		}
+	}
 	t.fix(r)
 	return t.flush()
 }
@@ -91,7 +99,7 @@ func figuresText(r *rules.Result) string {
 		return s + " " + u
 	}
 	return strings.Join([]string{
-		"integrated " + unit(Loudness(r.IntegratedLUFS), "LUFS"),
+		"integrated " + unit(Loudness(r.IntegratedLUFS), r.Unit()),
 		"range " + unit(Loudness(r.LoudnessRangeLU), "LU"),
 		"true peak " + unit(Peak(r.TruePeakDBTP), "dBTP"),
 		"duration " + Duration(r.DurationS),

@@ -44,7 +44,7 @@ var CheckIDs = []string{
 // check. spec must not be nil. Evaluate does not modify spec or m and is safe
 // for concurrent use.
 func Evaluate(spec *Spec, m *measure.Measurement) Result {
-	r := Result{Measurement: m, Spec: spec.ID, Checks: []Check{}}
+	r := Result{Measurement: m, Spec: spec.ID, LoudnessUnit: spec.Unit(), Checks: []Check{}}
 	if m == nil || m.Error != "" {
 		reason := "the file could not be measured"
 		if m != nil {

@@ -33,12 +33,24 @@ type Check struct {
 	Reason string `json:"reason"`
 }
 
+// Unit returns the loudness unit reports print for r: the spec's, or LUFS
+// for a file judged against no spec.
+func (r *Result) Unit() string {
+	if r == nil || r.LoudnessUnit == "" {
+		return "LUFS"
+	}
+	return r.LoudnessUnit
+}
+
 // Result is a Measurement judged against a spec. Its JSON form is the
 // measurement's keys plus spec, verdict, checks, suggested_gain_db.
 type Result struct {
 	*measure.Measurement
-	Spec    string  `json:"spec"`
-	Verdict Verdict `json:"verdict"`
+	Spec string `json:"spec"`
+	// LoudnessUnit is the spec's word for loudness figures, "LUFS" or
+	// "LKFS" (Spec.Unit): reports print loudness in it.
+	LoudnessUnit string  `json:"loudness_unit,omitempty"`
+	Verdict      Verdict `json:"verdict"`
 	Checks  []Check `json:"checks"`
 	// SuggestedGainDB is the gain that brings integrated loudness to the
 	// spec's target (or, for a surround file whose fold-down is judged too,

@@ -1,0 +1,81 @@
+package reports
+
+import (
+	"bytes"
+	"strings"
+	"testing"
+
+	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/rules"
+)
+
+// TestLoudnessUnitFollowsSpec: a spec whose document writes LKFS (ATSC
+// A/85:2013 [desc]) gets LKFS in the text report, and the JSON keeps its
+// _lufs keys with the spec's word beside them (issue 9).
+func TestLoudnessUnitFollowsSpec(t *testing.T) {
+	spec, err := rules.Lookup("atsc-a85")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, tp := -21.2, -4.0
+	m := &measure.Measurement{Path: "tv/promo.wav", Format: "wav", Channels: 2, SampleRateHz: 48000, BitsPerSample: 24,
+		IntegratedLUFS: &v, TruePeakDBTP: &tp, Notes: []string{}, Signal: measure.Signal{SilentChannels: []string{}, DCOffset: []float64{0, 0}}}
+	r := rules.Evaluate(spec, m)
+	for _, f := range []Format{Text, JSON} {
+		var b bytes.Buffer
+		w, err := NewCheckWriter(&b, f, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := w.Write(&r); err != nil {
+			t.Fatal(err)
+		}
+		if err := w.Close(Summary{}); err != nil {
+			t.Fatal(err)
+		}
+		out := b.String()
+		switch f {
+		case Text:
+			for _, want := range []string{"integrated -21.2 LKFS", "limit -24.0 LKFS ±2.0 LU", "to reach -24.0 LKFS"} {
+				if !strings.Contains(out, want) {
+					t.Errorf("text lacks %q:\n%s", want, out)
+				}
+			}
+			if strings.Contains(out, "LUFS") {
+				t.Errorf("text still says LUFS for an LKFS spec:\n%s", out)
+			}
+		case JSON:
+			if !strings.Contains(out, `"integrated_lufs": -21.2`) || !strings.Contains(out, `"loudness_unit": "LKFS"`) {
+				t.Errorf("JSON keys or unit wrong:\n%s", out)
+			}
+		}
+	}
+}
+
+// TestCheckTextShowsNotes: the check report shows the notes that measure
+// and JSON show, such as a decoder's own findings (issue 9).
+func TestCheckTextShowsNotes(t *testing.T) {
+	spec, err := rules.Lookup("podcast")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, tp := -16.0, -1.5
+	m := &measure.Measurement{Path: "pod/ep1.mp3", Format: "mp3", Channels: 2, SampleRateHz: 44100,
+		IntegratedLUFS: &v, TruePeakDBTP: &tp, Signal: measure.Signal{SilentChannels: []string{}, DCOffset: []float64{0, 0}},
+		Notes: []string{"decoder clipped 21 samples at full scale while decoding"}}
+	r := rules.Evaluate(spec, m)
+	var b bytes.Buffer
+	w, err := NewCheckWriter(&b, Text, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Write(&r); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(Summary{}); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), "note: decoder clipped 21 samples at full scale while decoding") {
+		t.Errorf("check text drops the decoder note:\n%s", b.String())
+	}
+}
