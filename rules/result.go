@@ -51,7 +51,7 @@ type Result struct {
 	// "LKFS" (Spec.Unit): reports print loudness in it.
 	LoudnessUnit string  `json:"loudness_unit,omitempty"`
 	Verdict      Verdict `json:"verdict"`
-	Checks  []Check `json:"checks"`
+	Checks       []Check `json:"checks"`
 	// SuggestedGainDB is the gain that brings integrated loudness to the
 	// spec's target (or, for a surround file whose fold-down is judged too,
 	// puts both inside the limit), worked out to 0.01 dB from the figures
