@@ -144,6 +144,7 @@ func podcast() *Spec {
 	s.Source = Source{Document: "podcast practice", Marker: "common practice"}
 	s.Loudness.TargetLUFS = ptr(-16.0)
 	s.Loudness.MonoTargetLUFS = ptr(-19.0)
+	s.Loudness.MonoOffsetLU = ptr(-3.0) // mono is "3 LU below stereo" in practice
 	s.Loudness.ToleranceLU = 1.0
 	s.Loudness.MaxTruePeakDBTP = ptr(-1.0)
 	s.LimitSources["integrated"] = "podcast practice: -16 LUFS stereo, -19 LUFS mono, ±1 LU (common practice, no published source)"

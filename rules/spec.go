@@ -77,7 +77,12 @@ type LoudnessLimits struct {
 	ToleranceLU float64  // ± around TargetLUFS
 	// MonoTargetLUFS replaces TargetLUFS for one-channel files (podcast
 	// practice: -16 LUFS stereo, -19 LUFS mono); needs TargetLUFS.
-	MonoTargetLUFS    *float64
+	MonoTargetLUFS *float64
+	// MonoOffsetLU, when set, says the mono target is defined relative to
+	// the stereo one (podcast practice: 3 LU below): a user spec that
+	// extends this one and moves TargetLUFS without setting a mono target
+	// moves the mono target with it.
+	MonoOffsetLU      *float64
 	MinIntegratedLUFS *float64 // window, lower bound
 	MaxIntegratedLUFS *float64 // window, upper bound
 	// WarnMarginLU turns a pass into a warning when the integrated loudness
@@ -230,6 +235,7 @@ func (s *Spec) Clone() *Spec {
 	// them is safe; copy them anyway so the clone is fully independent.
 	c.Loudness.TargetLUFS = clonePtr(s.Loudness.TargetLUFS)
 	c.Loudness.MonoTargetLUFS = clonePtr(s.Loudness.MonoTargetLUFS)
+	c.Loudness.MonoOffsetLU = clonePtr(s.Loudness.MonoOffsetLU)
 	c.Loudness.MinIntegratedLUFS = clonePtr(s.Loudness.MinIntegratedLUFS)
 	c.Loudness.MaxIntegratedLUFS = clonePtr(s.Loudness.MaxIntegratedLUFS)
 	c.Loudness.MaxTruePeakDBTP = clonePtr(s.Loudness.MaxTruePeakDBTP)
