@@ -94,7 +94,9 @@ type Signal struct {
 	Correlation          *float64 `json:"correlation"`
 	MinWindowCorrelation *float64 `json:"min_window_correlation"`
 	// DualMono is true when a two-channel file carries the same signal on
-	// both channels (every sample within one LSB).
+	// both channels: every sample within one LSB, or L−R at least
+	// DualMonoSideToMidDB (50 dB) below L+R in energy, which is the same
+	// signal up to independent dither.
 	DualMono bool `json:"dual_mono"`
 	// SilentChannels lists the labels of channels that hold digital silence
 	// or stay below the silence threshold throughout.
