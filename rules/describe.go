@@ -186,7 +186,7 @@ func (s *Spec) limitRows() []limitRow {
 	add(policyRow("silent_channels", "no silent channel (LFE excepted)", sig.SilentChannels, s))
 	bx := s.Bext
 	if bx.Mismatch != PolicyAllow || bx.Required {
-		lim := fmt.Sprintf("declared within ±%s LU (I), ±%s dB (true peak), ±%s LU (LRA) of measured; mismatch: %s",
+		lim := fmt.Sprintf("declared within ±%s LU (I, max M, max S), ±%s dB (true peak), ±%s LU (LRA) of measured; mismatch: %s",
 			magnitude(bx.LoudnessToleranceLU), magnitude(bx.TruePeakToleranceDB), magnitude(bx.LRAToleranceLU), policyOrWarn(bx.Mismatch))
 		if bx.Required {
 			lim = "required; " + lim
