@@ -52,7 +52,8 @@ type Info struct {
 	// tag of the same name), 0 when absent.
 	ChannelMask uint32
 	// BitsPerSample is the number of significant bits per sample (the
-	// "valid bits" of an extensible WAV, 16 for a decoded MP3).
+	// "valid bits" of an extensible WAV); 0 for lossy formats such as MP3,
+	// which have no bit depth.
 	BitsPerSample int
 	// SampleFormat is Int or Float.
 	SampleFormat SampleFormat
@@ -65,6 +66,13 @@ type Info struct {
 	// Mode is a format-specific description of the channel coding, e.g.
 	// "joint stereo" for MP3; empty when it adds nothing.
 	Mode string
+	// BitRateMode says how a compressed stream spends its bits: "cbr"
+	// (constant), "vbr" (variable), "abr" (average), or "" when unknown or
+	// not compressed. Podcast delivery specs often ask for CBR.
+	BitRateMode string
+	// Tags lists the metadata blocks the file carries besides the audio,
+	// e.g. "id3v2.4", "id3v1", "ape"; nil when none or not looked for.
+	Tags []string
 	// Bext holds the Broadcast Wave extension chunk when the file has one.
 	Bext *Bext
 }

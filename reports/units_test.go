@@ -79,3 +79,33 @@ func TestCheckTextShowsNotes(t *testing.T) {
 		t.Errorf("check text drops the decoder note:\n%s", b.String())
 	}
 }
+
+// TestLossyBitDepth: a lossy file has no bit depth: "—" in text, an empty
+// cell in CSV, null in JSON (issue 9); its bit-rate mode and tags show in
+// the stream line.
+func TestLossyBitDepth(t *testing.T) {
+	v := -16.0
+	m := &measure.Measurement{Path: "pod/ep2.mp3", Format: "mp3", Codec: "mpeg-1 layer 3", SampleFormat: "int", Channels: 2, SampleRateHz: 44100,
+		BitRateKbps: 128, BitRateMode: "cbr", Mode: "joint stereo", Tags: []string{"id3v2.4"},
+		IntegratedLUFS: &v, Signal: measure.Signal{SilentChannels: []string{}, DCOffset: []float64{0, 0}}, Notes: []string{}}
+	if got, want := streamText(m), "mp3, mpeg-1 layer 3, — bits, 128 kbps CBR, joint stereo, 44100 Hz, 2 channels, tags id3v2.4"; got != want {
+		t.Errorf("stream text %q, want %q", got, want)
+	}
+	for f, want := range map[Format]string{CSV: ",2,L;R,,int,", JSON: `"bits_per_sample": null`} {
+		m.ChannelLayout = []string{"L", "R"}
+		var b bytes.Buffer
+		w, err := NewMeasureWriter(&b, f, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := w.Write(m); err != nil {
+			t.Fatal(err)
+		}
+		if err := w.Close(Summary{}); err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(b.String(), want) {
+			t.Errorf("%s lacks %q:\n%s", f, want, b.String())
+		}
+	}
+}

@@ -150,6 +150,12 @@ func (s *Spec) limitRows() []limitRow {
 	if len(f.BitDepths) > 0 {
 		add("bit_depth", "one of "+joinInts(f.BitDepths)+" bits", s.sourceOf("bit_depth"))
 	}
+	if f.MinBitRateKbps != nil || f.MaxBitRateKbps != nil {
+		add("bit_rate", "compressed files: "+rangeLimit(f.MinBitRateKbps, f.MaxBitRateKbps, "kbps"), s.sourceOf("bit_rate"))
+	}
+	if len(f.BitRateModes) > 0 {
+		add("bit_rate_mode", "compressed files: one of "+strings.Join(f.BitRateModes, ", "), s.sourceOf("bit_rate_mode"))
+	}
 	if len(f.SampleFormats) > 0 {
 		add("sample_format", "one of "+strings.Join(f.SampleFormats, ", "), s.sourceOf("sample_format"))
 	}

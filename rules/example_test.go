@@ -105,7 +105,7 @@ func ExampleSpec_Describe() {
 	//                         source: kweigh QC default, warn only (common practice, no published source)
 	// silent_channels       no silent channel (LFE excepted)
 	//                         source: kweigh QC default, warn only (common practice, no published source)
-	// bext_loudness         declared within ±0.5 LU (I), ±1.0 dB (true peak), ±2.0 LU (LRA) of measured; mismatch: warn
+	// bext_loudness         declared within ±0.5 LU (I, max M, max S), ±1.0 dB (true peak), ±2.0 LU (LRA) of measured; mismatch: warn
 	//                         source: kweigh QC default, warn only (common practice, no published source)
 	//
 	// Notes:

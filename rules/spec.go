@@ -118,6 +118,13 @@ type FormatLimits struct {
 	// Layouts lists accepted channel layouts, each as channel labels in
 	// stream order (package decode's vocabulary, e.g. [L R]).
 	Layouts [][]string
+	// MinBitRateKbps and MaxBitRateKbps bound the average coded bit rate of
+	// compressed files (kbit/s); uncompressed files are not judged.
+	MinBitRateKbps *float64
+	MaxBitRateKbps *float64
+	// BitRateModes lists the accepted ways a compressed file spends its
+	// bits: "cbr", "vbr", "abr".
+	BitRateModes []string
 }
 
 // TimingLimits restrict duration and silence at the ends, in seconds.
@@ -222,6 +229,9 @@ func (s *Spec) Clone() *Spec {
 	c.Format.BitDepths = append([]int(nil), s.Format.BitDepths...)
 	c.Format.SampleFormats = append([]string(nil), s.Format.SampleFormats...)
 	c.Format.Channels = append([]int(nil), s.Format.Channels...)
+	c.Format.BitRateModes = append([]string(nil), s.Format.BitRateModes...)
+	c.Format.MinBitRateKbps = clonePtr(s.Format.MinBitRateKbps)
+	c.Format.MaxBitRateKbps = clonePtr(s.Format.MaxBitRateKbps)
 	c.Format.Layouts = nil
 	for _, l := range s.Format.Layouts {
 		c.Format.Layouts = append(c.Format.Layouts, append([]string(nil), l...))

@@ -39,7 +39,8 @@ func LoadFile(path string) (*Spec, error) {
 //	            max_true_peak_dbtp, max_short_term_lufs, max_momentary_lufs,
 //	            min_lra_lu, max_lra_lu, lra_advisory
 //	[format]    containers, sample_rates_hz, bit_depths, sample_formats,
-//	            channels, layouts
+//	            channels, layouts, min_bit_rate_kbps, max_bit_rate_kbps,
+//	            bit_rate_modes
 //	[timing]    min_duration_s, max_duration_s, max_leading_silence_s,
 //	            max_trailing_silence_s
 //	[signal]    max_clip_runs, max_dc_offset_dbfs, min_correlation,
@@ -308,6 +309,7 @@ func (p *specParser) crossCheck(s *Spec) {
 	p.ordered("loudness.min_integrated_lufs", l.MinIntegratedLUFS, "loudness.max_integrated_lufs", l.MaxIntegratedLUFS)
 	p.ordered("loudness.min_lra_lu", l.MinLRALU, "loudness.max_lra_lu", l.MaxLRALU)
 	p.ordered("timing.min_duration_s", s.Timing.MinDurationS, "timing.max_duration_s", s.Timing.MaxDurationS)
+	p.ordered("format.min_bit_rate_kbps", s.Format.MinBitRateKbps, "format.max_bit_rate_kbps", s.Format.MaxBitRateKbps)
 }
 
 // integratedSource writes where each value of the integrated requirement
