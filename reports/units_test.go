@@ -109,3 +109,38 @@ func TestLossyBitDepth(t *testing.T) {
 		}
 	}
 }
+
+// TestLimiterWording: the limiter line says "after that gain" only when a
+// gain was suggested (issue 9).
+func TestLimiterWording(t *testing.T) {
+	r128, err := rules.Lookup("ebu-r128")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := func(v, tp float64) string {
+		m := &measure.Measurement{Path: "x.wav", Format: "wav", Channels: 2, SampleRateHz: 48000, BitsPerSample: 24,
+			IntegratedLUFS: &v, TruePeakDBTP: &tp, Notes: []string{}, Signal: measure.Signal{SilentChannels: []string{}, DCOffset: []float64{0, 0}}}
+		r := rules.Evaluate(r128, m)
+		var b bytes.Buffer
+		w, err := NewCheckWriter(&b, Text, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := w.Write(&r); err != nil {
+			t.Fatal(err)
+		}
+		if err := w.Close(Summary{}); err != nil {
+			t.Fatal(err)
+		}
+		return b.String()
+	}
+	// EBU R 128: -23 LUFS ±1 [doc], -1 dBTP [desc]. On target with TP
+	// +0.23: a limiter alone, 1.23 dB.
+	if out := text(-23, 0.23); !strings.Contains(out, "limiter needed: 1.23 dB of true-peak reduction, with no change of level") || strings.Contains(out, "after that gain") {
+		t.Errorf("limiter without gain:\n%s", out)
+	}
+	// 4.0 dB quiet with TP -2.0: +4.0 dB, then TP +2.00, 3.0 dB over.
+	if out := text(-27, -2); !strings.Contains(out, "gain +4.0 dB suggested") || !strings.Contains(out, "limiter needed: 3.0 dB of true-peak reduction after that gain") {
+		t.Errorf("limiter after gain:\n%s", out)
+	}
+}
