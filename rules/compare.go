@@ -45,10 +45,6 @@ func round1(x float64) float64 { return math.Round(x*10) / 10 }
 // round2 rounds x to two decimals, as hundredths does.
 func round2(x float64) float64 { return float64(hundredths(x)) / 100 }
 
-// ceil1 rounds x up to the next 0.1, ignoring float noise below 0.001, so
-// that a limiter reduction written with one decimal is always enough.
-func ceil1(x float64) float64 { return math.Ceil(x*10-0.01) / 10 }
-
 // num writes x with the given number of decimals and an ASCII minus; it
 // never writes "-0.0".
 func num(x float64, decimals int) string {
