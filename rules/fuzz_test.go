@@ -22,6 +22,7 @@ func FuzzParse(f *testing.F) {
 	f.Add([]byte("extends = \"aes-td1004\"\n[loudness]\nmax_integrated_lufs = -17\n"))
 	f.Add([]byte("[format]\nlayouts = [\"5.1\", \"L,R,C\"]\ncontainers = []\n"))
 	f.Add([]byte("description = '''\n[x]\n'''\n[signal]\nmax_clip_runs = 1e3\n"))
+	f.Add([]byte("extends = \"podcast\"\n[loudness]\ntarget_lufs = -14\n[format]\nmin_bit_rate_kbps = 96\nbit_rate_modes = [\"cbr\"]\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		s, err := Parse("fuzz.toml", data)
 		if err != nil {
