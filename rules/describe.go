@@ -46,10 +46,10 @@ func (s *Spec) summaryParts() []string {
 	return parts
 }
 
-// description is the spec's own description, or for a spec that has none
-// (a user spec, which never inherits its base's wording), one generated
-// from the effective limits.
-func (s *Spec) description() string {
+// EffectiveDescription is the spec's own description, or for a spec that
+// has none (a user spec, which never inherits its base's wording), one
+// generated from the effective limits: what `specs show` prints.
+func (s *Spec) EffectiveDescription() string {
 	if s.Description != "" {
 		return s.Description
 	}
@@ -61,7 +61,7 @@ func (s *Spec) description() string {
 func (s *Spec) Describe(w io.Writer) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s: %s\n", s.ID, s.Title)
-	fmt.Fprintf(&b, "%s\n", s.description())
+	fmt.Fprintf(&b, "%s\n", s.EffectiveDescription())
 	fmt.Fprintf(&b, "Source: %s", s.Source)
 	if s.Source.Marker != "" {
 		fmt.Fprintf(&b, " [%s]", s.Source.Marker)
