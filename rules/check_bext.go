@@ -62,8 +62,12 @@ func checkBextLoudness(j *judge) (Check, bool) {
 			worst = d
 		}
 		if above(d, f.tol) {
-			off = append(off, fmt.Sprintf("%s declared %s %s, measured %s %s (%s apart, tolerance ±%s)",
-				f.what, signed(*f.declared, 2), f.unit, signed(*f.measured, 2), f.unit, exact(d), magnitude(f.tol)))
+			diff := "LU"
+			if f.unit == "dBTP" {
+				diff = "dB"
+			}
+			off = append(off, fmt.Sprintf("%s declared %s %s, measured %s %s (%s %s apart, tolerance ±%s %s)",
+				f.what, signed(*f.declared, 2), f.unit, signed(*f.measured, 2), f.unit, exact(d), diff, magnitude(f.tol), diff))
 		} else {
 			ok = append(ok, f.what)
 		}

@@ -142,7 +142,7 @@ func TestBextLoudness(t *testing.T) {
 	}
 	m.Bext.LoudnessValue = ptr(-23.55) // 0.55 LU from -23.0: beyond 0.5
 	c := mustCheck(t, Evaluate(s, m), "bext_loudness")
-	if c.Verdict != Warn || !strings.Contains(c.Reason, "integrated declared -23.55 LUFS, measured -23.00 LUFS (0.55 apart, tolerance ±0.5)") {
+	if c.Verdict != Warn || !strings.Contains(c.Reason, "integrated declared -23.55 LUFS, measured -23.00 LUFS (0.55 LU apart, tolerance ±0.5 LU)") {
 		t.Errorf("disagreeing bext, default policy: %+v", c)
 	}
 	u := s.Clone()
@@ -175,7 +175,7 @@ func TestBextMaxima(t *testing.T) {
 	}
 	m.Bext.MaxShortTermLoudness = ptr(-21.26)
 	c := mustCheck(t, Evaluate(s, m), "bext_loudness")
-	if c.Verdict != Warn || c.Measured != 1.26 || !strings.Contains(c.Reason, "max short-term declared -21.26 LUFS, measured -20.00 LUFS (1.26 apart, tolerance ±0.5)") {
+	if c.Verdict != Warn || c.Measured != 1.26 || !strings.Contains(c.Reason, "max short-term declared -21.26 LUFS, measured -20.00 LUFS (1.26 LU apart, tolerance ±0.5 LU)") {
 		t.Errorf("short-term maximum 1.26 LU off: %+v", c)
 	}
 }
