@@ -11,8 +11,9 @@ import (
 // The figure formatting below is shared by every human-readable report: the
 // text writers here and the HTML page (package reports/htmlpage) call these
 // functions, so the two can never print the same figure differently. The
-// decimals follow issue 2: one for loudness, gains and durations, two for
-// peaks.
+// decimals follow issue 2: one for loudness and durations, two for peaks;
+// gains and limiter figures are package rules' own, exact to 0.01 dB
+// (issue 9: the figure beside a reason is the one the reason implies).
 
 // NotAvailable is what every human-readable report prints for a figure the
 // standard leaves undefined (a file shorter than one gating block, audio
