@@ -132,9 +132,9 @@ func File(ctx context.Context, path string, o Options) *Record {
 	if err != nil {
 		return rec.fail(err, err.Error())
 	}
-	rec.GainDB = ptr(round2(p.gain))
+	rec.GainDB = ptr(p.gain)
 	if p.limit {
-		rec.LimitingDB = ptr(round2(p.limiting))
+		rec.LimitingDB = ptr(p.limiting)
 	}
 	rec.Action = p.action()
 	if o.DryRun {
@@ -328,7 +328,6 @@ func same(a, b string) bool {
 
 func ptr[T any](v T) *T { return &v }
 
-func round2(x float64) float64 { return math.Round(x*100) / 100 }
 
 // dbToLinear converts a gain in dB to a factor.
 func dbToLinear(db float64) float64 { return math.Pow(10, db/20) }

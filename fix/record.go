@@ -26,7 +26,8 @@ type Record struct {
 	Action Action  `json:"action"`
 	// GainDB is the static gain applied (positive: louder); LimitingDB the
 	// deepest gain reduction the limiter applied on top of it. Null when
-	// not applied; in a dry run, the planned figures.
+	// not applied; in a dry run, the planned figures. Unrounded, like every
+	// figure in kweigh's JSON.
 	GainDB     *float64 `json:"gain_db"`
 	LimitingDB *float64 `json:"limiting_db"`
 	// Before judges the input, After the written output (for "none

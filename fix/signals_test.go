@@ -2,20 +2,21 @@ package fix
 
 import (
 	"encoding/binary"
+	"io"
 	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"testing"
 
+	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/loudness"
 )
 
 // programme returns secs seconds of ch channels at rate: a speech-like
 // signal (band-limited noise in 80–300 ms bursts with pauses, a new level
 // every second over a 12 dB spread), scaled to integrated loudness lufs,
-// with a 5 ms Hann-windowed 3 kHz burst every 700 ms (the same on every
-// channel) whose sample peak is peakDB dBFS. The burst is what a limiter
+// with a 2 ms Hann-windowed 3 kHz burst every 1.1 s on the first channel whose sample peak is peakDB dBFS. The burst is what a limiter
 // must catch; it is short enough to move the integrated loudness by less
 // than a few hundredths of an LU. Seeded: the same signal every run.
 func programme(t testing.TB, seed uint64, secs float64, ch, rate int, lufs, peakDB float64) []float64 {
@@ -67,13 +68,11 @@ func programme(t testing.TB, seed uint64, secs float64, ch, rate int, lufs, peak
 		}
 	}
 	pk := math.Pow(10, peakDB/20)
-	w := rate * 5 / 1000
-	for c := rate / 3; c+w < n; c += rate * 7 / 10 {
+	w := rate * 2 / 1000
+	for c := rate / 3; c+w < n; c += rate * 11 / 10 {
 		for j := range w {
 			v := pk * 0.5 * (1 - math.Cos(2*math.Pi*float64(j)/float64(w))) * math.Sin(2*math.Pi*3000*float64(j)/float64(rate))
-			for k := range ch {
-				x[(c+j)*ch+k] += v
-			}
+			x[(c+j)*ch] += v
 		}
 	}
 	return x
@@ -96,7 +95,7 @@ func channelWeights(ch int) []float64 {
 type wavSpec struct {
 	rate, ch, bits int
 	float          bool
-	extensible     bool  // WAVE_FORMAT_EXTENSIBLE with a channel mask
+	extensible     bool // WAVE_FORMAT_EXTENSIBLE with a channel mask
 	mask           uint32
 	before, after  [][2]string // extra chunks (id, body) before and after data
 }
@@ -182,4 +181,26 @@ func bextBody(description string) string {
 	copy(b[330:], "09:30:00")
 	binary.LittleEndian.PutUint16(b[346:], 1)
 	return string(b) + "A=PCM,F=48000,W=24,M=stereo,T=Kestrel desk\r\n"
+}
+
+// decodeAll decodes a whole file with kweigh's decoders.
+func decodeAll(t testing.TB, path string) []float64 {
+	t.Helper()
+	f, err := decode.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	var out []float64
+	buf := make([]float64, 4096*f.Info().Channels)
+	for {
+		n, err := f.ReadFrames(buf)
+		out = append(out, buf[:n*f.Info().Channels]...)
+		if err == io.EOF {
+			return out
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
 }

@@ -62,10 +62,10 @@ func (w *work) run(ctx context.Context) *Record {
 		if w.p.limit && w.p.limiting > w.o.MaxLimitingDB+0.05 {
 			return w.rec.refuse("%s", tooDynamic(w.p.limiting, w.goal()))
 		}
-		w.rec.GainDB = ptr(round2(w.p.gain))
+		w.rec.GainDB = ptr(w.p.gain)
 		w.rec.LimitingDB = nil
 		if w.p.limit {
-			w.rec.LimitingDB = ptr(round2(w.p.limiting))
+			w.rec.LimitingDB = ptr(w.p.limiting)
 		}
 		w.rec.Action = w.p.action()
 		w.rec.Passes += w.p.passes
