@@ -328,7 +328,6 @@ func same(a, b string) bool {
 
 func ptr[T any](v T) *T { return &v }
 
-
 // dbToLinear converts a gain in dB to a factor.
 func dbToLinear(db float64) float64 { return math.Pow(10, db/20) }
 

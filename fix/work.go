@@ -55,6 +55,10 @@ func (w *work) run(ctx context.Context) *Record {
 		attempts = 3
 	}
 	aimOffset := 0.0
+	var best *candidate
+	if w.k == kindMP3 && w.lame != "" {
+		aimOffset = -lameScaleDB(w.info)
+	}
 	for attempt := 1; ; attempt++ {
 		if err := w.settle(ctx, aimOffset); err != nil {
 			return w.rec.fail(err, fmt.Sprintf("%s: %v", w.path, err))
@@ -73,23 +77,35 @@ func (w *work) run(ctx context.Context) *Record {
 		if err != nil {
 			return w.rec.fail(err, fmt.Sprintf("%s: %v", w.path, err))
 		}
-		w.rec.After = after
-		if loudnessPasses(after) {
-			if err := commit(tmp, w.dest); err != nil {
-				os.Remove(tmp)
+		if loudnessPasses(after) && (best == nil || w.closer(after, best.after)) {
+			if best != nil {
+				os.Remove(best.tmp)
+			}
+			best = &candidate{attempt: attempt, after: after, tmp: tmp, gain: w.rec.GainDB, limiting: w.rec.LimitingDB, action: w.rec.Action}
+		} else {
+			os.Remove(tmp)
+		}
+		if best != nil && (attempt >= attempts || w.onAim(best.after)) {
+			w.rec.After, w.rec.GainDB, w.rec.LimitingDB, w.rec.Action = best.after, best.gain, best.limiting, best.action
+			if err := commit(best.tmp, w.dest); err != nil {
+				os.Remove(best.tmp)
 				return w.rec.fail(err, fmt.Sprintf("%s: %v", w.path, err))
 			}
 			w.rec.Output = ptr(w.dest)
 			w.sizeRatio()
+			if attempt > 1 {
+				w.rec.Notes = append(w.rec.Notes, fmt.Sprintf("kept MP3 encode %d, the closest to the aim", best.attempt))
+			}
 			return w.rec
 		}
-		os.Remove(tmp)
 		if attempt >= attempts {
+			w.rec.After = after
 			return w.rec.refuse("the corrected audio still fails its loudness or true-peak check (%s); nothing was written", failingLoudness(after))
 		}
 		// An MP3 re-encode moved the level or the peaks: aim the PCM
 		// lower by the measured excess (plus 0.1 dB) and encode again.
 		am := after.Measurement
+		w.rec.Notes = append(w.rec.Notes, fmt.Sprintf("MP3 encode %d measured %s LUFS, %s dBTP: encoded again", attempt, figure(am.IntegratedLUFS), figure(am.TruePeakDBTP)))
 		if am.TruePeakDBTP != nil {
 			if over := *am.TruePeakDBTP - (w.p.ceiling - w.o.MarginDB); over > 0 {
 				w.p.target -= over + 0.1
@@ -99,8 +115,42 @@ func (w *work) run(ctx context.Context) *Record {
 		if am.IntegratedLUFS != nil && w.p.hasAim {
 			aimOffset += w.p.aim - *am.IntegratedLUFS
 		}
-		w.p.limit = w.p.limit || (w.m.TruePeakDBTP != nil && *w.m.TruePeakDBTP+w.p.gain > w.p.target)
+		if w.p.hasAim && w.m.IntegratedLUFS != nil && w.m.TruePeakDBTP != nil {
+			w.p.limit = w.p.limit || *w.m.TruePeakDBTP+w.p.aim+aimOffset-*w.m.IntegratedLUFS > w.p.target
+		}
 	}
+}
+
+// candidate is a written output that passes, kept while an MP3 is encoded
+// again in the hope of coming closer to the aim.
+type candidate struct {
+	attempt  int
+	after    *rules.Result
+	tmp      string
+	gain     *float64
+	limiting *float64
+	action   Action
+}
+
+// closer reports whether a is nearer the aim than b.
+func (w *work) closer(a, b *rules.Result) bool {
+	miss := func(r *rules.Result) float64 {
+		if !w.p.hasAim || r.IntegratedLUFS == nil {
+			return 0
+		}
+		return math.Abs(*r.IntegratedLUFS - w.p.aim)
+	}
+	return miss(a) < miss(b)
+}
+
+// onAim reports whether an output is on the aim within 0.1 LU and under
+// the ceiling: an MP3 re-encode that is not is encoded again.
+func (w *work) onAim(r *rules.Result) bool {
+	m := r.Measurement
+	if m.TruePeakDBTP != nil && *m.TruePeakDBTP > w.p.ceiling {
+		return false
+	}
+	return !w.p.hasAim || (m.IntegratedLUFS != nil && math.Abs(*m.IntegratedLUFS-w.p.aim) <= 0.1)
 }
 
 func (w *work) goal() string {
@@ -178,7 +228,7 @@ func (w *work) quantizer() *quantizer {
 	case kindFLAC:
 		return newQuantizer(w.info.BitsPerSample)
 	}
-	return nil // MP3: a float intermediate
+	return newQuantizer(24) // MP3: a 24-bit intermediate
 }
 
 // openChain opens the input and builds the correction chain at gain g.
@@ -272,7 +322,7 @@ func (w *work) write(ctx context.Context) (*rules.Result, string, error) {
 			return nil, "", err
 		}
 		defer os.Remove(wavName)
-		_, err = writeFloatWAV(wf, c)
+		_, err = writeWAV24(wf, c)
 		if cerr := wf.Close(); err == nil {
 			err = cerr
 		}
@@ -283,11 +333,11 @@ func (w *work) write(ctx context.Context) (*rules.Result, string, error) {
 			return nil, "", err
 		}
 	default: // MP3 without an encoder
-		if _, err := writeFloatWAV(tmp, c); err != nil {
+		if _, err := writeWAV24(tmp, c); err != nil {
 			return nil, "", err
 		}
 		if !hasNote(w.rec.Notes, "lame") {
-			w.rec.Notes = append(w.rec.Notes, "lame is not on PATH: this is a 32-bit float WAV of the corrected audio; encode the MP3 from it, then check the MP3 (encoding changes level and peaks)")
+			w.rec.Notes = append(w.rec.Notes, "lame is not on PATH: this is a 24-bit WAV of the corrected audio; encode the MP3 from it, then check the MP3 (encoding changes level and peaks)")
 		}
 	}
 	if err := tmp.Sync(); err != nil {
@@ -337,6 +387,13 @@ func verifyFLAC(name string, want [16]byte) error {
 		return fmt.Errorf("the FLAC output's MD5 %x is not that of the audio encoded (%x)", got, want)
 	}
 	return nil
+}
+
+func figure(p *float64) string {
+	if p == nil {
+		return "n/a"
+	}
+	return fmt.Sprintf("%.2f", *p)
 }
 
 func hasNote(notes []string, word string) bool {
