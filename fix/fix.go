@@ -118,6 +118,9 @@ func File(ctx context.Context, path string, o Options) *Record {
 		rec.Action = NoneNeeded
 		rec.After = rec.Before
 		rec.Reason = "integrated loudness and true peak already meet the spec; the file was left alone"
+		if ids := failing(&before); len(ids) > 0 {
+			rec.Reason += "; it fails checks fix does not correct: " + strings.Join(ids, ", ")
+		}
 		return rec
 	}
 	p, refusal := plan(m, o, k)
@@ -146,6 +149,17 @@ func File(ctx context.Context, path string, o Options) *Record {
 	}
 	w := &work{rec: rec, o: o, m: m, k: k, p: p, path: path, dest: dest, lame: lame}
 	return w.run(ctx)
+}
+
+// failing lists the ids of r's failing checks.
+func failing(r *rules.Result) []string {
+	var ids []string
+	for _, c := range r.Checks {
+		if c.Verdict == rules.Fail || c.Verdict == rules.Error {
+			ids = append(ids, c.ID)
+		}
+	}
+	return ids
 }
 
 // needsFix reports whether the loudness or true-peak checks failed or

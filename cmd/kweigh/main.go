@@ -116,6 +116,7 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 		Commands: []*cli.Command{
 			measureCommand(),
 			checkCommand(),
+			fixCommand(),
 			specsCommand(),
 		},
 	}
