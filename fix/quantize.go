@@ -20,19 +20,14 @@ import (
 type quantizer struct {
 	scale    float64 // 2^(bits−1)
 	lo, hi   float64 // code range
-	rng      *rand.Rand
+	rng      *rand.PCG
 	noDither bool
 }
 
 // newQuantizer returns a quantizer for bits-bit words (8 to 32).
 func newQuantizer(bits int) *quantizer {
 	s := math.Ldexp(1, bits-1)
-	return &quantizer{scale: s, lo: -s, hi: s - 1, rng: rand.New(rand.NewPCG(0x6b776569, 0x676820666978))}
-}
-
-// reset restarts the dither sequence.
-func (q *quantizer) reset() {
-	q.rng = rand.New(rand.NewPCG(0x6b776569, 0x676820666978))
+	return &quantizer{scale: s, lo: -s, hi: s - 1, rng: rand.NewPCG(0x6b776569, 0x676820666978)}
 }
 
 // code returns the dithered integer code of v and whether it had to be
@@ -40,7 +35,10 @@ func (q *quantizer) reset() {
 func (q *quantizer) code(v float64) (int64, bool) {
 	x := v * q.scale
 	if !q.noDither {
-		x += q.rng.Float64() - q.rng.Float64()
+		// Two independent uniform 32-bit values from one 64-bit draw;
+		// their difference over 2³² is triangular on (−1, 1) LSB.
+		u := q.rng.Uint64()
+		x += (float64(u>>32) - float64(u&0xFFFFFFFF)) * 0x1p-32
 	}
 	x = math.Round(x)
 	switch {

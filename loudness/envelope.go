@@ -18,7 +18,16 @@ func Annex2Phases() [4][12]float64 { return annex2Phases() }
 // It keeps the last 11 samples as history, like Peak, so calls may alternate
 // with Peak on one stream. len(dst) must be at least len(x); Envelope panics
 // otherwise. It allocates nothing.
-func (t *TruePeak) Envelope(dst, x []float64) {
+func (t *TruePeak) Envelope(dst, x []float64) { t.EnvelopeOver(dst, x, -1) }
+
+// EnvelopeOver is Envelope for a caller that only needs the values above
+// floor: where no interpolated value of a run of windows can exceed floor
+// (the interpolator's gain bound times the largest input magnitude they
+// read is at most floor), dst gets that bound, which is at most floor,
+// instead of the exact values, and the interpolator is not run. A limiter
+// passes its threshold as floor: on most programme almost every window is
+// then skipped. A negative floor gives Envelope's exact values.
+func (t *TruePeak) EnvelopeOver(dst, x []float64, floor float64) {
 	if len(dst) < len(x) {
 		panic("loudness: Envelope destination shorter than input")
 	}
@@ -26,14 +35,26 @@ func (t *TruePeak) Envelope(dst, x []float64) {
 		n := min(len(x), chunkFrames)
 		w := t.buf[:history+n]
 		copy(w[history:], x[:n])
-		switch t.factor {
-		case 4:
-			envelope4(dst[:n], w)
-		case 2:
-			envelope2(dst[:n], w)
-		default:
+		if t.factor == 1 {
 			for i, v := range w[history:] {
 				dst[i] = math.Abs(v)
+			}
+		} else {
+			for lo := 0; lo < n; lo += skipRun {
+				hi := min(lo+skipRun, n)
+				if floor >= 0 {
+					if b := maxAbs(w[lo:hi+history]) * t.gain; b <= floor {
+						for i := lo; i < hi; i++ {
+							dst[i] = b
+						}
+						continue
+					}
+				}
+				if t.factor == 4 {
+					envelope4(dst[lo:hi], w[lo:hi+history])
+				} else {
+					envelope2(dst[lo:hi], w[lo:hi+history])
+				}
 			}
 		}
 		copy(t.buf[:history], w[n:])

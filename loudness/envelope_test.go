@@ -44,6 +44,20 @@ func TestEnvelopeMatchesConvolution(t *testing.T) {
 					}
 					pk = max(pk, got[i])
 				}
+				// EnvelopeOver agrees wherever a value exceeds its floor
+				// and stays at or below the floor elsewhere.
+				floor := pk * 0.7
+				over, _ := NewTruePeak(rate)
+				fast := make([]float64, n)
+				for i := 0; i < n; i += step {
+					j := min(i+step, n)
+					over.EnvelopeOver(fast[i:j], x[i:j], floor)
+				}
+				for i := range n {
+					if (got[i] > floor && fast[i] != got[i]) || (got[i] <= floor && fast[i] > floor) {
+						t.Fatalf("rate %d n %d step %d: EnvelopeOver[%d] = %v, exact %v, floor %v", rate, n, step, i, fast[i], got[i], floor)
+					}
+				}
 				ref, _ := NewTruePeak(rate)
 				if p := ref.Peak(x, 0); math.Abs(p-pk) > 1e-12 {
 					t.Errorf("rate %d n %d: max envelope %v, Peak %v", rate, n, pk, p)

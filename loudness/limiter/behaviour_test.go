@@ -4,6 +4,7 @@ import (
 	"math"
 	"testing"
 
+	"github.com/kweigh/kweigh/internal/audiotest"
 	"github.com/kweigh/kweigh/loudness"
 )
 
@@ -180,10 +181,10 @@ func BenchmarkProcess48kStereo(b *testing.B) {
 	l := mustNew(b, c)
 	dst := make([]float64, len(x))
 	b.SetBytes(int64(len(x) * 8))
-	b.ResetTimer()
+	rt := audiotest.StartRealtimeThread(b)
 	for range b.N {
 		l.Reset()
 		l.Process(dst, x)
 	}
-	b.ReportMetric(5*float64(b.N)/b.Elapsed().Seconds(), "x-realtime")
+	rt.Report(5)
 }

@@ -218,7 +218,7 @@ func (l *Limiter) block(dst, src []float64, n int) int {
 			x[i] = src[i*l.ch+c]
 		}
 		env := l.envBuf[:n]
-		l.det[c].Envelope(env, x)
+		l.det[c].EnvelopeOver(env, x, l.ceiling)
 		for i, e := range env {
 			need[i] = max(need[i], e, math.Abs(x[i]))
 		}
@@ -281,18 +281,28 @@ func (l *Limiter) block(dst, src []float64, n int) int {
 // returns the window's minimum.
 func (l *Limiter) holdMin(r float64) float64 {
 	size := len(l.qIdx)
+	// Drop the queued values at or above r from the back: they can never
+	// again be the minimum while r is in the window.
 	for l.qLen > 0 {
-		back := (l.qHead + l.qLen - 1) % size
+		back := l.qHead + l.qLen - 1
+		if back >= size {
+			back -= size
+		}
 		if l.qVal[back] < r {
 			break
 		}
 		l.qLen--
 	}
-	tail := (l.qHead + l.qLen) % size
+	tail := l.qHead + l.qLen
+	if tail >= size {
+		tail -= size
+	}
 	l.qIdx[tail], l.qVal[tail] = l.n, r
 	l.qLen++
-	for l.qIdx[l.qHead] <= l.n-int64(l.hold) {
-		l.qHead = (l.qHead + 1) % size
+	if l.qIdx[l.qHead] <= l.n-int64(l.hold) {
+		if l.qHead++; l.qHead == size {
+			l.qHead = 0
+		}
 		l.qLen--
 	}
 	return l.qVal[l.qHead]

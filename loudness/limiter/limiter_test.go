@@ -25,6 +25,10 @@ func programme(seed uint64, n, ch int, rate int, peakDB float64) []float64 {
 		}
 		return math.Sin(0.7*math.Pi*t) / (math.Pi * t) * w
 	}
+	var taps [2 * half]float64
+	for j := -half + 1; j < half; j++ {
+		taps[j+half] = lowpass(float64(j))
+	}
 	white := make([]float64, (n+2*half)*ch)
 	for i := range white {
 		white[i] = rng.NormFloat64()
@@ -36,7 +40,7 @@ func programme(seed uint64, n, ch int, rate int, peakDB float64) []float64 {
 		for k := range ch {
 			v := 0.0
 			for j := -half + 1; j < half; j++ {
-				v += lowpass(float64(j)) * white[(i+half+j)*ch+k]
+				v += taps[j+half] * white[(i+half+j)*ch+k]
 			}
 			x[i*ch+k] = lvl * v
 		}
