@@ -157,6 +157,9 @@ func scanAIFF(r io.ReaderAt, size int64, float bool, validBits int) (*pcmLayout,
 	if l.dataOffset < 0 || channels == 0 || sampleSize == 0 {
 		return nil, chunkError("aiff", 12, "no COMM and SSND chunks found")
 	}
+	if l.dataOffset > size {
+		return nil, chunkError("aiff", l.dataOffset, "SSND data offset beyond the end of the file")
+	}
 	l.bytes = (sampleSize + 7) / 8
 	l.blockAlign = l.bytes * channels
 	l.validBits = validBits
