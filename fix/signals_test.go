@@ -1,6 +1,7 @@
 package fix
 
 import (
+	"context"
 	"encoding/binary"
 	"io"
 	"math"
@@ -11,6 +12,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/loudness"
+	"github.com/kweigh/kweigh/measure"
 )
 
 // programme returns secs seconds of ch channels at rate: a speech-like
@@ -192,4 +194,14 @@ func decodeAll(t testing.TB, path string) []float64 {
 			t.Fatal(err)
 		}
 	}
+}
+
+// measureFile measures a file with kweigh's own code.
+func measureFile(t testing.TB, path string) *measure.Measurement {
+	t.Helper()
+	m := measure.File(context.Background(), path, measure.Options{})
+	if m.Error != "" {
+		t.Fatal(m.Error)
+	}
+	return m
 }
