@@ -8,6 +8,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -115,5 +116,58 @@ func TestAIFFKept(t *testing.T) {
 	}
 	if !bytes.Equal(a[:l.dataOffset], b[:l.dataOffset]) || !bytes.Equal(a[l.dataOffset+l.dataSize:], b[l.dataOffset+l.dataSize:]) {
 		t.Error("bytes outside the sound data changed")
+	}
+}
+
+// toRF64 rewrites a RIFF WAV made by writeWAV (fmt, then data, then
+// nothing) as RF64 or BW64 per EBU Tech 3306 / ITU-R BS.2088: the form
+// size and the data size set to 0xFFFFFFFF and the real sizes in a ds64
+// chunk right after the form header.
+func toRF64(t *testing.T, path, magic string) {
+	t.Helper()
+	le := binary.LittleEndian
+	w, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := bytes.Index(w, []byte("data"))
+	dataSize := le.Uint32(w[d+4:])
+	body := append([]byte(nil), w[12:]...)
+	le.PutUint32(body[d-12+4:], 0xFFFFFFFF)
+	var out []byte
+	out = append(out, magic...)
+	out = le.AppendUint32(out, 0xFFFFFFFF)
+	out = append(out, "WAVE"...)
+	out = append(out, "ds64"...)
+	out = le.AppendUint32(out, 28)
+	out = le.AppendUint64(out, uint64(4+36+len(body)))
+	out = le.AppendUint64(out, uint64(dataSize))
+	out = le.AppendUint64(out, uint64(dataSize)/6)
+	out = le.AppendUint32(out, 0)
+	out = append(out, body...)
+	if err := os.WriteFile(path, out, 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestRF64AndBW64Kept: RF64 and BW64 files (64-bit sizes in ds64) come
+// out in their own container, same bytes outside the audio.
+func TestRF64AndBW64Kept(t *testing.T) {
+	for _, magic := range []string{"RF64", "BW64"} {
+		dir := t.TempDir()
+		x := programme(t, 14, 3, 2, 48000, -12, -3)
+		in := writeWAV(t, dir, "long.wav", wavSpec{rate: 48000, ch: 2, bits: 24}, x)
+		toRF64(t, in, magic)
+		r := File(context.Background(), in, options(spec(t, "ebu-r128")))
+		checkFixed(t, r, Gain, -23, -1)
+		if f := r.After.Measurement.Format; f != strings.ToLower(magic) {
+			t.Errorf("%s in, %s out", magic, f)
+		}
+		a, _ := os.ReadFile(in)
+		b, _ := os.ReadFile(*r.Output)
+		d := int64(bytes.Index(a, []byte("data")) + 8)
+		if len(a) != len(b) || !bytes.Equal(a[:d], b[:d]) || bytes.Equal(a[d:], b[d:]) {
+			t.Errorf("%s: header changed or audio did not", magic)
+		}
 	}
 }
