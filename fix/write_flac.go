@@ -118,10 +118,14 @@ func writeFLAC(f *os.File, c *chain, blocks []*meta.Block) (sum [16]byte, err er
 			for k := range sub {
 				sub[k].Pred = frame.PredVerbatim
 			}
+			assign := flacChannels[ch]
+			if ch == 2 {
+				assign = stereoAssignment(sub[0].Samples, sub[1].Samples)
+			}
 			fr := &frame.Frame{
 				Header: frame.Header{
 					HasFixedBlockSize: true, BlockSize: uint16(n), SampleRate: uint32(info.SampleRate),
-					Channels: flacChannels[ch], BitsPerSample: uint8(bps),
+					Channels: assign, BitsPerSample: uint8(bps),
 				},
 				Subframes: sub,
 			}
@@ -141,6 +145,39 @@ func writeFLAC(f *os.File, c *chain, blocks []*meta.Block) (sum [16]byte, err er
 	}
 	copy(sum[:], h.Sum(nil))
 	return sum, nil
+}
+
+// stereoAssignment picks, per frame, the FLAC stereo coding (left/right,
+// left/side, side/right or mid/side; the encoder does the decorrelation)
+// whose two channels are cheapest to code, estimated as the reference
+// encoder does by the sum of |second-order fixed-predictor residual| of
+// each candidate channel.
+func stereoAssignment(l, r []int32) frame.Channels {
+	cost := func(f func(i int) int64) int64 {
+		var c int64
+		for i := 2; i < len(l); i++ {
+			d := f(i) - 2*f(i-1) + f(i-2)
+			if d < 0 {
+				d = -d
+			}
+			c += d
+		}
+		return c
+	}
+	cl := cost(func(i int) int64 { return int64(l[i]) })
+	cr := cost(func(i int) int64 { return int64(r[i]) })
+	cm := cost(func(i int) int64 { return (int64(l[i]) + int64(r[i])) >> 1 })
+	cs := cost(func(i int) int64 { return int64(l[i]) - int64(r[i]) })
+	best, assign := cl+cr, frame.ChannelsLR
+	for _, c := range []struct {
+		cost int64
+		ch   frame.Channels
+	}{{cl + cs, frame.ChannelsLeftSide}, {cs + cr, frame.ChannelsSideRight}, {cm + cs, frame.ChannelsMidSide}} {
+		if c.cost < best {
+			best, assign = c.cost, c.ch
+		}
+	}
+	return assign
 }
 
 // readFull fills buf with whole frames from d until it is full or the
