@@ -181,3 +181,56 @@ func TestFloatStaysFloat(t *testing.T) {
 		t.Errorf("samples scaled by %.4f dB, record says %.2f", db, *r.GainDB)
 	}
 }
+
+// TestWordLengths: 8-bit (unsigned) WAV, 20 valid bits in a 24-bit
+// container (WAVE_FORMAT_EXTENSIBLE) and 32-bit integer WAV keep their
+// word length: every output code is a multiple of 2^(container − valid
+// bits) (left-justified, as the WAVE format wants), the decoder reports the
+// same valid bits, and the loudness lands on the aim.
+func TestWordLengths(t *testing.T) {
+	for _, c := range []struct {
+		name       string
+		spec       wavSpec
+		tolLU      float64 // 8-bit dither noise (-43 dBFS) adds loudness in quiet passages
+		wantBits   int
+		multipleOf float64
+	}{
+		{"8-bit", wavSpec{rate: 22050, ch: 1, bits: 8}, 0.3, 8, 1.0 / 128},
+		{"20-in-24", wavSpec{rate: 48000, ch: 2, bits: 24, extensible: true, mask: 3, valid: 20}, 0.1, 20, 1.0 / (1 << 19)},
+		{"32-bit", wavSpec{rate: 48000, ch: 2, bits: 32}, 0.1, 32, 1.0 / (1 << 31)},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			x := programme(t, 15, 3, c.spec.ch, c.spec.rate, -12, -2)
+			in := writeWAV(t, dir, "w.wav", c.spec, x)
+			r := File(context.Background(), in, options(spec(t, "ebu-r128")))
+			if r.Output == nil {
+				t.Fatalf("%s: %s", r.Action, r.Reason)
+			}
+			m := r.After.Measurement
+			// EBU R 128 v4.0: -23 LUFS for every channel count.
+			if math.Abs(*m.IntegratedLUFS+23) > c.tolLU || m.BitsPerSample != c.wantBits {
+				t.Errorf("%.2f LUFS, %d bits", *m.IntegratedLUFS, m.BitsPerSample)
+			}
+			for i, v := range decodeAll(t, *r.Output) {
+				if q := v / c.multipleOf; q != math.Trunc(q) {
+					t.Fatalf("sample %d = %v is not a whole %d-bit code", i, v, c.wantBits)
+				}
+			}
+		})
+	}
+}
+
+// TestDamagedRefused: a WAV whose data chunk declares more audio than the
+// file holds is damaged: refused, nothing written, "deliver it again".
+func TestDamagedRefused(t *testing.T) {
+	dir := t.TempDir()
+	x := programme(t, 16, 2, 2, 48000, -12, -2)
+	in := writeWAV(t, dir, "cut.wav", wavSpec{rate: 48000, ch: 2, bits: 24}, x)
+	b, _ := os.ReadFile(in)
+	os.WriteFile(in, b[:len(b)/2], 0o644)
+	r := File(context.Background(), in, options(spec(t, "ebu-r128")))
+	if r.Action != Refused || r.Output != nil || !strings.Contains(r.Reason, "deliver it again") {
+		t.Errorf("action %q output %v: %s", r.Action, r.Output, r.Reason)
+	}
+}

@@ -88,6 +88,7 @@ type wavSpec struct {
 	float          bool
 	extensible     bool // WAVE_FORMAT_EXTENSIBLE with a channel mask
 	mask           uint32
+	valid          int         // valid bits of an extensible file (0: all)
 	before, after  [][2]string // extra chunks (id, body) before and after data
 }
 
@@ -113,23 +114,34 @@ func writeWAV(t testing.TB, dir, name string, s wavSpec, x []float64) string {
 	fmtBody = le.AppendUint16(fmtBody, uint16(s.bits))
 	if s.extensible {
 		fmtBody = le.AppendUint16(fmtBody, 22)
-		fmtBody = le.AppendUint16(fmtBody, uint16(s.bits))
+		valid := s.bits
+		if s.valid > 0 {
+			valid = s.valid
+		}
+		fmtBody = le.AppendUint16(fmtBody, uint16(valid))
 		fmtBody = le.AppendUint32(fmtBody, s.mask)
 		guid := []byte{0, 0, 0, 0, 0x00, 0x00, 0x10, 0x00, 0x80, 0x00, 0x00, 0xAA, 0x00, 0x38, 0x9B, 0x71}
 		le.PutUint16(guid, tag)
 		fmtBody = append(fmtBody, guid...)
 	}
 	data := make([]byte, 0, len(x)*bytesPer)
-	full := math.Ldexp(1, s.bits-1)
+	word := s.bits
+	if s.valid > 0 {
+		word = s.valid
+	}
+	full := math.Ldexp(1, word-1)
 	for _, v := range x {
 		switch {
 		case s.float && s.bits == 32:
 			data = le.AppendUint32(data, math.Float32bits(float32(v)))
 		case s.float:
 			data = le.AppendUint64(data, math.Float64bits(v))
+		case s.bits == 8: // 8-bit WAV is unsigned
+			c := int64(math.Round(v * full))
+			data = append(data, byte(min(max(c, -128), 127)+128))
 		default:
 			c := int64(math.Round(v * full))
-			c = min(max(c, -int64(full)), int64(full)-1)
+			c = min(max(c, -int64(full)), int64(full)-1) << (s.bits - word) // left-justified
 			for b := range bytesPer {
 				data = append(data, byte(c>>(8*b)))
 			}
