@@ -309,7 +309,7 @@ func (w *work) write(ctx context.Context) (*rules.Result, string, error) {
 		if err != nil {
 			return nil, "", err
 		}
-		if len(dropped) > 0 && w.rec.Passes <= w.p.passes {
+		if len(dropped) > 0 {
 			w.rec.Notes = append(w.rec.Notes, "metadata dropped from the FLAC output (no longer true after re-encoding): "+strings.Join(dropped, ", "))
 		}
 		if flacSum, err = writeFLAC(tmp, c, blocks); err != nil {

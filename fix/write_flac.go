@@ -180,18 +180,13 @@ func stereoAssignment(l, r []int32) frame.Channels {
 	return assign
 }
 
-// readFull fills buf with whole frames from d until it is full or the
+// readFull fills buf with whole frames from c until it is full or the
 // stream ends; it returns the frames read and io.EOF at the end.
-func readFull(d interface {
-	ReadFrames([]float64) (int, error)
-}, buf []float64) (int, error) {
-	ch := 1
-	if c, ok := d.(*chain); ok {
-		ch = c.info.Channels
-	}
+func readFull(c *chain, buf []float64) (int, error) {
+	ch := c.info.Channels
 	total := 0
 	for total*ch < len(buf) {
-		n, err := d.ReadFrames(buf[total*ch:])
+		n, err := c.ReadFrames(buf[total*ch:])
 		total += n
 		if err != nil {
 			return total, err

@@ -21,7 +21,7 @@
 // the applied gain G, with the audio delayed by D = A + 10 frames (A is the
 // look-ahead in frames):
 //
-//	h[n]   = min r[n−H+1 … n]                         hold, H = D + hold frames
+//	h[n]   = min r[n−H+1 … n]                     hold, H = D + 1 + hold frames
 //	e[n]   = h[n]                        if h[n] ≤ e[n−1]   (attack: follow down at once)
 //	e[n]   = h[n] − (h[n] − e[n−1])·a    otherwise          (release, a = exp(−1/(τ·fs)))
 //	G[n]   = (1/A) Σ e[n−A+1 … n]                    smoothing over the look-ahead
