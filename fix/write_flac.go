@@ -98,6 +98,7 @@ func writeFLAC(f *os.File, c *chain, blocks []*meta.Block) (sum [16]byte, err er
 	}
 	buf := make([]float64, flacBlockFrames*ch)
 	raw := make([]byte, 0, flacBlockFrames*ch*3)
+	coded := [2][]int32{make([]int32, flacBlockFrames), make([]int32, flacBlockFrames)}
 	nbytes := (bps + 7) / 8
 	for {
 		n, rerr := readFull(c, buf)
@@ -122,6 +123,7 @@ func writeFLAC(f *os.File, c *chain, blocks []*meta.Block) (sum [16]byte, err er
 			if ch == 2 {
 				assign = stereoAssignment(sub[0].Samples, sub[1].Samples)
 			}
+			analyse(sub, assign, bps, coded[:])
 			fr := &frame.Frame{
 				Header: frame.Header{
 					HasFixedBlockSize: true, BlockSize: uint16(n), SampleRate: uint32(info.SampleRate),
@@ -145,6 +147,41 @@ func writeFLAC(f *os.File, c *chain, blocks []*meta.Block) (sum [16]byte, err er
 	}
 	copy(sum[:], h.Sum(nil))
 	return sum, nil
+}
+
+// analyse chooses each subframe's prediction (predictSubframe) on the
+// channel as the encoder will code it: for the stereo assignments with a
+// side channel, the decorrelated signals, the side with one bit more.
+// scratch holds two block-sized buffers.
+func analyse(sub []*frame.Subframe, assign frame.Channels, bps int, scratch [][]int32) {
+	if len(sub) != 2 || assign == frame.ChannelsLR {
+		for _, sf := range sub {
+			predictSubframe(sf, sf.Samples, bps)
+		}
+		return
+	}
+	l, r := sub[0].Samples, sub[1].Samples
+	a, b := scratch[0][:len(l)], scratch[1][:len(l)]
+	abits, bbits := bps, bps
+	for i := range l {
+		side := l[i] - r[i]
+		switch assign {
+		case frame.ChannelsLeftSide:
+			a[i], b[i] = l[i], side
+		case frame.ChannelsSideRight:
+			a[i], b[i] = side, r[i]
+		default: // mid/side
+			a[i], b[i] = int32((int64(l[i])+int64(r[i]))>>1), side
+		}
+	}
+	switch assign {
+	case frame.ChannelsLeftSide, frame.ChannelsMidSide:
+		bbits++
+	case frame.ChannelsSideRight:
+		abits++
+	}
+	predictSubframe(sub[0], a, abits)
+	predictSubframe(sub[1], b, bbits)
 }
 
 // stereoAssignment picks, per frame, the FLAC stereo coding (left/right,
