@@ -130,4 +130,3 @@ func (d *sliceDecoder) ReadFrames(dst []float64) (int, error) {
 	d.x = d.x[n:]
 	return n / d.info.Channels, nil
 }
-
