@@ -9,6 +9,19 @@ import "math"
 // values as the true-peak meter (the true-peak limiter and its reference).
 func Annex2Phases() [4][12]float64 { return annex2Phases() }
 
+// NewTruePeak4x returns a detector that interpolates 4× at every sample
+// rate, where NewTruePeak follows Annex 2 (2× at 88.2 and 96 kHz, the
+// samples themselves from 176.4 kHz). Its values include those of the
+// Annex 2 detector at the same rate (the 2× phases are two of the four,
+// and the samples are compared too by callers that need them), so a
+// limiter built on it never reads a peak lower than the meter will.
+func NewTruePeak4x(sampleRate int) (*TruePeak, error) {
+	if err := checkRate(sampleRate); err != nil {
+		return nil, err
+	}
+	return &TruePeak{factor: 4, gain: peakGain(4), buf: make([]float64, history+chunkFrames)}, nil
+}
+
 // Envelope writes to dst[i] the largest magnitude among the interpolated
 // values (4, 2 or 1 per input sample, per Factor) computed from the window of
 // 12 inputs that ends at x[i], the detector's history supplying the samples

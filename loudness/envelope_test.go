@@ -9,6 +9,9 @@ import (
 // convolution of Annex2Phases, window by window, and its maximum against
 // Peak on the same stream, at awkward lengths and write sizes.
 func TestEnvelopeMatchesConvolution(t *testing.T) {
+	if tp, err := NewTruePeak4x(192000); err != nil || tp.Factor() != 4 {
+		t.Fatalf("NewTruePeak4x(192000): %v, factor %v", err, tp)
+	}
 	for _, rate := range []int{48000, 96000, 192000} {
 		f := OversamplingFactor(rate)
 		phases := Annex2Phases()

@@ -104,7 +104,7 @@ func TestAttackAndRelease(t *testing.T) {
 	// n0 is the first input frame whose detected peak is over the
 	// threshold; the output frame it gets its gain ahead of, by the delay
 	// D = A + 10, starts the ramp.
-	tp, _ := loudness.NewTruePeak(rate)
+	tp, _ := loudness.NewTruePeak4x(rate)
 	env := make([]float64, n)
 	tp.Envelope(env, x)
 	n0 := 0

@@ -9,10 +9,11 @@
 //
 // For every input frame n the detector takes, on each channel, the largest
 // magnitude among the sample itself and the Annex 2 interpolated values of
-// the 12-sample window ending at n (4× below 88.2 kHz, 2× up to 176.4 kHz;
-// loudness.TruePeak.Envelope), and the largest over all channels, d[n]: the
-// channels are linked, one gain for all, so that the stereo or surround
-// image does not move when one channel peaks. The gain that window needs is
+// the 12-sample window ending at n, 4× at every rate (loudness.NewTruePeak4x:
+// finer than the meter's 2× at 88.2/96 kHz and 1× from 176.4 kHz, so the
+// limiter never reads a peak lower than the meter does), and the largest
+// over all channels, d[n]: the channels are linked, one gain for all, so
+// that the stereo or surround image does not move when one channel peaks. The gain that window needs is
 //
 //	r[n] = min(1, c / d[n])      c = 10^((ceiling − margin)/20)
 //

@@ -104,7 +104,7 @@ func New(c Config) (*Limiter, error) {
 	l.delay = l.lookAhead + 10
 	l.hold = l.delay + 1 + max(0, int(math.Round(hold*fs)))
 	for range c.Channels {
-		tp, err := loudness.NewTruePeak(c.SampleRate)
+		tp, err := loudness.NewTruePeak4x(c.SampleRate)
 		if err != nil {
 			return nil, err
 		}

@@ -25,9 +25,8 @@ func referenceLimit(c Config, x []float64) (y, gains []float64) {
 		}
 		return x[n*ch+k]
 	}
-	factor := loudness.OversamplingFactor(c.SampleRate)
 	phases := loudness.Annex2Phases()
-	use := map[int][]int{4: {0, 1, 2, 3}, 2: {0, 2}, 1: {}}[factor]
+	use := []int{0, 1, 2, 3} // 4× at every rate (doc.go)
 	need := make([]float64, total)
 	for n := range total {
 		d := 0.0
