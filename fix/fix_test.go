@@ -234,3 +234,15 @@ func TestDamagedRefused(t *testing.T) {
 		t.Errorf("action %q output %v: %s", r.Action, r.Output, r.Reason)
 	}
 }
+
+// TestHighRates: at 96 and 192 kHz (where the BS.1770 meter interpolates
+// 2× and 1×, and the limiter still 4×) a programme needing limiting lands
+// on target under the ceiling.
+func TestHighRates(t *testing.T) {
+	for _, rate := range []int{96000, 192000} {
+		dir := t.TempDir()
+		x := programme(t, 18, 2, 2, rate, -24, -5)
+		in := writeWAV(t, dir, "hr.wav", wavSpec{rate: rate, ch: 2, bits: 24}, x)
+		checkFixed(t, File(context.Background(), in, options(spec(t, "podcast"))), GainAndLimiting, -16, -1)
+	}
+}
