@@ -188,7 +188,7 @@ func TestFLACLayouts(t *testing.T) {
 				t.Fatalf("%s: %s", r.Action, r.Reason)
 			}
 			m := r.After.Measurement
-			if m.Channels != c.ch || m.BitsPerSample != c.bits || math.Abs(*m.IntegratedLUFS-c.aim) > 0.1 || *m.TruePeakDBTP > -1 {
+			if m.Channels != c.ch || int(m.BitsPerSample) != c.bits || math.Abs(*m.IntegratedLUFS-c.aim) > 0.1 || *m.TruePeakDBTP > -1 {
 				t.Errorf("%d ch %d-bit, %.2f LUFS %.2f dBTP", m.Channels, m.BitsPerSample, *m.IntegratedLUFS, *m.TruePeakDBTP)
 			}
 			if out, err := exec.Command(enc, "--silent", "-t", *r.Output).CombinedOutput(); err != nil {

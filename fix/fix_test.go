@@ -209,7 +209,7 @@ func TestWordLengths(t *testing.T) {
 			}
 			m := r.After.Measurement
 			// EBU R 128 v4.0: -23 LUFS for every channel count.
-			if math.Abs(*m.IntegratedLUFS+23) > c.tolLU || m.BitsPerSample != c.wantBits {
+			if math.Abs(*m.IntegratedLUFS+23) > c.tolLU || int(m.BitsPerSample) != c.wantBits {
 				t.Errorf("%.2f LUFS, %d bits", *m.IntegratedLUFS, m.BitsPerSample)
 			}
 			for i, v := range decodeAll(t, *r.Output) {
