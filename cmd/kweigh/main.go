@@ -117,6 +117,7 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 			measureCommand(),
 			checkCommand(),
 			specsCommand(),
+			serveCommand(),
 		},
 	}
 }
