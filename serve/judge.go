@@ -6,6 +6,9 @@ import (
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/rules"
+
+	// Every format kweigh reads: an upload is detected by its content.
+	_ "github.com/kweigh/kweigh/decode/formats"
 )
 
 // Judge measures one decoded upload and judges it against spec. name is
