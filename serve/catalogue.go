@@ -7,6 +7,7 @@ import (
 	"slices"
 	"strings"
 
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/rules"
 )
 
@@ -101,7 +102,7 @@ func LoadSpecDir(dir string) ([]*rules.Spec, error) {
 			continue
 		}
 		path := filepath.Join(dir, e.Name())
-		s, err := rules.LoadFile(path)
+		s, err := engine.LoadSpec(path)
 		if err != nil {
 			return nil, fmt.Errorf("--specs: %w", err)
 		}

@@ -4,6 +4,7 @@ import (
 	"context"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/rules"
 
@@ -21,10 +22,10 @@ import (
 // how a file is judged; DefaultJudge is the library's own pipeline.
 type Judge func(ctx context.Context, name string, d decode.Decoder, spec *rules.Spec) *rules.Result
 
-// DefaultJudge measures with measure.Stream, keeping the 10 Hz series for
-// the HTML report's plots, and judges with rules.Evaluate.
+// DefaultJudge is the engine's judgement of one stream (what `kweigh
+// check` does for a file), keeping the 10 Hz series for the HTML report's
+// plots.
 func DefaultJudge(ctx context.Context, name string, d decode.Decoder, spec *rules.Spec) *rules.Result {
-	m := measure.Stream(ctx, name, d, measure.Options{KeepSeries: true})
-	r := rules.Evaluate(spec, m)
-	return &r
+	rec := engine.JudgeStream(ctx, name, d, engine.Options{Spec: spec, Measure: measure.Options{KeepSeries: true}})
+	return rec.Result
 }
