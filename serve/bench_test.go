@@ -122,4 +122,3 @@ func BenchmarkServe10s(b *testing.B) { benchServe(b, 10) }
 // BenchmarkServe10min: 10-minute 48 kHz stereo 16-bit WAVs (115 MB). Keep
 // the count small: -benchtime 4x.
 func BenchmarkServe10min(b *testing.B) { benchServe(b, 600) }
-

@@ -30,7 +30,7 @@ func NewCatalogue(def *rules.Spec, extra ...*rules.Spec) (*Catalogue, error) {
 	c := &Catalogue{byID: map[string]*rules.Spec{}, def: def.ID}
 	add := func(s *rules.Spec) error {
 		if old, ok := c.byID[s.ID]; ok {
-			if old == s || (old.File != "" && old.File == s.File) {
+			if old == s || sameFile(old.File, s.File) {
 				return nil
 			}
 			return fmt.Errorf("two specs with the id %q: %s and %s", s.ID, origin(old), origin(s))
@@ -57,6 +57,17 @@ func NewCatalogue(def *rules.Spec, extra ...*rules.Spec) (*Catalogue, error) {
 	}
 	slices.Sort(c.ids[builtins:])
 	return c, nil
+}
+
+// sameFile reports whether two spec file paths name one file (the default
+// spec given by path may also sit in --specs DIR).
+func sameFile(a, b string) bool {
+	if a == "" || b == "" {
+		return false
+	}
+	sa, errA := os.Stat(a)
+	sb, errB := os.Stat(b)
+	return errA == nil && errB == nil && os.SameFile(sa, sb)
 }
 
 func origin(s *rules.Spec) string {

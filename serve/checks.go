@@ -105,8 +105,15 @@ func (s *Server) postCheck(w http.ResponseWriter, r *http.Request, rec *requestL
 		return
 	}
 	if ctxErr := r.Context().Err(); ctxErr != nil {
+		// The client went away, or the shutdown's grace ran out: nobody
+		// waits for this verdict.
+		s.metrics.reject(reasonIncomplete)
 		rec.problem = "check abandoned: " + ctxErr.Error()
 		w.WriteHeader(http.StatusServiceUnavailable)
+		return
+	}
+	if res == nil || res.Measurement == nil {
+		s.refuse(w, rec, http.StatusInternalServerError, reasonBadRequest, "the judge gave no result")
 		return
 	}
 	s.metrics.checked(res.Verdict, took, res.DurationS)
