@@ -19,6 +19,9 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
+	"slices"
+	"strings"
 	"sync"
 )
 
@@ -102,6 +105,12 @@ type Format struct {
 	// Name is the container name used in Info.Container (the primary one
 	// when a format has variants).
 	Name string
+	// Extensions are the file-name extensions (lower case, without the
+	// dot) deliveries in this format carry. The content, not the name,
+	// decides how a file is read; the name decides only that a file which
+	// cannot be read is a broken delivery rather than something else in the
+	// folder (see HasAudioExtension).
+	Extensions []string
 	// Match reports whether the content looks like this format. It may read
 	// anywhere in r but must be cheap and must not panic on any input.
 	Match func(r io.ReaderAt, size int64) bool
@@ -130,6 +139,24 @@ func Register(f Format) {
 	formatsMu.Lock()
 	defer formatsMu.Unlock()
 	formats = append(formats, f)
+}
+
+// HasAudioExtension reports whether name ends in an extension a registered
+// format claims (case does not matter): such a file is a delivery, and if
+// it cannot be read that is an error, never a silent skip.
+func HasAudioExtension(name string) bool {
+	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(name), "."))
+	if ext == "" {
+		return false
+	}
+	formatsMu.RLock()
+	defer formatsMu.RUnlock()
+	for _, f := range formats {
+		if slices.Contains(f.Extensions, ext) {
+			return true
+		}
+	}
+	return false
 }
 
 // Formats returns the names of the registered formats.

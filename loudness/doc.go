@@ -91,7 +91,9 @@
 //
 // # Bad samples
 //
-// Float input may exceed full scale and is measured as it is. NaN and ±Inf
-// samples are measured as 0 and counted in Result.NonFinite, so that one
-// bad sample cannot poison the filter state for the rest of the stream.
+// Float input may exceed full scale and is measured as it is, up to
+// ±MaxMagnitude (1e100): within that bound every figure is finite (the
+// constant's comment argues why). NaN, ±Inf and larger samples are measured
+// as 0 and counted in Result.Rejected, so that one bad sample cannot poison
+// the filter state for the rest of the stream; a caller refuses the stream.
 package loudness

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 
 	"github.com/kweigh/kweigh/decode"
@@ -140,19 +141,23 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		n, err := d.ReadFrames(buf)
 		if n > 0 {
 			block := buf[:n*info.Channels]
-			// The engine counts NaN and ±Inf samples as it goes; only when
-			// it has seen one is the block searched for where.
-			before := meter.NonFinite()
+			// The engine counts the samples it cannot measure (NaN, ±Inf,
+			// beyond loudness.MaxMagnitude) as it goes; only when it has
+			// seen one is the block searched for where.
+			before := meter.Rejected()
 			meter.Write(block)
-			if meter.NonFinite() != before {
-				i := firstNonFinite(block)
+			if meter.Rejected() != before {
+				i := firstRejected(block)
 				at := frames + int64(i/info.Channels)
-				return fail(fmt.Errorf("sample %d of channel %s (%.3f s) is %v: the file holds invalid floating-point audio and cannot be measured",
-					at, layout[i%info.Channels], float64(at)/float64(info.SampleRate), block[i]))
+				return fail(unmeasurable(at, layout[i%info.Channels], info.SampleRate, block[i]))
 			}
 			hyg.write(block)
 			if fold != nil {
-				fold.write(block)
+				if f := fold.write(block); f >= 0 {
+					at := frames + int64(f)
+					return fail(fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
+						at, float64(at)/float64(info.SampleRate), sci(loudness.MaxMagnitude)))
+				}
 			}
 			frames += int64(n)
 		}
@@ -208,15 +213,32 @@ func chooseLayout(info decode.Info, user []string) ([]string, string, error) {
 	}
 }
 
-// firstNonFinite returns the index of the first NaN or ±Inf sample, or -1.
-func firstNonFinite(v []float64) int {
+// firstRejected returns the index of the first sample the engine rejects
+// (NaN, ±Inf, or beyond ±loudness.MaxMagnitude), or -1.
+func firstRejected(v []float64) int {
 	for i, x := range v {
-		// x-x is NaN for both NaN and ±Inf, 0 otherwise.
-		if x-x != 0 {
+		if !(math.Abs(x) <= loudness.MaxMagnitude) { // true for NaN too
 			return i
 		}
 	}
 	return -1
+}
+
+// unmeasurable is the error for a sample the engine rejects: invalid
+// floating-point data (NaN, ±Inf), or a finite value so far beyond full
+// scale that its squared sums could overflow (see loudness.MaxMagnitude).
+func unmeasurable(frame int64, channel string, rate int, x float64) error {
+	at := fmt.Sprintf("sample %d of channel %s (%.3f s)", frame, channel, float64(frame)/float64(rate))
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return fmt.Errorf("%s is %v: the file holds invalid floating-point audio and cannot be measured", at, x)
+	}
+	return fmt.Errorf("%s is %s: far beyond full scale, cannot be measured (kweigh measures samples up to ±%s)",
+		at, sci(x), sci(loudness.MaxMagnitude))
+}
+
+// sci writes a huge sample value briefly, e.g. 1e300 or -2.5e155.
+func sci(x float64) string {
+	return strings.Replace(strconv.FormatFloat(x, 'g', 4, 64), "e+", "e", 1)
 }
 
 // fillLoudness copies the engine's result into the record, turning

@@ -82,12 +82,18 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 		}
 	}
 
+	files, err := prepareOutputs(o.batchOptions, targets)
+	if err != nil {
+		return err
+	}
+	defer files.abort()
+
 	specName := ""
 	if o.spec != nil {
 		specName = o.spec.ID
 	}
 	opts := reports.Options{Spec: specName, Strict: o.strict, Version: version}
-	out, err := openRunOutput(o.batchOptions, stdout, opts,
+	out, err := openRunOutput(o.batchOptions, files, stdout, opts,
 		func(w io.Writer, f reports.Format, opts reports.Options) (recordWriter[*rules.Result], error) {
 			return reports.NewCheckWriter(w, f, opts)
 		})
@@ -100,7 +106,7 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 	var kept []*rules.Result
 	var keptSpecs []*rules.Spec
 	opt := engine.Options{Spec: o.spec, Specs: specs, Measure: o.measureOptions()}
-	runBatch(ctx, o.batchOptions, targets, opt, stderr,
+	unfinished := runBatch(ctx, o.batchOptions, targets, opt, stderr,
 		func(_ int, rec engine.Record) {
 			r := rec.Result
 			summary.Add(r)
@@ -111,17 +117,20 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 			}
 		})
 	summary.Elapsed = time.Since(start)
-	if err := out.close(summary); err != nil {
+	summary.Interrupted = ctx.Err() != nil
+	summary.Unfinished = unfinished
+	if err := out.close(summary, stderr); err != nil {
 		return err
+	}
+	if summary.Interrupted {
+		writeVisuals(files, true, stderr, nil, nil, nil)
+		return interruption(ctx, unfinished)
 	}
 	if summary.Files == 0 {
 		return errNoAudio(args)
 	}
-	if err := writeVisuals(o.batchOptions, nil, kept, keptSpecs); err != nil {
+	if err := writeVisuals(files, false, stderr, nil, kept, keptSpecs); err != nil {
 		return err
-	}
-	if err := ctx.Err(); err != nil {
-		return fmt.Errorf("interrupted: %w", err)
 	}
 	switch {
 	case summary.Errors > 0:

@@ -12,8 +12,9 @@ import (
 
 func init() {
 	decode.Register(decode.Format{
-		Name:  "mp3",
-		Match: Match,
+		Name:       "mp3",
+		Extensions: []string{"mp3"},
+		Match:      Match,
 		New: func(src decode.Source, size int64, opt decode.Options) (decode.Decoder, error) {
 			return New(src, size)
 		},
