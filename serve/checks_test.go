@@ -3,6 +3,7 @@ package serve
 import (
 	"bytes"
 	"context"
+	"encoding/binary"
 	"encoding/json"
 	"math"
 	"path/filepath"
@@ -237,5 +238,41 @@ max_true_peak_dbtp = -24.0
 	obj = ts.postForm(t, "ep1.wav", passTone.wav(), "spec", "podcast").json(t)
 	if obj["spec"] != "podcast" || obj["verdict"] != "fail" {
 		t.Errorf("podcast: spec %v verdict %v", obj["spec"], obj["verdict"])
+	}
+}
+
+// TestUnmeasurableAudio: a float WAV holding a NaN sample opens as audio
+// but cannot be measured: it is answered 200 with verdict error and the
+// reason, not refused as not audio.
+func TestUnmeasurableAudio(t *testing.T) {
+	ts := startServer(t, Config{})
+	const frames = 48000
+	var b bytes.Buffer
+	le := func(v any) { binary.Write(&b, binary.LittleEndian, v) }
+	b.WriteString("RIFF")
+	le(uint32(36 + 8*frames))
+	b.WriteString("WAVEfmt ")
+	le([]uint32{16})
+	le([]uint16{3, 2}) // IEEE float, stereo
+	le([]uint32{48000, 48000 * 8})
+	le([]uint16{8, 32})
+	b.WriteString("data")
+	le(uint32(8 * frames))
+	for i := range frames {
+		v := float32(0.1 * math.Sin(2*math.Pi*997*float64(i)/48000))
+		if i == 1000 {
+			v = float32(math.NaN())
+		}
+		le([]float32{v, v})
+	}
+	a := ts.postRaw(t, "?name=nan.wav", b.Bytes())
+	if a.status != 200 || a.header.Get(HeaderVerdict) != "error" {
+		t.Fatalf("%d %q: %s", a.status, a.header.Get(HeaderVerdict), a.body)
+	}
+	if msg, _ := a.json(t)["error"].(string); !strings.Contains(msg, "NaN") || !strings.Contains(msg, "nan.wav") {
+		t.Errorf("error %q does not name the file and the NaN", msg)
+	}
+	if got := metricValue(t, ts, "kweigh_checks_total", "verdict", "error"); got != 1 {
+		t.Errorf("checks_total{verdict=error} = %v", got)
 	}
 }

@@ -199,6 +199,9 @@ func TestSlowClients(t *testing.T) {
 		t.Errorf("stalled body: %d after %v, want 408 after about %v", resp.StatusCode, took, timeout)
 	}
 	waitFor(t, 5*time.Second, "the temporary file to go", func() bool { return len(ts.tempFiles(t)) == 0 })
+	if got := metricValue(t, ts, "kweigh_rejected_total", "reason", "incomplete"); got != 1 {
+		t.Errorf("rejected incomplete = %v after a stalled body, want 1", got)
+	}
 	if a := ts.get(t, "/readyz"); a.status != 200 {
 		t.Errorf("readyz after the slow clients: %d %s", a.status, a.body)
 	}
@@ -245,4 +248,40 @@ func TestBusy(t *testing.T) {
 	if got := metricValue(t, ts, "kweigh_rejected_total", "reason", "busy"); got != 1 {
 		t.Errorf("rejected busy = %v, want 1", got)
 	}
+}
+
+// TestTricklingClient: a client that never pauses long enough to stall but
+// sends so slowly that the whole request takes longer than the read
+// timeout gets a 408 at the read timeout.
+func TestTricklingClient(t *testing.T) {
+	ts := startServer(t, Config{Jobs: 1, Queue: 1, StallTimeout: 400 * time.Millisecond, ReadTimeout: 800 * time.Millisecond})
+	wav := passTone.wav()
+	conn := rawUpload(t, ts.addr, len(wav), wav[:100])
+	defer conn.Close()
+	stop := make(chan struct{})
+	defer close(stop)
+	go func() {
+		for i := 100; i < len(wav); i += 10 {
+			select {
+			case <-stop:
+				return
+			case <-time.After(100 * time.Millisecond):
+			}
+			if _, err := conn.Write(wav[i : i+10]); err != nil {
+				return
+			}
+		}
+	}()
+	start := time.Now()
+	conn.SetReadDeadline(time.Now().Add(10 * time.Second))
+	resp, err := http.ReadResponse(bufio.NewReader(conn), nil)
+	took := time.Since(start)
+	if err != nil {
+		t.Fatalf("trickling client: no answer (%v) after %v", err, took)
+	}
+	resp.Body.Close()
+	if resp.StatusCode != 408 || took < 700*time.Millisecond || took > 3*time.Second {
+		t.Errorf("trickling client: %d after %v, want 408 after about 800 ms", resp.StatusCode, took)
+	}
+	waitFor(t, 5*time.Second, "the temporary file to go", func() bool { return len(ts.tempFiles(t)) == 0 })
 }
