@@ -285,3 +285,30 @@ func TestTricklingClient(t *testing.T) {
 	}
 	waitFor(t, 5*time.Second, "the temporary file to go", func() bool { return len(ts.tempFiles(t)) == 0 })
 }
+
+// TestIdleConnectionClosed: a kept-alive connection that sends no next
+// request is closed after the idle timeout.
+func TestIdleConnectionClosed(t *testing.T) {
+	ts := startServer(t, Config{IdleTimeout: 300 * time.Millisecond})
+	conn, err := net.Dial("tcp", ts.addr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer conn.Close()
+	fmt.Fprintf(conn, "GET /healthz HTTP/1.1\r\nHost: x\r\n\r\n")
+	br := bufio.NewReader(conn)
+	resp, err := http.ReadResponse(br, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	io.Copy(io.Discard, resp.Body)
+	resp.Body.Close()
+	start := time.Now()
+	conn.SetReadDeadline(time.Now().Add(10 * time.Second))
+	if n, err := br.Read(make([]byte, 1)); n != 0 || err == nil {
+		t.Fatalf("read %d bytes, %v", n, err)
+	}
+	if took := time.Since(start); took > 3*time.Second {
+		t.Errorf("idle connection held %v (idle timeout 300 ms)", took)
+	}
+}
