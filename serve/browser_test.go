@@ -92,6 +92,12 @@ func TestUploadPageInBrowser(t *testing.T) {
 	verdictAttr := eval("verdict attribute", `document.getElementById("verdict").dataset.verdict || ""`)
 	report := poll("inline report", `(() => { const d = document.getElementById("report").contentDocument;
 		return d && d.readyState === "complete" && d.body && d.body.innerText.includes("tidewater-ep7.wav") ? d.body.innerText : false; })()`)
+	if out := os.Getenv("KWEIGH_BROWSER_OUT"); out != "" {
+		// KWEIGH_BROWSER_OUT=DIR keeps a screenshot of the answer for a look.
+		png, err := chromedp.Run(bctx, chromedp.FullScreenshot(100))
+		step("screenshot", err)
+		os.WriteFile(filepath.Join(out, "upload-page.png"), png, 0o644)
+	}
 	step("send a file that is not audio", chromedp.Do(bctx,
 		chromedp.SetUploadFiles(chromedp.ID("file"), []string{text}),
 		chromedp.Click(chromedp.ID("send")),
