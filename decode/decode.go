@@ -70,6 +70,10 @@ type Info struct {
 	Mode string
 	// Bext holds the Broadcast Wave extension chunk when the file has one.
 	Bext *Bext
+	// Undeclared is set when the file holds data after the audio its
+	// header declares that is neither a chunk nor a tag (see Undeclared);
+	// nil otherwise. ReadFrames delivers only the declared audio.
+	Undeclared *Undeclared
 }
 
 // Decoder streams the samples of one file.

@@ -204,6 +204,36 @@ func (g *gatedValues) binOfRank(first int, r int64) int {
 	return len(g.hist.count) - 1
 }
 
+// levels counts the values above the absolute gate in bins of LevelStep
+// LU from −70 LUFS up (see Series.ShortTermLevels): exactly while the
+// values are kept, from the finer histogram bins (whole multiples of them)
+// after.
+func (g *gatedValues) levels() []int64 {
+	abs := energyOf(absoluteGate)
+	perLevel := int(math.Round(LevelStep / histogramStep))
+	var out []int64
+	count := func(i int, n int64) {
+		if i >= len(out) {
+			out = append(out, make([]int64, i+1-len(out))...)
+		}
+		out[i] += n
+	}
+	if !g.binned {
+		for _, z := range g.exact {
+			if z > abs {
+				count(binOf(z)/perLevel, 1)
+			}
+		}
+		return out
+	}
+	for i, n := range g.hist.count {
+		if n > 0 {
+			count(i/perLevel, n)
+		}
+	}
+	return out
+}
+
 // maximum returns the loudness of the largest value, undefined with
 // tooShort when there is none and with silent when all are zero.
 func (g *gatedValues) maximum(tooShort, silent string) Reading {

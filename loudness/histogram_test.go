@@ -158,3 +158,38 @@ func TestTechSignalsBinned(t *testing.T) {
 		}
 	}
 }
+
+// TestShortTermLevels: the level distribution counts every short-term value
+// above the absolute gate in 0.1 LU bins, the same before and after the
+// switch to the histogram.
+func TestShortTermLevels(t *testing.T) {
+	blocks := programmeBlocks(20000, 2, 9)
+	short := windows(blocks, shortTermBlocks)
+	exact, binned := newGatedValues(), newGatedValues()
+	binned.limit = 0
+	want := make(map[int]int64)
+	for _, z := range short {
+		exact.add(z)
+		binned.add(z)
+		if l := loudnessOf(z); l > absoluteGate {
+			want[int(math.Floor((l-absoluteGate)/LevelStep))]++
+		}
+	}
+	for name, got := range map[string][]int64{"exact": exact.levels(), "binned": binned.levels()} {
+		var total, wantTotal int64
+		for i, n := range got {
+			total += n
+			// Values within float rounding of a bin edge may land on either
+			// side; allow one either way.
+			if d := n - want[i]; d > 1 || d < -1 {
+				t.Errorf("%s: bin %d holds %d, want %d", name, i, n, want[i])
+			}
+		}
+		for _, n := range want {
+			wantTotal += n
+		}
+		if total != wantTotal {
+			t.Errorf("%s: %d values counted, want %d", name, total, wantTotal)
+		}
+	}
+}

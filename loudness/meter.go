@@ -93,7 +93,17 @@ type Series struct {
 	// SamplePeak is the highest |sample| over all channels inside the 100 ms
 	// block, in dBFS.
 	SamplePeak []float32
+
+	// ShortTermLevels is the distribution of every short-term value above
+	// the −70 LUFS absolute gate, never decimated: element i counts the
+	// values from −70 + i·LevelStep up to −70 + (i+1)·LevelStep LUFS. A
+	// histogram of short-term loudness drawn from it stays true for a
+	// stream of any length.
+	ShortTermLevels []int64
 }
+
+// LevelStep is the bin width of Series.ShortTermLevels in LU.
+const LevelStep = 0.1
 
 // DB converts a linear magnitude to decibels (20·log10); 0 gives -Inf.
 func DB(linear float64) float64 { return 20 * math.Log10(linear) }
@@ -366,6 +376,8 @@ func (m *Meter) Result() Result {
 		ShortTerm:  m.seriesS.series(),
 		TruePeak:   m.seriesTP.series(),
 		SamplePeak: m.seriesSP.series(),
+
+		ShortTermLevels: m.shortTerm.levels(),
 	}
 	return r
 }

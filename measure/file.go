@@ -104,13 +104,13 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		return fail(fmt.Errorf("header declares %d channels at %d Hz", info.Channels, info.SampleRate))
 	}
 
-	layout, source, err := chooseLayout(info, opt.Layout)
-	if err != nil {
-		return fail(err)
-	}
+	layout, source, note := chooseLayout(info, opt.Layout)
 	m.ChannelLayout, m.LayoutSource = layout, source
+	if note != "" {
+		m.Notes = append(m.Notes, note)
+	}
 	if source == "default" && info.Channels > 2 {
-		m.Notes = append(m.Notes, fmt.Sprintf("the file does not declare its channel layout; assumed %v by channel count (override with a layout option)", layout))
+		m.Notes = append(m.Notes, fmt.Sprintf("the file does not declare its channel layout; assumed %v by channel count (override with --layout)", layout))
 	}
 	weights, err := loudness.Weights(layout)
 	if err != nil {
@@ -185,6 +185,10 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 	if n, ok := d.(decode.Noter); ok {
 		m.Notes = append(m.Notes, n.Notes()...)
 	}
+	if u := info.Undeclared; u != nil {
+		m.Undeclared = u
+		m.Notes = append(m.Notes, UndeclaredText(m.DurationS, u)+"; only the declared audio was measured")
+	}
 	fillLoudness(m, r)
 	if fold != nil {
 		m.StereoDownmix = fold.result()
@@ -198,19 +202,20 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 }
 
 // chooseLayout picks the user's layout, then the file's, then the default
-// by channel count.
-func chooseLayout(info decode.Info, user []string) ([]string, string, error) {
-	switch {
-	case user != nil:
-		if len(user) != info.Channels {
-			return nil, "", fmt.Errorf("the layout option names %d channels but the file has %d", len(user), info.Channels)
-		}
-		return user, "user", nil
-	case len(info.Layout) == info.Channels:
-		return info.Layout, "file", nil
-	default:
-		return decode.DefaultLayout(info.Channels), "default", nil
+// by channel count. A user layout applies only to files whose channel
+// count it fits: in a mixed batch the others keep their own layout, with a
+// note saying so.
+func chooseLayout(info decode.Info, user []string) (layout []string, source, note string) {
+	if user != nil && len(user) == info.Channels {
+		return user, "user", ""
 	}
+	if user != nil {
+		note = fmt.Sprintf("--layout %s names %d channels but the file has %d: it was not applied to this file", strings.Join(user, ","), len(user), info.Channels)
+	}
+	if len(info.Layout) == info.Channels {
+		return info.Layout, "file", note
+	}
+	return decode.DefaultLayout(info.Channels), "default", note
 }
 
 // firstRejected returns the index of the first sample the engine rejects
@@ -286,4 +291,17 @@ func peak(linear float64) *float64 {
 	}
 	v := loudness.DB(linear)
 	return &v
+}
+
+// UndeclaredText says in words what a file holds beyond the declared
+// seconds of audio, e.g. "the header declares 10.0 s but 10.0 s more
+// audio-like data follows (960000 bytes from byte 960044 that are neither
+// chunks nor tags)". Less than 0.05 s is given in bytes.
+func UndeclaredText(declaredS float64, u *decode.Undeclared) string {
+	if u.Seconds < 0.05 {
+		return fmt.Sprintf("the header declares %.1f s but %d more bytes follow the audio from byte %d that are neither chunks nor tags",
+			declaredS, u.Bytes, u.Offset)
+	}
+	return fmt.Sprintf("the header declares %.1f s but %.1f s more audio-like data follows (%d bytes from byte %d that are neither chunks nor tags)",
+		declaredS, u.Seconds, u.Bytes, u.Offset)
 }

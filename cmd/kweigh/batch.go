@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"io"
@@ -98,6 +99,11 @@ type runOutput[T any] struct {
 	file    *pendingFile // the --output file, nil without it
 	writers []recordWriter[T]
 	err     error
+	// held is CSV meant for stdout, kept until the run is complete: a CSV
+	// table cannot say that rows are missing, so an interrupted run
+	// writes none (the exit status and stderr say why).
+	held   *bytes.Buffer
+	stdout io.Writer
 }
 
 // openRunOutput sets up the run's record writers on the prepared output
@@ -105,10 +111,14 @@ type runOutput[T any] struct {
 // type; colour goes only to a terminal.
 func openRunOutput[T any](o batchOptions, files *runFiles, stdout io.Writer, opts reports.Options,
 	newWriter func(io.Writer, reports.Format, reports.Options) (recordWriter[T], error)) (*runOutput[T], error) {
-	out := &runOutput[T]{file: files.output}
+	out := &runOutput[T]{file: files.output, stdout: stdout}
 	primary := stdout
-	if out.file != nil {
+	switch {
+	case out.file != nil:
 		primary = out.file
+	case o.format == reports.CSV:
+		out.held = &bytes.Buffer{}
+		primary = out.held
 	}
 	terminal := opts
 	opts.Colour = o.colour && out.file == nil
@@ -144,6 +154,13 @@ func (r *runOutput[T]) write(rec T) {
 func (r *runOutput[T]) close(summary reports.Summary, stderr io.Writer) error {
 	for _, w := range r.writers {
 		if err := w.Close(summary); err != nil && r.err == nil {
+			r.err = err
+		}
+	}
+	if r.held != nil {
+		if summary.Interrupted {
+			fmt.Fprintln(stderr, "kweigh: interrupted: the CSV table is not written (it could not show which files are missing)")
+		} else if _, err := r.stdout.Write(r.held.Bytes()); err != nil && r.err == nil {
 			r.err = err
 		}
 	}

@@ -26,9 +26,6 @@ import (
 	_ "github.com/kweigh/kweigh/decode/formats"
 )
 
-// version is set at build time with -ldflags "-X main.version=…".
-var version = "dev"
-
 // Exit statuses, documented in every command's help.
 const (
 	exitOK      = 0 // everything measured (and, for check, passed or warned)
@@ -168,15 +165,18 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 	return &cli.Command{
 		Name:    "kweigh",
 		Usage:   "check audio deliveries against loudness specs (ITU-R BS.1770)",
-		Version: version,
+		Version: versionString(),
 		Description: "kweigh measures integrated loudness, loudness range, momentary and short-term maxima and\n" +
 			"true peak per ITU-R BS.1770 and EBU Tech 3341/3342, and judges files against delivery specs.\n\n" +
 			"A pass is not a broadcaster's or regulator's acceptance: local regulation and the receiving\n" +
 			"party's own QC decide. Full-scale test signals and gain increases can damage hearing and\n" +
 			"loudspeakers: keep monitoring levels down when auditioning.",
-		Writer:          stdout,
-		ErrWriter:       stderr,
-		HideHelpCommand: true,
+		Writer:    stdout,
+		ErrWriter: stderr,
+		// `kweigh help [COMMAND]`, and `kweigh completion bash|zsh|fish`.
+		EnableShellCompletion:           true,
+		ConfigureShellCompletionCommand: configureCompletion,
+		Action:                          rootAction(stderr),
 		// Errors are reported and mapped to exit statuses by run.
 		ExitErrHandler: func(context.Context, *cli.Command, error) {},
 		OnUsageError: func(_ context.Context, _ *cli.Command, err error, _ bool) error {
@@ -187,6 +187,7 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 			checkCommand(),
 			specsCommand(),
 			serveCommand(),
+			versionCommand(),
 		},
 	}
 }

@@ -47,7 +47,7 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 		return err
 	}
 	defer files.abort()
-	out, err := openRunOutput(o, files, stdout, reports.Options{Version: version},
+	out, err := openRunOutput(o, files, stdout, reports.Options{Version: versionString()},
 		func(w io.Writer, f reports.Format, opts reports.Options) (recordWriter[*measure.Measurement], error) {
 			return reports.NewMeasureWriter(w, f, opts)
 		})

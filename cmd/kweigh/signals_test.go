@@ -40,7 +40,7 @@ func kweighBinary(t *testing.T) string {
 			return
 		}
 		binaryPath = filepath.Join(binaryDir, "kweigh")
-		out, err := exec.Command("go", "build", "-o", binaryPath, ".").CombinedOutput()
+		out, err := exec.Command("go", "build", "-trimpath", "-o", binaryPath, ".").CombinedOutput()
 		if err != nil {
 			binaryErr = err
 			t.Logf("%s", out)
@@ -168,6 +168,14 @@ func TestSignalsInterruptRun(t *testing.T) {
 		}
 		if !strings.Contains(out, "INTERRUPTED") {
 			t.Errorf("the text report should say INTERRUPTED:\n%s", out)
+		}
+	})
+
+	t.Run("SIGINT csv", func(t *testing.T) {
+		code, out, errOut, _ := interrupt(t, syscall.SIGINT, 700*time.Millisecond,
+			"measure", "--jobs", "1", "--format", "csv", delivery)
+		if code != 130 || out != "" || !strings.Contains(errOut, "CSV table is not written") {
+			t.Errorf("exit %d, stdout %q, stderr %q: an interrupted CSV run writes no table", code, out, errOut)
 		}
 	})
 

@@ -197,7 +197,11 @@ func oversText(s *loudness.Series, overs int) string {
 	if s == nil || s.Step <= 1 {
 		return fmt.Sprintf("%d × 100 ms", overs)
 	}
-	return fmt.Sprintf("in %d stretches of %s s", overs, strconv.FormatFloat(2*elementSeconds(s), 'f', -1, 64))
+	noun := "stretches"
+	if overs == 1 {
+		noun = "stretch"
+	}
+	return fmt.Sprintf("in %d %s of %s s", overs, noun, strconv.FormatFloat(2*elementSeconds(s), 'f', -1, 64))
 }
 
 // loudnessPlot draws the loudness-over-time plot of one entry.
