@@ -3,6 +3,7 @@ package serve
 import (
 	"bytes"
 	"net/http"
+	"path/filepath"
 
 	"github.com/kweigh/kweigh/rules"
 )
@@ -19,37 +20,42 @@ type SpecSummary struct {
 	Default bool `json:"default"`
 }
 
-// SpecDescription is the default answer of GET /v1/specs/{id}: the spec's
-// identity and source, its one-line summary, where each limit comes from,
-// and the full description `kweigh specs show` prints.
+// SpecDescription is the default answer of GET /v1/specs/{id}, in the
+// shape of `kweigh specs show --format json`: the spec's identity and
+// source and every limit with where it comes from. File is the spec file's
+// name only: the server's folders are nobody's business.
 type SpecDescription struct {
-	ID           string            `json:"id"`
-	Title        string            `json:"title"`
-	Description  string            `json:"description"`
-	Source       string            `json:"source"`
-	Marker       string            `json:"marker"`
-	Extends      string            `json:"extends,omitempty"`
-	Summary      string            `json:"summary"`
-	LimitSources map[string]string `json:"limit_sources"`
-	Notes        []string          `json:"notes"`
-	Text         string            `json:"text"`
+	ID          string        `json:"id"`
+	Title       string        `json:"title"`
+	Description string        `json:"description"`
+	Source      string        `json:"source"`
+	Marker      string        `json:"marker"`
+	Extends     string        `json:"extends,omitempty"`
+	File        string        `json:"file,omitempty"`
+	Root        bool          `json:"root,omitempty"`
+	Limits      []rules.Limit `json:"limits"`
+	Notes       []string      `json:"notes"`
 }
 
 // DescribeSpec returns a spec's SpecDescription.
 func DescribeSpec(s *rules.Spec) any {
-	var text bytes.Buffer
-	s.Describe(&text) // a bytes.Buffer does not fail
 	d := SpecDescription{
 		ID: s.ID, Title: s.Title, Description: s.Description, Source: s.Source.String(), Marker: s.Source.Marker,
-		Extends: s.Extends, Summary: s.Summary(), LimitSources: s.LimitSources, Notes: s.Notes, Text: text.String(),
+		Extends: s.Extends, File: SpecFileName(s), Root: s.Root, Limits: s.Limits(), Notes: append([]string{}, s.Notes...),
 	}
-	if d.LimitSources == nil {
-		d.LimitSources = map[string]string{}
-	}
-	if d.Notes == nil {
-		d.Notes = []string{}
+	if d.Limits == nil {
+		d.Limits = []rules.Limit{}
 	}
 	return d
+}
+
+// SpecFileName is the base name of a user spec's file ("" for built-ins):
+// what a client may see of where the server keeps it.
+func SpecFileName(s *rules.Spec) string {
+	if s.File == "" {
+		return ""
+	}
+	return filepath.Base(s.File)
 }
 
 func (s *Server) getSpecs(w http.ResponseWriter, r *http.Request, rec *requestLog) {

@@ -97,11 +97,13 @@ func waitHealthy(t *testing.T, url string) {
 // logs, judges one upload and stops it through its context (exit 0).
 func TestServeInProcess(t *testing.T) {
 	addr := freePort(t)
+	specDir := t.TempDir()
+	os.WriteFile(filepath.Join(specDir, "northgate.toml"), []byte("name = \"northgate-podcasts\"\nextends = \"podcast\"\n[timing]\nmax_trailing_silence_s = 3.0\n"), 0o600)
 	ctx, cancel := context.WithCancel(context.Background())
 	var stderr lockedBuffer
 	done := make(chan int, 1)
 	go func() {
-		done <- run(ctx, []string{"kweigh", "serve", "--listen", addr, "--log-format", "json", "--spec", "podcast", "--jobs", "1"}, &bytes.Buffer{}, &stderr)
+		done <- run(ctx, []string{"kweigh", "serve", "--listen", addr, "--log-format", "json", "--spec", "podcast", "--jobs", "1", "--specs", specDir}, &bytes.Buffer{}, &stderr)
 	}()
 	url := "http://" + addr
 	waitHealthy(t, url)
@@ -118,6 +120,29 @@ func TestServeInProcess(t *testing.T) {
 	resp.Body.Close()
 	if resp.StatusCode != 200 || obj["spec"] != "podcast" || obj["path"] != "lamplighter-s2e12.wav" || obj["verdict"] != resp.Header.Get("Kweigh-Verdict") {
 		t.Errorf("%d spec %v path %v verdict %v / %q", resp.StatusCode, obj["spec"], obj["path"], obj["verdict"], resp.Header.Get("Kweigh-Verdict"))
+	}
+	// GET /v1/specs/{id} is what `kweigh specs show --format json` prints.
+	code, want, _ := kweigh(t, "specs", "show", "--format", "json", "podcast")
+	sresp, err := http.Get(url + "/v1/specs/podcast")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got bytes.Buffer
+	got.ReadFrom(sresp.Body)
+	sresp.Body.Close()
+	if code != exitOK || !jsonEqual(t, got.Bytes(), []byte(want)) {
+		t.Errorf("GET /v1/specs/podcast differs from specs show --format json:\n%s\n%s", got.Bytes(), want)
+	}
+	// A spec from --specs is shown with its file's name, not the server's path.
+	sresp, err = http.Get(url + "/v1/specs/northgate-podcasts")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var house map[string]any
+	json.NewDecoder(sresp.Body).Decode(&house)
+	sresp.Body.Close()
+	if house["file"] != "northgate.toml" || house["extends"] != "podcast" {
+		t.Errorf("northgate-podcasts: file %v extends %v", house["file"], house["extends"])
 	}
 	cancel()
 	select {
@@ -219,4 +244,19 @@ func metrics(t *testing.T, url string) string {
 	var b bytes.Buffer
 	b.ReadFrom(resp.Body)
 	return b.String()
+}
+
+// jsonEqual compares two JSON documents by value.
+func jsonEqual(t *testing.T, a, b []byte) bool {
+	t.Helper()
+	var x, y any
+	if err := json.Unmarshal(a, &x); err != nil {
+		t.Fatalf("not JSON: %v\n%s", err, a)
+	}
+	if err := json.Unmarshal(b, &y); err != nil {
+		t.Fatalf("not JSON: %v\n%s", err, b)
+	}
+	xa, _ := json.Marshal(x)
+	ya, _ := json.Marshal(y)
+	return bytes.Equal(xa, ya)
 }
