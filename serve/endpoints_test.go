@@ -179,3 +179,19 @@ func TestGraceExpires(t *testing.T) {
 		t.Errorf("shutdown took %v with a 200 ms grace", took)
 	}
 }
+
+// TestNoRoute: a path no route takes is a JSON 404; a known path with
+// another method a JSON 405 with Allow.
+func TestNoRoute(t *testing.T) {
+	ts := startServer(t, Config{})
+	if a := ts.get(t, "/v2/checks"); a.status != 404 || !strings.Contains(a.json(t)["error"].(string), "/v2/checks") {
+		t.Errorf("unknown path: %d %s", a.status, a.body)
+	}
+	if a := ts.get(t, "/v1/checks"); a.status != 405 || a.header.Get("Allow") != "POST" {
+		t.Errorf("GET /v1/checks: %d Allow %q %s", a.status, a.header.Get("Allow"), a.body)
+	}
+	req, _ := http.NewRequest("DELETE", ts.url+"/v1/specs/podcast", nil)
+	if a := ts.do(t, req); a.status != 405 || !strings.HasPrefix(a.header.Get("Allow"), "GET") {
+		t.Errorf("DELETE /v1/specs/podcast: %d Allow %q", a.status, a.header.Get("Allow"))
+	}
+}

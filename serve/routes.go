@@ -3,8 +3,11 @@ package serve
 import (
 	"context"
 	"encoding/json"
+	"fmt"
 	"log/slog"
 	"net/http"
+	"slices"
+	"strings"
 	"time"
 )
 
@@ -114,6 +117,32 @@ func (s *Server) wrap(rt route) http.Handler {
 		}
 		rt.handle(sw, r, rec)
 	})
+}
+
+// noRoute answers what no route takes, in JSON like every other answer:
+// 405 with Allow for a known path and another method, 404 otherwise.
+func (s *Server) noRoute(w http.ResponseWriter, r *http.Request, rec *requestLog) {
+	var allow []string
+	for _, rt := range s.routes {
+		paths := http.NewServeMux()
+		paths.Handle(rt.pattern, http.NotFoundHandler())
+		probe := r.Clone(r.Context())
+		probe.Method = rt.method
+		if _, pattern := paths.Handler(probe); pattern != "" {
+			allow = append(allow, rt.method)
+		}
+	}
+	if len(allow) > 0 {
+		if slices.Contains(allow, "GET") {
+			allow = append(allow, "HEAD")
+		}
+		w.Header().Set("Allow", strings.Join(allow, ", "))
+		rec.problem = "method not allowed"
+		writeError(w, http.StatusMethodNotAllowed, fmt.Sprintf("%s is not allowed on %s (use %s)", r.Method, r.URL.Path, strings.Join(allow, ", ")))
+		return
+	}
+	rec.problem = "no such route"
+	writeError(w, http.StatusNotFound, fmt.Sprintf("no route %s (see /v1/openapi.json)", r.URL.Path))
 }
 
 // writeError answers with {"error": msg}.

@@ -156,6 +156,7 @@ func New(cfg Config) (*Server, error) {
 	for _, rt := range s.routes {
 		s.mux.Handle(rt.method+" "+rt.pattern, s.wrap(rt))
 	}
+	s.mux.Handle("/", s.wrap(route{pattern: "/", handle: s.noRoute}))
 	return s, nil
 }
 
