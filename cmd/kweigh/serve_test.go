@@ -174,15 +174,8 @@ func TestServeInProcess(t *testing.T) {
 // lets the check in flight finish and be answered, removes its temporary
 // folder and exits 0.
 func TestServeSIGTERM(t *testing.T) {
-	if testing.Short() {
-		t.Skip("builds the binary")
-	}
+	bin := kweighBinary(t) // built once for the signal tests
 	dir := t.TempDir()
-	bin := filepath.Join(dir, "kweigh")
-	build := exec.Command("go", "build", "-o", bin, ".")
-	if out, err := build.CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
-	}
 	tmp := filepath.Join(dir, "tmp")
 	os.Mkdir(tmp, 0o700)
 	addr := freePort(t)
