@@ -8,9 +8,7 @@ import (
 	"io"
 	"log/slog"
 	"net"
-	"os/signal"
 	"runtime"
-	"syscall"
 	"time"
 
 	"github.com/urfave/cli/v3"
@@ -30,7 +28,8 @@ func serveCommand() *cli.Command {
 			"It listens on loopback only unless told otherwise; any other address needs --token-file (bearer\n" +
 			"tokens, one per line) or an explicit --no-auth. Uploads are streamed to a private temporary folder\n" +
 			"and removed once judged; with --keep DIR each check's JSON and HTML report are kept for retrieval.\n" +
-			"SIGINT or SIGTERM stops accepting, lets checks in flight finish for up to --grace, then exits 0.\n\n" +
+			"SIGINT or SIGTERM stops accepting, lets checks in flight finish for up to --grace, then exits 0;\n" +
+			"a second signal ends it at once.\n\n" +
 			"A pass is not a broadcaster's or regulator's acceptance; local regulation and the receiving\n" +
 			"party's own QC decide.\n\n" +
 			"EXIT STATUS:\n   0  stopped by SIGINT or SIGTERM\n   2  the server could not start (bad option, address in use, listening exposed without --token-file)\n",
@@ -123,10 +122,8 @@ func runServe(ctx context.Context, cmd *cli.Command, stderr io.Writer) error {
 		srv.Close()
 		return usageError{fmt.Errorf("--listen: %w", err)}
 	}
-	// SIGINT arrives through ctx (main); the gate also stops on SIGTERM,
-	// what service managers send.
-	ctx, stop := signal.NotifyContext(ctx, syscall.SIGTERM)
-	defer stop()
+	// SIGINT and SIGTERM cancel ctx (main): the gate then drains and
+	// returns nil, so a requested stop exits 0.
 	return srv.Serve(ctx, ln)
 }
 

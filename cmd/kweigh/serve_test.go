@@ -170,61 +170,63 @@ func TestServeInProcess(t *testing.T) {
 	}
 }
 
-// TestServeSIGTERM runs the real binary: on SIGTERM it stops accepting,
-// lets the check in flight finish and be answered, removes its temporary
-// folder and exits 0.
-func TestServeSIGTERM(t *testing.T) {
+// TestServeStopsOnSignals runs the real binary: on SIGTERM (what service
+// managers send) and on SIGINT it stops accepting, lets the check in
+// flight finish and be answered, removes its temporary folder and exits 0.
+func TestServeStopsOnSignals(t *testing.T) {
 	bin := kweighBinary(t) // built once for the signal tests
-	dir := t.TempDir()
-	tmp := filepath.Join(dir, "tmp")
-	os.Mkdir(tmp, 0o700)
-	addr := freePort(t)
-	cmd := exec.Command(bin, "serve", "--listen", addr, "--jobs", "1")
-	cmd.Env = append(os.Environ(), "TMPDIR="+tmp)
-	var stderr lockedBuffer
-	cmd.Stderr = &stderr
-	if err := cmd.Start(); err != nil {
-		t.Fatal(err)
-	}
-	defer cmd.Process.Kill()
-	url := "http://" + addr
-	waitHealthy(t, url)
-
 	// A 3-minute file keeps the check busy for a moment while the signal
 	// arrives.
 	wav := audiotest.PCMWAV(48000, 2, 16, audiotest.Sine(48000, 180, 997, audiotest.DBFS(-23), audiotest.DBFS(-23)))
-	type result struct {
-		status  int
-		verdict string
-		err     error
-	}
-	answered := make(chan result, 1)
-	go func() {
-		resp, err := http.Post(url+"/v1/checks?name=long.wav", "audio/wav", bytes.NewReader(wav))
-		if err != nil {
-			answered <- result{err: err}
-			return
-		}
-		resp.Body.Close()
-		answered <- result{resp.StatusCode, resp.Header.Get("Kweigh-Verdict"), nil}
-	}()
-	deadline := time.Now().Add(30 * time.Second)
-	for !strings.Contains(metrics(t, url), "kweigh_checks_in_flight 1") {
-		if time.Now().After(deadline) {
-			t.Fatalf("the check never started:\n%s", stderr.String())
-		}
-		time.Sleep(5 * time.Millisecond)
-	}
-	cmd.Process.Signal(syscall.SIGTERM)
-	r := <-answered
-	if r.err != nil || r.status != 200 || r.verdict == "" {
-		t.Errorf("check in flight at SIGTERM: %+v", r)
-	}
-	if err := cmd.Wait(); err != nil {
-		t.Errorf("exit after SIGTERM: %v\n%s", err, stderr.String())
-	}
-	if entries, _ := os.ReadDir(tmp); len(entries) != 0 {
-		t.Errorf("temporary folder left in $TMPDIR: %v", entries)
+	for _, sig := range []syscall.Signal{syscall.SIGTERM, syscall.SIGINT} {
+		t.Run(sig.String(), func(t *testing.T) {
+			tmp := filepath.Join(t.TempDir(), "tmp")
+			os.Mkdir(tmp, 0o700)
+			addr := freePort(t)
+			cmd := exec.Command(bin, "serve", "--listen", addr, "--jobs", "1")
+			cmd.Env = append(os.Environ(), "TMPDIR="+tmp)
+			var stderr lockedBuffer
+			cmd.Stderr = &stderr
+			if err := cmd.Start(); err != nil {
+				t.Fatal(err)
+			}
+			defer cmd.Process.Kill()
+			url := "http://" + addr
+			waitHealthy(t, url)
+			type result struct {
+				status  int
+				verdict string
+				err     error
+			}
+			answered := make(chan result, 1)
+			go func() {
+				resp, err := http.Post(url+"/v1/checks?name=long.wav", "audio/wav", bytes.NewReader(wav))
+				if err != nil {
+					answered <- result{err: err}
+					return
+				}
+				resp.Body.Close()
+				answered <- result{resp.StatusCode, resp.Header.Get("Kweigh-Verdict"), nil}
+			}()
+			deadline := time.Now().Add(30 * time.Second)
+			for !strings.Contains(metrics(t, url), "kweigh_checks_in_flight 1") {
+				if time.Now().After(deadline) {
+					t.Fatalf("the check never started:\n%s", stderr.String())
+				}
+				time.Sleep(5 * time.Millisecond)
+			}
+			cmd.Process.Signal(sig)
+			r := <-answered
+			if r.err != nil || r.status != 200 || r.verdict == "" {
+				t.Errorf("check in flight at %v: %+v", sig, r)
+			}
+			if err := cmd.Wait(); err != nil {
+				t.Errorf("exit after %v: %v\n%s", sig, err, stderr.String())
+			}
+			if entries, _ := os.ReadDir(tmp); len(entries) != 0 {
+				t.Errorf("temporary folder left in $TMPDIR: %v", entries)
+			}
+		})
 	}
 }
 
