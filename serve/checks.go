@@ -142,6 +142,7 @@ func (s *Server) postCheck(w http.ResponseWriter, r *http.Request, rec *requestL
 	w.Header().Set(HeaderVerdict, string(res.Verdict))
 	w.Header().Set(HeaderCheckID, id)
 	if wantHTML && page != nil {
+		w.Header().Set("Content-Security-Policy", reportCSP)
 		writeBody(w, http.StatusOK, "text/html; charset=utf-8", page)
 		return
 	}

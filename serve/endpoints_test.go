@@ -65,6 +65,9 @@ func TestHTMLAnswer(t *testing.T) {
 	if a.status != 200 || a.header.Get(HeaderVerdict) != "fail" || !strings.HasPrefix(a.header.Get("Content-Type"), "text/html") {
 		t.Fatalf("%d %q %q", a.status, a.header.Get(HeaderVerdict), a.header.Get("Content-Type"))
 	}
+	if !strings.Contains(a.header.Get("Content-Security-Policy"), "default-src 'none'") {
+		t.Errorf("HTML answer without a content security policy")
+	}
 	if !strings.Contains(string(a.body), "promo.wav") || !strings.Contains(string(a.body), "Full-scale test signals") {
 		t.Errorf("the report lacks the file's label or the caution")
 	}
