@@ -55,7 +55,8 @@ type Info struct {
 	// tag of the same name), 0 when absent.
 	ChannelMask uint32
 	// BitsPerSample is the number of significant bits per sample (the
-	// "valid bits" of an extensible WAV, 16 for a decoded MP3).
+	// "valid bits" of an extensible WAV), 0 for lossy formats (MP3), which
+	// have no bit depth.
 	BitsPerSample int
 	// SampleFormat is Int or Float.
 	SampleFormat SampleFormat
@@ -68,6 +69,13 @@ type Info struct {
 	// Mode is a format-specific description of the channel coding, e.g.
 	// "joint stereo" for MP3; empty when it adds nothing.
 	Mode string
+	// BitRateMode is "cbr", "vbr" or "abr" for compressed formats that
+	// say (an MP3's Xing/Info/LAME header, or constant frame sizes), ""
+	// when unknown or not applicable.
+	BitRateMode string
+	// Tags lists the metadata blocks found around the audio, e.g.
+	// "id3v2.3", "id3v1", "ape"; nil when there are none.
+	Tags []string
 	// Bext holds the Broadcast Wave extension chunk when the file has one.
 	Bext *Bext
 	// Undeclared is set when the file holds data after the audio its

@@ -27,7 +27,8 @@ type Options struct {
 	// DefaultClipRunMinSamples.
 	ClipRunMinSamples int
 	// KeepSeries keeps the 10 Hz time series in Measurement.Series (for
-	// plots).
+	// plots). Their size is bounded: past 1 h 49 min the engine decimates
+	// them (see loudness.Series).
 	KeepSeries bool
 	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
 	// passed to this file's decoder only.
@@ -86,9 +87,11 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		Codec:         info.Codec,
 		SampleRateHz:  info.SampleRate,
 		Channels:      info.Channels,
-		BitsPerSample: info.BitsPerSample,
+		BitsPerSample: BitDepth(info.BitsPerSample),
 		SampleFormat:  string(info.SampleFormat),
 		Mode:          info.Mode,
+		BitRateMode:   info.BitRateMode,
+		Tags:          append([]string(nil), info.Tags...),
 		Bext:          info.Bext,
 		Notes:         []string{},
 	}

@@ -24,8 +24,9 @@ func checkCommand() *cli.Command {
 		Usage:     "judge files against a delivery spec: verdict, reasons and the gain that fixes them",
 		ArgsUsage: "FILE|DIR|GLOB...",
 		Description: "Measures every audio file named (folders recursively) and judges it against its spec: the\n" +
-			"spec given by --spec or, without it, the nearest kweigh.toml from the file's folder upwards (a\n" +
-			"kweigh.toml with root = true ends the search), so one run can check deliveries for several outlets. Every check is pass, warn or fail, with the measured value, the limit and\n" +
+			"spec given by --spec or, without it, the nearest kweigh.toml from the file's folder upwards\n" +
+			"(a kweigh.toml with root = true ends the search), so one run can check deliveries for several\n" +
+			"outlets. Every check is pass, warn or fail, with the measured value, the limit and\n" +
 			"a reason; loudness failures come with the gain that reaches the target and whether a limiter\n" +
 			"is needed.\n\n" +
 			"Raising gain raises level: audition corrected files at a safe monitoring level. A pass is not\n" +

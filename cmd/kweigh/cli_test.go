@@ -126,6 +126,10 @@ func TestCommandLineFirstContact(t *testing.T) {
 	if code != exitTrouble || !strings.Contains(errOut, "unknown command 'chek'; did you mean 'check'?") {
 		t.Errorf("kweigh chek: exit %d, stderr %q", code, errOut)
 	}
+	code, _, errOut = kweigh(t, "help", "chek")
+	if code != exitTrouble || !strings.Contains(errOut, "unknown command 'chek'; did you mean 'check'?") {
+		t.Errorf("kweigh help chek: exit %d, stderr %q", code, errOut)
+	}
 	code, _, errOut = kweigh(t, "frobnicate")
 	if code != exitTrouble || !strings.Contains(errOut, "unknown command 'frobnicate'") || strings.Contains(errOut, "did you mean") {
 		t.Errorf("kweigh frobnicate: exit %d, stderr %q", code, errOut)

@@ -60,6 +60,17 @@ func unknownCommand(root *cli.Command, word string) error {
 	return usagef("unknown command '%s'; commands: %s (see 'kweigh help')", word, strings.Join(names, ", "))
 }
 
+// unknownHelpTopic recognises the command-line library's error for `kweigh
+// help WORD` with an unknown WORD, so that it gets the same message and
+// suggestion as `kweigh WORD`.
+func unknownHelpTopic(err error) (string, bool) {
+	const prefix = "No help topic for '"
+	if err == nil || !strings.HasPrefix(err.Error(), prefix) || !strings.HasSuffix(err.Error(), "'") {
+		return "", false
+	}
+	return strings.TrimSuffix(strings.TrimPrefix(err.Error(), prefix), "'"), true
+}
+
 // editDistance is the Levenshtein distance between a and b, by runes.
 func editDistance(a, b string) int {
 	ra, rb := []rune(a), []rune(b)

@@ -82,7 +82,7 @@ func TestDamagedDeliveriesAreErrors(t *testing.T) {
 	writeTestFile(t, dir, "behind-zeros.mp3", append(make([]byte, 5000), mp3...))
 	// An ID3v2.4 header (id3.org, ID3v2.4.0 structure, section 3.1) whose
 	// synchsafe size, 0x7f7f7f7f = 256 MiB, runs far past the end.
-	flac := readTestFile(t, filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac"))
+	flac := readTestFile(t, filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep03.flac"))
 	writeTestFile(t, dir, "big-tag.flac", append([]byte("ID3\x04\x00\x00\x7f\x7f\x7f\x7f"), flac...))
 	writeTestFile(t, dir, "cue-sheet.txt", []byte("00:00 opening theme\n"))
 	junit := filepath.Join(dir, "out", "results.xml")
@@ -192,6 +192,18 @@ func TestFIFOsNeverBlock(t *testing.T) {
 	code, out, _ = kweighWithin(t, 20*time.Second, "check", filepath.Join(dir, "fifo-spec"))
 	if code != exitTrouble || !strings.Contains(out, "not a regular file") {
 		t.Errorf("FIFO as kweigh.toml: exit %d\n%s", code, out)
+	}
+	// A device named on the command line or as --spec (issue 8: /dev/zero
+	// was "file is empty", and as a spec grew without bound).
+	if _, err := os.Stat("/dev/zero"); err == nil {
+		code, out, _ = kweighWithin(t, 20*time.Second, "measure", "/dev/zero")
+		if code != exitTrouble || !strings.Contains(out, "not a regular file") {
+			t.Errorf("measure /dev/zero: exit %d\n%s", code, out)
+		}
+		code, _, errOut := kweighWithin(t, 20*time.Second, "check", "--spec", "/dev/zero", filepath.Join(dir, "delivery", "good.wav"))
+		if code != exitTrouble || !strings.Contains(errOut, "not a regular file") {
+			t.Errorf("--spec /dev/zero: exit %d, stderr %q", code, errOut)
+		}
 	}
 	fifo := filepath.Join(dir, "house.toml")
 	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
@@ -310,7 +322,7 @@ func TestMixedFolderConcurrent(t *testing.T) {
 	dir := t.TempDir()
 	writeTestFile(t, dir, "kweigh.toml", []byte("name = \"saltmarsh-fm\"\nextends = \"ebu-r128\"\n"))
 	writeTestFile(t, dir, "a-tone.wav", lineUpWAV())
-	writeTestFile(t, dir, "b-music.flac", readTestFile(t, filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac")))
+	writeTestFile(t, dir, "b-music.flac", readTestFile(t, filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep03.flac")))
 	writeTestFile(t, dir, "c-talk.mp3", readTestFile(t, filepath.Join(demoDir, "northgate-podcasts", "lamplighters-almanac-s02e12.mp3")))
 	writeTestFile(t, dir, "d-cut.wav", lineUpWAV()[:30])
 	writeTestFile(t, dir, "e-notes.txt", []byte("running order\n"))

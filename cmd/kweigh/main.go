@@ -147,6 +147,9 @@ func onSignals(signals <-chan os.Signal, cancel context.CancelCauseFunc, exit fu
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) int {
 	root := newRootCommand(stdout, stderr)
 	err := root.Run(ctx, args)
+	if topic, ok := unknownHelpTopic(err); ok {
+		err = unknownCommand(root, topic)
+	}
 	var quiet interface{ alreadyReported() }
 	if err != nil && !errors.As(err, &quiet) {
 		var failed failedError
