@@ -190,6 +190,7 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 			checkCommand(),
 			fixCommand(),
 			specsCommand(),
+			serveCommand(),
 			versionCommand(),
 		},
 	}
