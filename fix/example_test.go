@@ -13,7 +13,8 @@ import (
 	"github.com/kweigh/kweigh/rules"
 )
 
-// A 997 Hz tone at -6 dBFS in both channels of a 16-bit WAV reads -6.0
+// A 997 Hz tone at -6 dBFS in both channels of a 16-bit WAV (the right
+// channel one sample later, so the file is not dual mono) reads -6.0
 // LUFS (BS.1770: a full-scale sine in one channel reads -3.01 LKFS; -6 dB,
 // and +3 dB for the second channel), far above the podcast target of -16
 // LUFS: fix lowers it by 10 dB, writes tone.fixed.wav beside it and judges
@@ -31,7 +32,8 @@ func ExampleFile() {
 	// Output: gain, -10.0 dB → tone.fixed.wav: -16.0 LUFS, -16.0 dBTP, pass
 }
 
-// toneWAV returns a 16-bit stereo WAV of a 997 Hz sine of amplitude amp.
+// toneWAV returns a 16-bit stereo WAV of a 997 Hz sine of amplitude amp,
+// the right channel one sample behind the left.
 func toneWAV(rate, secs int, amp float64) []byte {
 	le := binary.LittleEndian
 	n := rate * secs
@@ -49,9 +51,11 @@ func toneWAV(rate, secs int, amp float64) []byte {
 	b = append(b, "data"...)
 	b = le.AppendUint32(b, uint32(n*4))
 	for i := range n {
-		v := int16(math.Round(amp * 32767 * math.Sin(2*math.Pi*997*float64(i)/float64(rate))))
-		b = le.AppendUint16(b, uint16(v))
-		b = le.AppendUint16(b, uint16(v))
+		w := 2 * math.Pi * 997 / float64(rate)
+		l := int16(math.Round(amp * 32767 * math.Sin(w*float64(i))))
+		r := int16(math.Round(amp * 32767 * math.Sin(w*float64(max(i-1, 0)))))
+		b = le.AppendUint16(b, uint16(l))
+		b = le.AppendUint16(b, uint16(r))
 	}
 	return b
 }
