@@ -40,66 +40,114 @@ func restoreLPCUnrolled(x []int32, c []int32, shift uint) bool {
 }
 
 func lpc1(x []int32, c []int32, shift uint) {
+	if len(x) <= 1 {
+		return
+	}
 	c = c[:1]
 	c0 := int64(c[0])
-	for i := 1; i < len(x); i++ {
-		h := x[i-1 : i+1 : i+1]
-		sum := c0 * int64(h[0])
-		h[1] += int32(sum >> shift)
+	x1 := int64(x[0])
+	shift &= 63
+	out := x[1:]
+	for i, r := range out {
+		sum := c0 * x1
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x1 = v
 	}
 }
 
 func lpc2(x []int32, c []int32, shift uint) {
+	if len(x) <= 2 {
+		return
+	}
 	c = c[:2]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
-	for i := 2; i < len(x); i++ {
-		h := x[i-2 : i+1 : i+1]
-		sum := c0*int64(h[1]) + c1*int64(h[0])
-		h[2] += int32(sum >> shift)
+	x1 := int64(x[1])
+	x2 := int64(x[0])
+	shift &= 63
+	out := x[2:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x2, x1 = x1, v
 	}
 }
 
 func lpc3(x []int32, c []int32, shift uint) {
+	if len(x) <= 3 {
+		return
+	}
 	c = c[:3]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
 	c2 := int64(c[2])
-	for i := 3; i < len(x); i++ {
-		h := x[i-3 : i+1 : i+1]
-		sum := c0*int64(h[2]) + c1*int64(h[1]) + c2*int64(h[0])
-		h[3] += int32(sum >> shift)
+	x1 := int64(x[2])
+	x2 := int64(x[1])
+	x3 := int64(x[0])
+	shift &= 63
+	out := x[3:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x3, x2, x1 = x2, x1, v
 	}
 }
 
 func lpc4(x []int32, c []int32, shift uint) {
+	if len(x) <= 4 {
+		return
+	}
 	c = c[:4]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
 	c2 := int64(c[2])
 	c3 := int64(c[3])
-	for i := 4; i < len(x); i++ {
-		h := x[i-4 : i+1 : i+1]
-		sum := c0*int64(h[3]) + c1*int64(h[2]) + c2*int64(h[1]) + c3*int64(h[0])
-		h[4] += int32(sum >> shift)
+	x1 := int64(x[3])
+	x2 := int64(x[2])
+	x3 := int64(x[1])
+	x4 := int64(x[0])
+	shift &= 63
+	out := x[4:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x4, x3, x2, x1 = x3, x2, x1, v
 	}
 }
 
 func lpc5(x []int32, c []int32, shift uint) {
+	if len(x) <= 5 {
+		return
+	}
 	c = c[:5]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
 	c2 := int64(c[2])
 	c3 := int64(c[3])
 	c4 := int64(c[4])
-	for i := 5; i < len(x); i++ {
-		h := x[i-5 : i+1 : i+1]
-		sum := c0*int64(h[4]) + c1*int64(h[3]) + c2*int64(h[2]) + c3*int64(h[1]) + c4*int64(h[0])
-		h[5] += int32(sum >> shift)
+	x1 := int64(x[4])
+	x2 := int64(x[3])
+	x3 := int64(x[2])
+	x4 := int64(x[1])
+	x5 := int64(x[0])
+	shift &= 63
+	out := x[5:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x5, x4, x3, x2, x1 = x4, x3, x2, x1, v
 	}
 }
 
 func lpc6(x []int32, c []int32, shift uint) {
+	if len(x) <= 6 {
+		return
+	}
 	c = c[:6]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
@@ -107,14 +155,26 @@ func lpc6(x []int32, c []int32, shift uint) {
 	c3 := int64(c[3])
 	c4 := int64(c[4])
 	c5 := int64(c[5])
-	for i := 6; i < len(x); i++ {
-		h := x[i-6 : i+1 : i+1]
-		sum := c0*int64(h[5]) + c1*int64(h[4]) + c2*int64(h[3]) + c3*int64(h[2]) + c4*int64(h[1]) + c5*int64(h[0])
-		h[6] += int32(sum >> shift)
+	x1 := int64(x[5])
+	x2 := int64(x[4])
+	x3 := int64(x[3])
+	x4 := int64(x[2])
+	x5 := int64(x[1])
+	x6 := int64(x[0])
+	shift &= 63
+	out := x[6:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x6, x5, x4, x3, x2, x1 = x5, x4, x3, x2, x1, v
 	}
 }
 
 func lpc7(x []int32, c []int32, shift uint) {
+	if len(x) <= 7 {
+		return
+	}
 	c = c[:7]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
@@ -123,14 +183,27 @@ func lpc7(x []int32, c []int32, shift uint) {
 	c4 := int64(c[4])
 	c5 := int64(c[5])
 	c6 := int64(c[6])
-	for i := 7; i < len(x); i++ {
-		h := x[i-7 : i+1 : i+1]
-		sum := c0*int64(h[6]) + c1*int64(h[5]) + c2*int64(h[4]) + c3*int64(h[3]) + c4*int64(h[2]) + c5*int64(h[1]) + c6*int64(h[0])
-		h[7] += int32(sum >> shift)
+	x1 := int64(x[6])
+	x2 := int64(x[5])
+	x3 := int64(x[4])
+	x4 := int64(x[3])
+	x5 := int64(x[2])
+	x6 := int64(x[1])
+	x7 := int64(x[0])
+	shift &= 63
+	out := x[7:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x7, x6, x5, x4, x3, x2, x1 = x6, x5, x4, x3, x2, x1, v
 	}
 }
 
 func lpc8(x []int32, c []int32, shift uint) {
+	if len(x) <= 8 {
+		return
+	}
 	c = c[:8]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
@@ -140,14 +213,28 @@ func lpc8(x []int32, c []int32, shift uint) {
 	c5 := int64(c[5])
 	c6 := int64(c[6])
 	c7 := int64(c[7])
-	for i := 8; i < len(x); i++ {
-		h := x[i-8 : i+1 : i+1]
-		sum := c0*int64(h[7]) + c1*int64(h[6]) + c2*int64(h[5]) + c3*int64(h[4]) + c4*int64(h[3]) + c5*int64(h[2]) + c6*int64(h[1]) + c7*int64(h[0])
-		h[8] += int32(sum >> shift)
+	x1 := int64(x[7])
+	x2 := int64(x[6])
+	x3 := int64(x[5])
+	x4 := int64(x[4])
+	x5 := int64(x[3])
+	x6 := int64(x[2])
+	x7 := int64(x[1])
+	x8 := int64(x[0])
+	shift &= 63
+	out := x[8:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x8, x7, x6, x5, x4, x3, x2, x1 = x7, x6, x5, x4, x3, x2, x1, v
 	}
 }
 
 func lpc9(x []int32, c []int32, shift uint) {
+	if len(x) <= 9 {
+		return
+	}
 	c = c[:9]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
@@ -158,14 +245,29 @@ func lpc9(x []int32, c []int32, shift uint) {
 	c6 := int64(c[6])
 	c7 := int64(c[7])
 	c8 := int64(c[8])
-	for i := 9; i < len(x); i++ {
-		h := x[i-9 : i+1 : i+1]
-		sum := c0*int64(h[8]) + c1*int64(h[7]) + c2*int64(h[6]) + c3*int64(h[5]) + c4*int64(h[4]) + c5*int64(h[3]) + c6*int64(h[2]) + c7*int64(h[1]) + c8*int64(h[0])
-		h[9] += int32(sum >> shift)
+	x1 := int64(x[8])
+	x2 := int64(x[7])
+	x3 := int64(x[6])
+	x4 := int64(x[5])
+	x5 := int64(x[4])
+	x6 := int64(x[3])
+	x7 := int64(x[2])
+	x8 := int64(x[1])
+	x9 := int64(x[0])
+	shift &= 63
+	out := x[9:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8 + c8*x9
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x9, x8, x7, x6, x5, x4, x3, x2, x1 = x8, x7, x6, x5, x4, x3, x2, x1, v
 	}
 }
 
 func lpc10(x []int32, c []int32, shift uint) {
+	if len(x) <= 10 {
+		return
+	}
 	c = c[:10]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
@@ -177,14 +279,30 @@ func lpc10(x []int32, c []int32, shift uint) {
 	c7 := int64(c[7])
 	c8 := int64(c[8])
 	c9 := int64(c[9])
-	for i := 10; i < len(x); i++ {
-		h := x[i-10 : i+1 : i+1]
-		sum := c0*int64(h[9]) + c1*int64(h[8]) + c2*int64(h[7]) + c3*int64(h[6]) + c4*int64(h[5]) + c5*int64(h[4]) + c6*int64(h[3]) + c7*int64(h[2]) + c8*int64(h[1]) + c9*int64(h[0])
-		h[10] += int32(sum >> shift)
+	x1 := int64(x[9])
+	x2 := int64(x[8])
+	x3 := int64(x[7])
+	x4 := int64(x[6])
+	x5 := int64(x[5])
+	x6 := int64(x[4])
+	x7 := int64(x[3])
+	x8 := int64(x[2])
+	x9 := int64(x[1])
+	x10 := int64(x[0])
+	shift &= 63
+	out := x[10:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8 + c8*x9 + c9*x10
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x10, x9, x8, x7, x6, x5, x4, x3, x2, x1 = x9, x8, x7, x6, x5, x4, x3, x2, x1, v
 	}
 }
 
 func lpc11(x []int32, c []int32, shift uint) {
+	if len(x) <= 11 {
+		return
+	}
 	c = c[:11]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
@@ -197,14 +315,31 @@ func lpc11(x []int32, c []int32, shift uint) {
 	c8 := int64(c[8])
 	c9 := int64(c[9])
 	c10 := int64(c[10])
-	for i := 11; i < len(x); i++ {
-		h := x[i-11 : i+1 : i+1]
-		sum := c0*int64(h[10]) + c1*int64(h[9]) + c2*int64(h[8]) + c3*int64(h[7]) + c4*int64(h[6]) + c5*int64(h[5]) + c6*int64(h[4]) + c7*int64(h[3]) + c8*int64(h[2]) + c9*int64(h[1]) + c10*int64(h[0])
-		h[11] += int32(sum >> shift)
+	x1 := int64(x[10])
+	x2 := int64(x[9])
+	x3 := int64(x[8])
+	x4 := int64(x[7])
+	x5 := int64(x[6])
+	x6 := int64(x[5])
+	x7 := int64(x[4])
+	x8 := int64(x[3])
+	x9 := int64(x[2])
+	x10 := int64(x[1])
+	x11 := int64(x[0])
+	shift &= 63
+	out := x[11:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8 + c8*x9 + c9*x10 + c10*x11
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x11, x10, x9, x8, x7, x6, x5, x4, x3, x2, x1 = x10, x9, x8, x7, x6, x5, x4, x3, x2, x1, v
 	}
 }
 
 func lpc12(x []int32, c []int32, shift uint) {
+	if len(x) <= 12 {
+		return
+	}
 	c = c[:12]
 	c0 := int64(c[0])
 	c1 := int64(c[1])
@@ -218,9 +353,24 @@ func lpc12(x []int32, c []int32, shift uint) {
 	c9 := int64(c[9])
 	c10 := int64(c[10])
 	c11 := int64(c[11])
-	for i := 12; i < len(x); i++ {
-		h := x[i-12 : i+1 : i+1]
-		sum := c0*int64(h[11]) + c1*int64(h[10]) + c2*int64(h[9]) + c3*int64(h[8]) + c4*int64(h[7]) + c5*int64(h[6]) + c6*int64(h[5]) + c7*int64(h[4]) + c8*int64(h[3]) + c9*int64(h[2]) + c10*int64(h[1]) + c11*int64(h[0])
-		h[12] += int32(sum >> shift)
+	x1 := int64(x[11])
+	x2 := int64(x[10])
+	x3 := int64(x[9])
+	x4 := int64(x[8])
+	x5 := int64(x[7])
+	x6 := int64(x[6])
+	x7 := int64(x[5])
+	x8 := int64(x[4])
+	x9 := int64(x[3])
+	x10 := int64(x[2])
+	x11 := int64(x[1])
+	x12 := int64(x[0])
+	shift &= 63
+	out := x[12:]
+	for i, r := range out {
+		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8 + c8*x9 + c9*x10 + c10*x11 + c11*x12
+		v := int64(r + int32(sum>>shift))
+		out[i] = int32(v)
+		x12, x11, x10, x9, x8, x7, x6, x5, x4, x3, x2, x1 = x11, x10, x9, x8, x7, x6, x5, x4, x3, x2, x1, v
 	}
 }

@@ -1,9 +1,9 @@
 //go:build ignore
 
 // lpcgen writes lpc_orders.go: the LPC restore loop written out for each
-// order up to maxUnrolled, coefficients in local variables and the
-// history read through a fixed-length window, so that the compiler drops
-// the bounds checks and keeps the coefficients in registers. Run it with
+// order up to maxUnrolled, coefficients and the last samples in local
+// variables, so the newest sample goes from one step to the next in a
+// register (not through memory) and the loop has no bounds checks. Run it with
 // go generate ./decode/flac; TestLPCOrdersGenerated fails when the file is
 // out of date.
 package main
@@ -30,20 +30,34 @@ func main() {
 	b.WriteString("\tdefault:\n\t\treturn false\n\t}\n\treturn true\n}\n\n")
 	for n := 1; n <= maxUnrolled; n++ {
 		fmt.Fprintf(&b, "func lpc%d(x []int32, c []int32, shift uint) {\n", n)
+		fmt.Fprintf(&b, "\tif len(x) <= %d {\n\t\treturn\n\t}\n", n)
 		fmt.Fprintf(&b, "\tc = c[:%d]\n", n)
 		for j := range n {
 			fmt.Fprintf(&b, "\tc%d := int64(c[%d])\n", j, j)
 		}
-		fmt.Fprintf(&b, "\tfor i := %d; i < len(x); i++ {\n", n)
-		fmt.Fprintf(&b, "\t\th := x[i-%d : i+1 : i+1]\n", n)
-		b.WriteString("\t\tsum := ")
+		// x1 is the latest sample, xN the oldest.
+		for j := 1; j <= n; j++ {
+			fmt.Fprintf(&b, "\tx%d := int64(x[%d])\n", j, n-j)
+		}
+		b.WriteString("\tshift &= 63\n")
+		fmt.Fprintf(&b, "\tout := x[%d:]\n", n)
+		b.WriteString("\tfor i, r := range out {\n\t\tsum := ")
 		for j := range n {
 			if j > 0 {
 				b.WriteString(" + ")
 			}
-			fmt.Fprintf(&b, "c%d*int64(h[%d])", j, n-1-j)
+			fmt.Fprintf(&b, "c%d*x%d", j, j+1)
 		}
-		fmt.Fprintf(&b, "\n\t\th[%d] += int32(sum >> shift)\n\t}\n}\n\n", n)
+		b.WriteString("\n\t\tv := int64(r + int32(sum>>shift))\n\t\tout[i] = int32(v)\n\t\t")
+		for j := n; j >= 2; j-- {
+			fmt.Fprintf(&b, "x%d", j)
+			b.WriteString(", ")
+		}
+		b.WriteString("x1 = ")
+		for j := n - 1; j >= 1; j-- {
+			fmt.Fprintf(&b, "x%d, ", j)
+		}
+		b.WriteString("v\n\t}\n}\n\n")
 	}
 	src, err := format.Source(b.Bytes())
 	if err != nil {

@@ -7,25 +7,37 @@ package flac
 // section 9.2.5); x[:order] are the warm-up samples. Sums are formed in
 // 64 bits, so 32-bit samples cannot overflow them.
 func restoreFixed(x []int32, order int) {
+	if len(x) <= order {
+		return
+	}
+	out := x[order:]
 	switch order {
 	case 1:
-		for i := 1; i < len(x); i++ {
-			x[i] += x[i-1]
+		x1 := x[0]
+		for i, r := range out {
+			x1 += r
+			out[i] = x1
 		}
 	case 2:
-		for i := 2; i < len(x); i++ {
-			h := x[i-2 : i+1 : i+1]
-			h[2] += int32(2*int64(h[1]) - int64(h[0]))
+		x1, x2 := int64(x[1]), int64(x[0])
+		for i, r := range out {
+			v := int64(r + int32(2*x1-x2))
+			out[i] = int32(v)
+			x2, x1 = x1, v
 		}
 	case 3:
-		for i := 3; i < len(x); i++ {
-			h := x[i-3 : i+1 : i+1]
-			h[3] += int32(3*(int64(h[2])-int64(h[1])) + int64(h[0]))
+		x1, x2, x3 := int64(x[2]), int64(x[1]), int64(x[0])
+		for i, r := range out {
+			v := int64(r + int32(3*(x1-x2)+x3))
+			out[i] = int32(v)
+			x3, x2, x1 = x2, x1, v
 		}
 	case 4:
-		for i := 4; i < len(x); i++ {
-			h := x[i-4 : i+1 : i+1]
-			h[4] += int32(4*(int64(h[3])+int64(h[1])) - 6*int64(h[2]) - int64(h[0]))
+		x1, x2, x3, x4 := int64(x[3]), int64(x[2]), int64(x[1]), int64(x[0])
+		for i, r := range out {
+			v := int64(r + int32(4*(x1+x3)-6*x2-x4))
+			out[i] = int32(v)
+			x4, x3, x2, x1 = x3, x2, x1, v
 		}
 	}
 }

@@ -107,9 +107,52 @@ func (r *Reader) Unary() uint64 {
 // RFC 9639 section 9.2.7): a unary quotient, k low bits, the result folded
 // to a signed value (even codes non-negative, odd codes negative). It
 // returns false when a code's value does not fit in 32 bits, which only
-// damaged data produces. The loop keeps the accumulator in local variables
-// and refills it only when fewer than 32 bits are left.
+// damaged data produces.
+//
+// The loop keeps the accumulator in local variables, refills it only when
+// fewer than 32 bits are left, and takes a code whose quotient and low bits
+// are both in the accumulator (nearly all of them) with one leading-zero
+// count and three shifts; longer codes go through riceSlow.
 func (r *Reader) Rice(dst []int32, k uint) bool {
+	if k == 0 {
+		return r.rice0(dst)
+	}
+	acc, n, pos := r.acc, r.n, r.pos
+	data := r.data
+	var wide uint64
+	right := (64 - k) & 63
+	for i := range dst {
+		if n < 32 {
+			if pos+8 <= len(data) {
+				acc |= binary.BigEndian.Uint64(data[pos:]) >> n
+				pos += int((63 - n) >> 3)
+				n |= 56
+			} else {
+				r.acc, r.n, r.pos = acc, n, pos
+				r.refillTail()
+				acc, n, pos = r.acc, r.n, r.pos
+			}
+		}
+		lz := uint(bits.LeadingZeros64(acc))
+		var v uint64
+		if total := lz + 1 + k; total <= n {
+			v = uint64(lz)<<k | acc<<lz<<1>>right
+			acc <<= total & 63
+			n -= total
+		} else {
+			r.acc, r.n, r.pos = acc, n, pos
+			v = r.riceSlow(k)
+			acc, n, pos = r.acc, r.n, r.pos
+		}
+		wide |= v
+		dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
+	}
+	r.acc, r.n, r.pos = acc, n, pos
+	return wide>>32 == 0
+}
+
+// rice0 is Rice for k = 0: the value is the quotient alone.
+func (r *Reader) rice0(dst []int32) bool {
 	acc, n, pos := r.acc, r.n, r.pos
 	data := r.data
 	var wide uint64
@@ -126,29 +169,31 @@ func (r *Reader) Rice(dst []int32, k uint) bool {
 			}
 		}
 		lz := uint(bits.LeadingZeros64(acc))
-		var q uint64
+		var v uint64
 		if lz < n {
-			acc <<= lz + 1
+			v = uint64(lz)
+			acc <<= (lz + 1) & 63
 			n -= lz + 1
-			q = uint64(lz)
 		} else {
 			r.acc, r.n, r.pos = acc, n, pos
-			q = r.Unary()
+			v = r.riceSlow(0)
 			acc, n, pos = r.acc, r.n, r.pos
 		}
-		if n < k {
-			r.acc, r.n, r.pos = acc, n, pos
-			r.refill()
-			acc, n, pos = r.acc, r.n, r.pos
-		}
-		v := q<<k | acc>>(64-k)
-		acc <<= k
-		n -= k
-		wide |= v | q>>32
+		wide |= v
 		dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
 	}
 	r.acc, r.n, r.pos = acc, n, pos
 	return wide>>32 == 0
+}
+
+// riceSlow reads one Rice code field by field; a value too wide for 32
+// bits comes back with bits above bit 31 set.
+func (r *Reader) riceSlow(k uint) uint64 {
+	q := r.Unary()
+	if q >= 1<<32 {
+		return q
+	}
+	return q<<k | r.Bits(k)
 }
 
 // AlignByte skips the bits up to the next byte boundary.
