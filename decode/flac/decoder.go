@@ -31,11 +31,11 @@ type Decoder struct {
 	nextSample uint64 // stream position of the next frame: decoded + lost
 	decoded    uint64 // samples per channel delivered from good frames
 
-	searching bool   // looking for the next valid frame after damage
-	lostAt    int64  // where the damage being skipped starts
-	lostFrame int    // its frame index
-	lostWhy   string // what was wrong there
-	lostHdr   bool   // a frame header with a valid CRC-8 was there
+	searching   bool           // looking for the next valid frame after damage
+	lostAt      int64          // where the damage being skipped starts
+	lostFrame   int            // its frame index
+	lostWhy     string         // what was wrong there
+	lostHdr     bool           // a frame header with a valid CRC-8 was there
 	damage      []damageRecord // the first maxDamageRecords stretches
 	damageCount int
 	lostTotal   uint64
