@@ -318,10 +318,16 @@ func (d *Decoder) tryFrame() (problem string, isFrame bool) {
 			return "the file ends inside the frame", true
 		}
 	}
-	if problem := d.checkSamples(h.channels, h.blockSize, bits); problem != "" {
-		return problem, true
+	samples := d.fd.samples[:h.channels]
+	var spread uint32
+	if d.hash != nil {
+		spread = d.hash.pack(samples, h.blockSize)
+	} else {
+		spread = spreadOf(samples, h.blockSize)
 	}
-
+	if bits < 32 && spread>>(bits-1) != 0 {
+		return d.outOfRange(h.channels, h.blockSize, bits), true
+	}
 	// A good frame: account for what was skipped to reach it.
 	if d.searching || first > d.nextSample {
 		rec := damageRecord{offset: off, frame: d.frameIndex, resume: off, known: true, lost: first - d.nextSample}
@@ -341,7 +347,7 @@ func (d *Decoder) tryFrame() (problem string, isFrame bool) {
 		}
 	}
 	if d.hash != nil && d.damageCount == 0 {
-		d.hash.addFrame(d.fd.samples[:h.channels], h.blockSize)
+		d.hash.write()
 	}
 	d.nextFrame = h.number + 1
 	d.nextSample = first + uint64(h.blockSize)
@@ -398,31 +404,21 @@ func (d *Decoder) position(h *frameHeader) (uint64, string) {
 	return first, ""
 }
 
-// checkSamples returns what is wrong with the decoded samples, or "": each
-// must lie within the stream's bit depth. Damage whose CRC happens to pass
-// can decode to values no encoder could have written (the predictor
-// overflows); they are refused here rather than delivered as audio beyond
-// full scale.
-func (d *Decoder) checkSamples(channels, n, bits int) string {
-	if bits >= 32 {
-		return ""
-	}
+// outOfRange names the first sample beyond the stream's bit depth. Damage
+// whose CRC happens to pass can decode to values no encoder could have
+// written (the predictor overflows); such frames are refused rather than
+// delivered as audio beyond full scale.
+func (d *Decoder) outOfRange(channels, n, bits int) string {
 	hi := int32(1)<<(bits-1) - 1
 	lo := -hi - 1
 	for c := range channels {
-		mn, mx := int32(0), int32(0)
-		for _, v := range d.fd.samples[c][:n] {
-			mn, mx = min(mn, v), max(mx, v)
-		}
-		if mn < lo || mx > hi {
-			for i, v := range d.fd.samples[c][:n] {
-				if v < lo || v > hi {
-					return fmt.Sprintf("channel %d sample %d decodes to %d, outside the %d-bit range", c, i, v, bits)
-				}
+		for i, v := range d.fd.samples[c][:n] {
+			if v < lo || v > hi {
+				return fmt.Sprintf("channel %d sample %d decodes to %d, outside the %d-bit range", c, i, v, bits)
 			}
 		}
 	}
-	return ""
+	return "a sample outside the bit depth"
 }
 
 // record keeps a damaged stretch.

@@ -39,9 +39,6 @@ func (in *input) offset() int64 { return in.base + int64(in.r) }
 // advance marks n buffered bytes as read.
 func (in *input) advance(n int) { in.r += n }
 
-// atEnd reports whether every byte of the file has been read.
-func (in *input) atEnd() bool { return in.r == in.w && in.eof }
-
 // fill tries to buffer at least need unread bytes; at the end of the file
 // there may be fewer (bytes tells). The buffer grows only when need exceeds
 // it, and never beyond what is left of the file.

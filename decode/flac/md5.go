@@ -2,13 +2,16 @@ package flac
 
 import (
 	"crypto/md5"
+	"encoding/binary"
 	"hash"
 )
 
 // sampleHash is the running MD5 of the decoded samples as STREAMINFO
 // defines it (RFC 9639, section 8.2): every sample of every channel,
-// interleaved, signed little-endian in ceil(bits/8) bytes. It packs each
-// frame into one reused buffer and hashes it with a single Write.
+// interleaved, signed little-endian in ceil(bits/8) bytes. pack lays a
+// frame out in one reused buffer (and measures the samples' spread on the
+// way, which the range check needs anyway); write hashes it with a single
+// Write once the frame is known to be good.
 type sampleHash struct {
 	h     hash.Hash
 	width int // bytes per sample
@@ -19,44 +22,71 @@ func newSampleHash(bitsPerSample int) *sampleHash {
 	return &sampleHash{h: md5.New(), width: (bitsPerSample + 7) / 8}
 }
 
-// addFrame hashes the first n samples of each channel.
-func (s *sampleHash) addFrame(channels [][]int32, n int) {
+// fold maps a sample to a value whose highest set bit is the highest bit
+// that differs from the sign: a sample fits b bits exactly when the OR of
+// the folded samples is below 2^(b-1).
+func fold(v int32) uint32 { return uint32(v ^ v>>31) }
+
+// pack lays out the first n samples of each channel and returns the OR of
+// their folded values.
+func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
 	size := n * len(channels) * s.width
-	if cap(s.buf) < size {
-		s.buf = make([]byte, size)
+	if cap(s.buf) < size+4 {
+		s.buf = make([]byte, size+4) // 3-byte samples are stored 4 at a time
 	}
-	buf := s.buf[:size]
-	step := len(channels) * s.width
-	for c, samples := range channels {
-		samples = samples[:n]
-		j := c * s.width
-		switch s.width {
-		case 1:
-			for _, v := range samples {
-				buf[j] = byte(v)
-				j += step
-			}
-		case 2:
-			for _, v := range samples {
-				b := buf[j : j+2 : j+2]
-				b[0], b[1] = byte(v), byte(v>>8)
-				j += step
-			}
-		case 3:
-			for _, v := range samples {
-				b := buf[j : j+3 : j+3]
-				b[0], b[1], b[2] = byte(v), byte(v>>8), byte(v>>16)
-				j += step
-			}
-		default:
-			for _, v := range samples {
-				b := buf[j : j+4 : j+4]
-				b[0], b[1], b[2], b[3] = byte(v), byte(v>>8), byte(v>>16), byte(v>>24)
-				j += step
+	buf := s.buf[:size+4]
+	var spread uint32
+	switch {
+	case len(channels) == 2 && s.width == 3:
+		l, r := channels[0][:n], channels[1][:n]
+		for i, a := range l {
+			b := r[i]
+			spread |= fold(a) | fold(b)
+			binary.LittleEndian.PutUint32(buf[6*i:], uint32(a))
+			binary.LittleEndian.PutUint32(buf[6*i+3:], uint32(b))
+		}
+	case len(channels) == 2 && s.width == 2:
+		l, r := channels[0][:n], channels[1][:n]
+		for i, a := range l {
+			b := r[i]
+			spread |= fold(a) | fold(b)
+			binary.LittleEndian.PutUint32(buf[4*i:], uint32(uint16(a))|uint32(b)<<16)
+		}
+	default:
+		j := 0
+		for i := range n {
+			for _, c := range channels {
+				v := c[i]
+				spread |= fold(v)
+				switch s.width {
+				case 1:
+					buf[j] = byte(v)
+				case 2:
+					binary.LittleEndian.PutUint16(buf[j:], uint16(v))
+				default: // 3 and 4: a 3-byte sample's fourth byte is overwritten next
+					binary.LittleEndian.PutUint32(buf[j:], uint32(v))
+				}
+				j += s.width
 			}
 		}
 	}
-	s.h.Write(buf)
+	s.buf = s.buf[:size]
+	return spread
+}
+
+// write hashes the frame pack laid out.
+func (s *sampleHash) write() { s.h.Write(s.buf) }
+
+// spreadOf returns the OR of the folded values of the first n samples of
+// each channel (the range check when no MD5 is computed).
+func spreadOf(channels [][]int32, n int) uint32 {
+	var spread uint32
+	for _, c := range channels {
+		for _, v := range c[:n] {
+			spread |= fold(v)
+		}
+	}
+	return spread
 }
 
 // sum returns the MD5 of everything hashed so far.

@@ -61,10 +61,10 @@ type subframeSpec struct {
 	precision uint    // lpc
 	shift     uint    // lpc
 	wasted    uint
-	method    int      // residual coding method: 0 (4-bit parameters) or 1 (5-bit)
-	porder    uint     // partition order
-	params    []int    // Rice parameter per partition, -1 = escaped
-	rawBits   []uint   // bits per escaped sample, per partition
+	method    int    // residual coding method: 0 (4-bit parameters) or 1 (5-bit)
+	porder    uint   // partition order
+	params    []int  // Rice parameter per partition, -1 = escaped
+	rawBits   []uint // bits per escaped sample, per partition
 }
 
 // writeSubframe codes x (sb bits per sample) as spec says.

@@ -117,72 +117,79 @@ func (r *Reader) Rice(dst []int32, k uint) bool {
 	if k == 0 {
 		return r.rice0(dst)
 	}
-	acc, n, pos := r.acc, r.n, r.pos
 	data := r.data
 	var wide uint64
 	right := (64 - k) & 63
-	for i := range dst {
-		if n < 32 {
-			if pos+8 <= len(data) {
+	for i := 0; i < len(dst); {
+		// The fast loop makes no calls, so its state stays in registers;
+		// it stops for a code longer than the bits at hand and near the
+		// end of data, and the code there is read by riceSlow.
+		acc, n, pos := r.acc, r.n, r.pos
+		for ; i < len(dst); i++ {
+			if n < 32 {
+				if pos+8 > len(data) {
+					break
+				}
 				acc |= binary.BigEndian.Uint64(data[pos:]) >> n
 				pos += int((63 - n) >> 3)
 				n |= 56
-			} else {
-				r.acc, r.n, r.pos = acc, n, pos
-				r.refillTail()
-				acc, n, pos = r.acc, r.n, r.pos
 			}
-		}
-		lz := uint(bits.LeadingZeros64(acc))
-		var v uint64
-		if total := lz + 1 + k; total <= n {
-			v = uint64(lz)<<k | acc<<lz<<1>>right
+			lz := uint(bits.LeadingZeros64(acc)) // 64 when acc is 0
+			total := lz + 1 + k
+			if total > n {
+				break
+			}
+			v := uint64(lz)<<k | acc<<(lz&63)<<1>>right
 			acc <<= total & 63
 			n -= total
-		} else {
-			r.acc, r.n, r.pos = acc, n, pos
-			v = r.riceSlow(k)
-			acc, n, pos = r.acc, r.n, r.pos
+			wide |= v
+			dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
 		}
+		r.acc, r.n, r.pos = acc, n, pos
+		if i == len(dst) {
+			break
+		}
+		v := r.riceSlow(k)
 		wide |= v
 		dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
+		i++
 	}
-	r.acc, r.n, r.pos = acc, n, pos
 	return wide>>32 == 0
 }
 
-// rice0 is Rice for k = 0: the value is the quotient alone.
+// rice0 is Rice for k = 0, where a code is its quotient alone.
 func (r *Reader) rice0(dst []int32) bool {
-	acc, n, pos := r.acc, r.n, r.pos
 	data := r.data
 	var wide uint64
-	for i := range dst {
-		if n < 32 {
-			if pos+8 <= len(data) {
+	for i := 0; i < len(dst); {
+		acc, n, pos := r.acc, r.n, r.pos
+		for ; i < len(dst); i++ {
+			if n < 32 {
+				if pos+8 > len(data) {
+					break
+				}
 				acc |= binary.BigEndian.Uint64(data[pos:]) >> n
 				pos += int((63 - n) >> 3)
 				n |= 56
-			} else {
-				r.acc, r.n, r.pos = acc, n, pos
-				r.refillTail()
-				acc, n, pos = r.acc, r.n, r.pos
 			}
-		}
-		lz := uint(bits.LeadingZeros64(acc))
-		var v uint64
-		if lz < n {
-			v = uint64(lz)
+			lz := uint(bits.LeadingZeros64(acc))
+			if lz >= n {
+				break
+			}
 			acc <<= (lz + 1) & 63
 			n -= lz + 1
-		} else {
-			r.acc, r.n, r.pos = acc, n, pos
-			v = r.riceSlow(0)
-			acc, n, pos = r.acc, r.n, r.pos
+			v := uint64(lz)
+			dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
 		}
+		r.acc, r.n, r.pos = acc, n, pos
+		if i == len(dst) {
+			break
+		}
+		v := r.riceSlow(0)
 		wide |= v
 		dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
+		i++
 	}
-	r.acc, r.n, r.pos = acc, n, pos
 	return wide>>32 == 0
 }
 
