@@ -151,4 +151,3 @@ func BenchmarkDecodeProgramme(b *testing.B) {
 		})
 	}
 }
-
