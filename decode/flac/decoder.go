@@ -35,7 +35,7 @@ type Decoder struct {
 	lostAt      int64          // where the damage being skipped starts
 	lostFrame   int            // its frame index
 	lostWhy     string         // what was wrong there
-	lostHdr     bool           // a frame header with a valid CRC-8 was there
+	lostHdr     bool           // a frame sync code was there
 	damage      []damageRecord // the first maxDamageRecords stretches
 	damageCount int
 	lostTotal   uint64
@@ -60,8 +60,9 @@ type damageRecord struct {
 
 // NewDecoder reads the metadata of the FLAC stream in src (size bytes
 // long, possibly behind an ID3v2 tag) and returns a decoder ready for
-// ReadFrames. It returns a *decode.FormatError when src is not a readable
-// FLAC stream.
+// ReadFrames. It returns a *decode.FormatError, with the byte offset, when
+// src is not a readable FLAC stream; metadata cut short wraps
+// io.ErrUnexpectedEOF.
 func NewDecoder(src decode.Source, size int64, opts Options) (*Decoder, error) {
 	start, ok := streamStart(src, size)
 	if !ok {
@@ -275,7 +276,7 @@ func (d *Decoder) seekSync() {
 
 // tryFrame decodes the frame at the input position. It returns "" when the
 // frame is good (its samples are then in d.fd and the input past it), or
-// what is wrong, and whether a frame header with a valid CRC-8 was there.
+// what is wrong, and whether a frame sync code was there at all.
 func (d *Decoder) tryFrame() (problem string, isFrame bool) {
 	off := d.in.offset()
 	b := d.in.bytes()
@@ -328,7 +329,9 @@ func (d *Decoder) tryFrame() (problem string, isFrame bool) {
 	if bits < 32 && spread>>(bits-1) != 0 {
 		return d.outOfRange(h.channels, h.blockSize, bits), true
 	}
-	// A good frame: account for what was skipped to reach it.
+	// A good frame: account for what was skipped to reach it. A frame
+	// that comes later than expected without any damage before it means
+	// frames are missing (cut out of the file).
 	if d.searching || first > d.nextSample {
 		rec := damageRecord{offset: off, frame: d.frameIndex, resume: off, known: true, lost: first - d.nextSample}
 		if d.searching {
