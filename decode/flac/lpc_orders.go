@@ -68,7 +68,7 @@ func lpc2(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[2:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2
+		sum := c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x2, x1 = x1, v
@@ -89,7 +89,7 @@ func lpc3(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[3:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3
+		sum := c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x3, x2, x1 = x2, x1, v
@@ -112,7 +112,7 @@ func lpc4(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[4:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4
+		sum := c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x4, x3, x2, x1 = x3, x2, x1, v
@@ -137,7 +137,7 @@ func lpc5(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[5:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5
+		sum := c4*x5 + c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x5, x4, x3, x2, x1 = x4, x3, x2, x1, v
@@ -164,7 +164,7 @@ func lpc6(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[6:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6
+		sum := c5*x6 + c4*x5 + c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x6, x5, x4, x3, x2, x1 = x5, x4, x3, x2, x1, v
@@ -193,7 +193,7 @@ func lpc7(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[7:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7
+		sum := c6*x7 + c5*x6 + c4*x5 + c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x7, x6, x5, x4, x3, x2, x1 = x6, x5, x4, x3, x2, x1, v
@@ -224,7 +224,7 @@ func lpc8(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[8:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8
+		sum := c7*x8 + c6*x7 + c5*x6 + c4*x5 + c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x8, x7, x6, x5, x4, x3, x2, x1 = x7, x6, x5, x4, x3, x2, x1, v
@@ -257,7 +257,7 @@ func lpc9(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[9:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8 + c8*x9
+		sum := c8*x9 + c7*x8 + c6*x7 + c5*x6 + c4*x5 + c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x9, x8, x7, x6, x5, x4, x3, x2, x1 = x8, x7, x6, x5, x4, x3, x2, x1, v
@@ -292,7 +292,7 @@ func lpc10(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[10:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8 + c8*x9 + c9*x10
+		sum := c9*x10 + c8*x9 + c7*x8 + c6*x7 + c5*x6 + c4*x5 + c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x10, x9, x8, x7, x6, x5, x4, x3, x2, x1 = x9, x8, x7, x6, x5, x4, x3, x2, x1, v
@@ -329,7 +329,7 @@ func lpc11(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[11:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8 + c8*x9 + c9*x10 + c10*x11
+		sum := c10*x11 + c9*x10 + c8*x9 + c7*x8 + c6*x7 + c5*x6 + c4*x5 + c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x11, x10, x9, x8, x7, x6, x5, x4, x3, x2, x1 = x10, x9, x8, x7, x6, x5, x4, x3, x2, x1, v
@@ -368,7 +368,7 @@ func lpc12(x []int32, c []int32, shift uint) {
 	shift &= 63
 	out := x[12:]
 	for i, r := range out {
-		sum := c0*x1 + c1*x2 + c2*x3 + c3*x4 + c4*x5 + c5*x6 + c6*x7 + c7*x8 + c8*x9 + c9*x10 + c10*x11 + c11*x12
+		sum := c11*x12 + c10*x11 + c9*x10 + c8*x9 + c7*x8 + c6*x7 + c5*x6 + c4*x5 + c3*x4 + c2*x3 + c1*x2 + c0*x1
 		v := int64(r + int32(sum>>shift))
 		out[i] = int32(v)
 		x12, x11, x10, x9, x8, x7, x6, x5, x4, x3, x2, x1 = x11, x10, x9, x8, x7, x6, x5, x4, x3, x2, x1, v

@@ -41,9 +41,12 @@ func main() {
 		}
 		b.WriteString("\tshift &= 63\n")
 		fmt.Fprintf(&b, "\tout := x[%d:]\n", n)
+		// The newest sample's product is added last: the older ones are
+		// summed while it is still being computed, so the chain from one
+		// sample to the next is one multiply, one add and the shift.
 		b.WriteString("\tfor i, r := range out {\n\t\tsum := ")
-		for j := range n {
-			if j > 0 {
+		for j := n - 1; j >= 0; j-- {
+			if j < n-1 {
 				b.WriteString(" + ")
 			}
 			fmt.Fprintf(&b, "c%d*x%d", j, j+1)

@@ -130,7 +130,7 @@ func (r *Reader) Rice(dst []int32, k uint) bool {
 				if pos+8 > len(data) {
 					break
 				}
-				acc |= binary.BigEndian.Uint64(data[pos:]) >> n
+				acc |= binary.BigEndian.Uint64(data[pos:pos+8:pos+8]) >> n
 				pos += int((63 - n) >> 3)
 				n |= 56
 			}
@@ -168,7 +168,7 @@ func (r *Reader) rice0(dst []int32) bool {
 				if pos+8 > len(data) {
 					break
 				}
-				acc |= binary.BigEndian.Uint64(data[pos:]) >> n
+				acc |= binary.BigEndian.Uint64(data[pos:pos+8:pos+8]) >> n
 				pos += int((63 - n) >> 3)
 				n |= 56
 			}

@@ -5,7 +5,7 @@
 // first and are not reflected or inverted.
 //
 // The fast versions are table driven: CRC-8 one table lookup per byte,
-// CRC-16 "slicing by 8" (eight tables, eight bytes per step), because the
+// CRC-16 "slicing by 16" (sixteen tables, sixteen bytes per step), because the
 // CRC-16 runs over every byte of the audio. The bit-at-a-time versions
 // (Update8Plain, Update16Plain) are the reference the tests cross-check
 // them against.
@@ -20,7 +20,7 @@ const (
 
 var (
 	table8  [256]uint8
-	table16 [8][256]uint16
+	table16 [16][256]uint16
 )
 
 func init() {
@@ -29,7 +29,7 @@ func init() {
 		table16[0][b] = Update16Plain(0, []byte{byte(b)})
 	}
 	// table16[k][b] is the CRC of byte b followed by k zero bytes.
-	for k := 1; k < 8; k++ {
+	for k := 1; k < 16; k++ {
 		for b := range 256 {
 			prev := table16[k-1][b]
 			table16[k][b] = prev<<8 ^ table16[0][prev>>8]
@@ -48,14 +48,19 @@ func Update8(crc uint8, p []byte) uint8 {
 // Update16 returns the CRC-16 of p continued from crc (0 for a new frame).
 func Update16(crc uint16, p []byte) uint16 {
 	t := &table16
-	for len(p) >= 8 {
+	for len(p) >= 16 {
 		v := binary.BigEndian.Uint64(p)
+		w := binary.BigEndian.Uint64(p[8:16])
 		x := crc ^ uint16(v>>48)
-		crc = t[7][x>>8] ^ t[6][x&0xFF] ^
-			t[5][v>>40&0xFF] ^ t[4][v>>32&0xFF] ^
-			t[3][v>>24&0xFF] ^ t[2][v>>16&0xFF] ^
-			t[1][v>>8&0xFF] ^ t[0][v&0xFF]
-		p = p[8:]
+		crc = t[15][x>>8] ^ t[14][x&0xFF] ^
+			t[13][v>>40&0xFF] ^ t[12][v>>32&0xFF] ^
+			t[11][v>>24&0xFF] ^ t[10][v>>16&0xFF] ^
+			t[9][v>>8&0xFF] ^ t[8][v&0xFF] ^
+			t[7][w>>56] ^ t[6][w>>48&0xFF] ^
+			t[5][w>>40&0xFF] ^ t[4][w>>32&0xFF] ^
+			t[3][w>>24&0xFF] ^ t[2][w>>16&0xFF] ^
+			t[1][w>>8&0xFF] ^ t[0][w&0xFF]
+		p = p[16:]
 	}
 	for _, b := range p {
 		crc = crc<<8 ^ t[0][byte(crc>>8)^b]
