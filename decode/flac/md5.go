@@ -52,19 +52,27 @@ func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
 			spread |= fold(a) | fold(b)
 			binary.LittleEndian.PutUint32(buf[4*i:], uint32(uint16(a))|uint32(b)<<16)
 		}
+	case s.width == 3 || s.width == 4:
+		// The fourth byte of a 3-byte sample is overwritten by the next.
+		j := 0
+		for i := range n {
+			for _, c := range channels {
+				v := c[i]
+				spread |= fold(v)
+				binary.LittleEndian.PutUint32(buf[j:], uint32(v))
+				j += s.width
+			}
+		}
 	default:
 		j := 0
 		for i := range n {
 			for _, c := range channels {
 				v := c[i]
 				spread |= fold(v)
-				switch s.width {
-				case 1:
+				if s.width == 1 {
 					buf[j] = byte(v)
-				case 2:
+				} else {
 					binary.LittleEndian.PutUint16(buf[j:], uint16(v))
-				default: // 3 and 4: a 3-byte sample's fourth byte is overwritten next
-					binary.LittleEndian.PutUint32(buf[j:], uint32(v))
 				}
 				j += s.width
 			}

@@ -112,14 +112,26 @@ func (r *Reader) Unary() uint64 {
 // The loop keeps the accumulator in local variables, refills it only when
 // fewer than 32 bits are left, and takes a code whose quotient and low bits
 // are both in the accumulator (nearly all of them) with one leading-zero
-// count and three shifts; longer codes go through riceSlow.
+// count and three shifts; longer codes go through riceSlow. Below k = 27
+// no code the fast loop takes can exceed 32 bits, so only larger
+// parameters check every code.
 func (r *Reader) Rice(dst []int32, k uint) bool {
-	if k == 0 {
+	switch {
+	case k == 0:
 		return r.rice0(dst)
+	case k > 26:
+		// A quotient of 64 << 26 is 2^32: only from here on can a code be
+		// too wide, so only these parameters (32-bit audio) check each.
+		var wide uint64
+		for i := range dst {
+			v := r.riceSlow(k)
+			wide |= v
+			dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
+		}
+		return wide>>32 == 0
 	}
 	data := r.data
-	var wide uint64
-	right := (64 - k) & 63
+	right := 63 - k
 	for i := 0; i < len(dst); {
 		// The fast loop makes no calls, so its state stays in registers;
 		// it stops for a code longer than the bits at hand and near the
@@ -139,10 +151,12 @@ func (r *Reader) Rice(dst []int32, k uint) bool {
 			if total > n {
 				break
 			}
-			v := uint64(lz)<<k | acc<<(lz&63)<<1>>right
+			// acc<<lz starts with the terminating one bit; shifted down
+			// it is 2^k plus the k low bits, and (lz-1)<<k takes the
+			// 2^k off again.
+			v := (uint64(lz)-1)<<k + acc<<(lz&63)>>right
 			acc <<= total & 63
 			n -= total
-			wide |= v
 			dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
 		}
 		r.acc, r.n, r.pos = acc, n, pos
@@ -150,11 +164,13 @@ func (r *Reader) Rice(dst []int32, k uint) bool {
 			break
 		}
 		v := r.riceSlow(k)
-		wide |= v
+		if v>>32 != 0 {
+			return false
+		}
 		dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
 		i++
 	}
-	return wide>>32 == 0
+	return true
 }
 
 // rice0 is Rice for k = 0, where a code is its quotient alone.
