@@ -106,9 +106,11 @@ func NewDecoder(src decode.Source, size int64, opts Options) (*Decoder, error) {
 			Frames:        -1,
 		},
 	}
+	// Buffered before each frame: twice the largest frame when STREAMINFO
+	// says, else 64 KB. A frame that needs more reads more (tryFrame).
 	d.lowWater = 64 << 10
 	if si.maxFrame > 0 {
-		d.lowWater = max(d.lowWater, min(2*si.maxFrame, frameLimit(si.channels, si.maxBlock)))
+		d.lowWater = max(16<<10, min(2*si.maxFrame, frameLimit(si.channels, si.maxBlock)))
 	}
 	if note != "" {
 		d.notes = append(d.notes, note)
@@ -343,6 +345,9 @@ func (d *Decoder) tryFrame() (problem string, isFrame bool) {
 		d.searching = false
 	}
 	d.in.advance(n)
+	if 2*n > d.lowWater {
+		d.lowWater = min(2*n, limit) // so the next frame of this size needs one decode
+	}
 	if !d.strategy {
 		d.strategy, d.variable = true, h.variable
 		if !h.variable {

@@ -31,26 +31,30 @@ func fold(v int32) uint32 { return uint32(v ^ v>>31) }
 // their folded values.
 func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
 	size := n * len(channels) * s.width
-	if cap(s.buf) < size+4 {
-		s.buf = make([]byte, size+4) // 3-byte samples are stored 4 at a time
+	if cap(s.buf) < size+8 {
+		s.buf = make([]byte, size+8) // 3-byte samples are stored 4 at a time
 	}
-	buf := s.buf[:size+4]
+	buf := s.buf[:size+8]
 	var spread uint32
 	switch {
 	case len(channels) == 2 && s.width == 3:
 		l, r := channels[0][:n], channels[1][:n]
+		r = r[:len(l)]
 		for i, a := range l {
 			b := r[i]
 			spread |= fold(a) | fold(b)
-			binary.LittleEndian.PutUint32(buf[6*i:], uint32(a))
-			binary.LittleEndian.PutUint32(buf[6*i+3:], uint32(b))
+			o := buf[6*i : 6*i+8 : 6*i+8]
+			binary.LittleEndian.PutUint32(o[0:4], uint32(a))
+			binary.LittleEndian.PutUint32(o[3:7], uint32(b))
 		}
 	case len(channels) == 2 && s.width == 2:
 		l, r := channels[0][:n], channels[1][:n]
+		r = r[:len(l)]
 		for i, a := range l {
 			b := r[i]
 			spread |= fold(a) | fold(b)
-			binary.LittleEndian.PutUint32(buf[4*i:], uint32(uint16(a))|uint32(b)<<16)
+			o := buf[4*i : 4*i+4 : 4*i+4]
+			binary.LittleEndian.PutUint32(o, uint32(uint16(a))|uint32(b)<<16)
 		}
 	case s.width == 3 || s.width == 4:
 		// The fourth byte of a 3-byte sample is overwritten by the next.
