@@ -182,3 +182,24 @@ func TestAlignByte(t *testing.T) {
 		t.Errorf("%#x at bit %d, want 0xDE at 24", v, r.Consumed())
 	}
 }
+
+// BenchmarkRice decodes 64 Ki residuals coded with k = 10 (values typical
+// of 24-bit programme residuals) in partitions of 256.
+func BenchmarkRice(b *testing.B) {
+	rng := rand.New(rand.NewPCG(9, 9))
+	var w writer
+	want := make([]int32, 1<<16)
+	for i := range want {
+		want[i] = int32(rng.NormFloat64() * 1500)
+		w.rice(want[i], 10)
+	}
+	dst := make([]int32, 256)
+	b.SetBytes(int64(len(want)) * 4)
+	for b.Loop() {
+		var r Reader
+		r.Reset(w.buf)
+		for range len(want) / len(dst) {
+			r.Rice(dst, 10)
+		}
+	}
+}
