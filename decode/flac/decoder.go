@@ -450,6 +450,8 @@ func (d *Decoder) describe(r damageRecord) string {
 	at := fmt.Sprintf("frame %d at byte %d: %s", r.frame, r.offset, r.problem)
 	secs := float64(r.lost) / float64(d.si.sampleRate)
 	switch {
+	case r.resume == r.offset && r.lost == 0:
+		return at
 	case r.resume >= 0 && r.resume == r.offset:
 		return fmt.Sprintf("%s: %d samples per channel (%.3f s) missing", at, r.lost, secs)
 	case r.resume >= 0:
@@ -479,6 +481,9 @@ func (d *Decoder) endOfStream() error {
 	case declared > d.nextSample:
 		d.record(damageRecord{offset: end, frame: d.frameIndex, resume: -1, known: true, lost: declared - d.nextSample,
 			problem: fmt.Sprintf("the stream ends after %d samples per channel, STREAMINFO declares %d", d.nextSample, declared)})
+	case declared > 0 && d.nextSample > declared:
+		d.record(damageRecord{offset: end, frame: d.frameIndex, resume: end, known: true,
+			problem: fmt.Sprintf("the stream holds %d samples per channel, STREAMINFO declares %d", d.nextSample, declared)})
 	}
 	d.searching = false
 	if d.damageCount > 1 {

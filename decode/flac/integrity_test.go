@@ -109,6 +109,8 @@ func TestStreamInfoEdits(t *testing.T) {
 	copy(noLength[totalSamplesByte+1:totalSamplesByte+5], make([]byte, 4))
 	longer := clone(data)
 	longer[totalSamplesByte+4]++ // declares one sample more than the stream holds
+	shorter := clone(data)
+	shorter[totalSamplesByte+4]-- // declares one sample fewer
 	trailing := append(clone(data), append([]byte("TAG"), make([]byte, 125)...)...)
 
 	tests := []struct {
@@ -126,6 +128,7 @@ func TestStreamInfoEdits(t *testing.T) {
 		{"MD5 all zero", zeroMD5, DefaultOptions(), "", false, 66150, "no MD5 signature"},
 		{"length unknown", noLength, DefaultOptions(), "", true, -1, ""},
 		{"declares one sample more", longer, DefaultOptions(), "STREAMINFO declares 66151", false, 66151, ""},
+		{"declares one sample fewer", shorter, DefaultOptions(), "the stream holds 66150 samples per channel, STREAMINFO declares 66149", false, 66149, ""},
 		{"ID3v1 tag after the frames", trailing, DefaultOptions(), "", true, 66150, "ignored the bytes after the last FLAC frame"},
 	}
 	for _, tc := range tests {
