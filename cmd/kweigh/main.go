@@ -117,6 +117,8 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 			measureCommand(),
 			checkCommand(),
 			specsCommand(),
+			watchCommand(),
+			historyCommand(),
 		},
 	}
 }
