@@ -143,10 +143,10 @@ type hint struct {
 
 // events turns fsnotify's events into hints.
 type events struct {
-	fs      *fsnotify.Watcher
-	hints   chan hint
-	warned  map[string]bool // folders whose watch failed, logged once
-	done    chan struct{}
+	fs     *fsnotify.Watcher
+	hints  chan hint
+	warned map[string]bool // folders whose watch failed, logged once
+	done   chan struct{}
 }
 
 func newEvents() (*events, error) {

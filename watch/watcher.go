@@ -38,13 +38,13 @@ func (s *Summary) add(verdict string) {
 
 // candidate is a file not yet judged: seen, waiting to settle.
 type candidate struct {
-	id          int64
-	inbox, rel  string
-	size        int64
-	mtime       time.Time
-	since       time.Time // last change observed (or first sight)
-	state       State
-	complained  bool // an error about this file was logged already
+	id         int64
+	inbox, rel string
+	size       int64
+	mtime      time.Time
+	since      time.Time // last change observed (or first sight)
+	state      State
+	complained bool // an error about this file was logged already
 }
 
 // version identifies a finished file version without asking the ledger.
@@ -66,7 +66,7 @@ const (
 type result struct {
 	entry   Entry
 	outcome outcome
-	counted bool   // a verdict for the summary
+	counted bool // a verdict for the summary
 	skipped bool
 	gone    bool
 	verdict string
