@@ -24,6 +24,9 @@ type Spec struct {
 	Extends string
 	// File is the path a user spec was read from; empty for built-ins.
 	File string
+	// Root is set by "root = true" in a spec file: the search for a folder's
+	// spec (from a file's folder upwards) ends at this file's folder.
+	Root bool
 
 	Loudness LoudnessLimits
 	Format   FormatLimits

@@ -33,6 +33,7 @@ func LoadFile(path string) (*Spec, error) {
 //	description = "What the spec is for."
 //	source = "Harbourlight Radio delivery requirements, issue 3 (2025)"
 //	extends = "ebu-r128"                 # optional: start from a built-in spec
+//	root = true                          # optional: folders above are not searched
 //
 //	[loudness]  target_lufs, tolerance_lu, mono_target_lufs,
 //	            min_integrated_lufs, max_integrated_lufs, warn_margin_lu,
@@ -62,7 +63,7 @@ func Parse(file string, data []byte) (*Spec, error) {
 	p.header(spec, raw)
 	for _, key := range sortedKeys(raw) {
 		switch key {
-		case "name", "title", "description", "source", "extends":
+		case "name", "title", "description", "source", "extends", "root":
 			continue
 		}
 		keys, ok := specTables[key]
@@ -172,6 +173,13 @@ func (p *specParser) header(s *Spec, raw map[string]any) {
 	}
 	s.Source = Source{Document: doc, Marker: "user spec"}
 	p.source = doc
+	if v, ok := raw["root"]; ok {
+		if b, isBool := v.(bool); isBool {
+			s.Root = b
+		} else {
+			p.fail("root", "must be true or false, got %s", describeValue(v))
+		}
+	}
 }
 
 // apply sets one key of a table.
@@ -236,7 +244,7 @@ var keysPerCheck = func() map[string]int {
 // nearest known name.
 func (p *specParser) unknown(table, name string, raw any) {
 	if name == "" {
-		known := append([]string{"name", "title", "description", "source", "extends"}, specTableOrder...)
+		known := append([]string{"name", "title", "description", "source", "extends", "root"}, specTableOrder...)
 		if _, isTable := raw.(map[string]any); isTable {
 			p.fail(table, "unknown table%s (known tables: %s)", suggest(table, specTableOrder), strings.Join(specTableOrder, ", "))
 		} else {

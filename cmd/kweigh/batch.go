@@ -12,6 +12,7 @@ import (
 	"github.com/urfave/cli/v3"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/reports"
 )
@@ -166,55 +167,11 @@ func (r *runOutput[T]) closeFile() error {
 	return f.Close()
 }
 
-// orderedEmitter hands results on in index order as soon as every earlier
-// one is in, so text and document output is stable but still progressive.
-type orderedEmitter[T any] struct {
-	next    int
-	pending map[int]T
-	emit    func(T)
-}
-
-func newOrderedEmitter[T any](emit func(T)) *orderedEmitter[T] {
-	return &orderedEmitter[T]{pending: map[int]T{}, emit: emit}
-}
-
-func (e *orderedEmitter[T]) add(i int, r T) {
-	e.pending[i] = r
-	for {
-		r, ok := e.pending[e.next]
-		if !ok {
-			return
-		}
-		delete(e.pending, e.next)
-		e.emit(r)
-		e.next++
-	}
-}
-
-// measureTarget measures one collected file.
-func measureTarget(ctx context.Context, t target, opt measure.Options) *measure.Measurement {
-	if t.walkErr != nil {
-		return &measure.Measurement{Path: t.path, Error: fmt.Sprintf("%s: %v", t.path, t.walkErr), Err: t.walkErr, Notes: []string{}}
-	}
-	return measure.File(ctx, t.path, opt)
-}
-
-// skipped reports whether a measurement is of a non-audio file found by
-// walking a folder: such files are left out with a note on stderr.
-func skipped(t target, m *measure.Measurement) bool {
-	return !t.explicit && m.Err != nil && isNotAudio(m.Err)
-}
-
 func noteSkipped(stderr io.Writer, paths []string) {
 	if len(paths) == 0 {
 		return
 	}
 	fmt.Fprintf(stderr, "kweigh: skipped %d file(s) that are not audio: %s\n", len(paths), strings.Join(paths, ", "))
-}
-
-func fileExists(path string) bool {
-	st, err := os.Stat(path)
-	return err == nil && !st.IsDir()
 }
 
 // ensureDir makes the --plots folder.
@@ -240,49 +197,26 @@ func errNoAudio(args []string) error {
 	return usagef("no audio files found in %s", strings.Join(args, ", "))
 }
 
-// runBatch does the work for every target on o.jobs goroutines and hands
-// each record to write: in target order for document formats (as soon as
-// every earlier record is in, so text output is progressive but stable),
-// in completion order for streaming formats. work returns ok=false for a
-// file to leave out (not audio, found by walking a folder); their paths
-// are noted on stderr at the end. A progress bar runs on a terminal.
-func runBatch[T any](ctx context.Context, o batchOptions, targets []target, stderr io.Writer, work func(i int) (T, bool), write func(i int, r T)) {
-	type record struct {
-		r  T
-		ok bool
-	}
+// runBatch judges (or measures) every target with engine.Run on o.jobs
+// workers and hands each record to write: in target order for document
+// formats (as soon as every earlier record is in, so text output is
+// progressive but stable), in completion order for streaming formats. Files
+// found in folders that are not audio are left out and noted on stderr at
+// the end. A progress bar runs on a terminal.
+func runBatch(ctx context.Context, o batchOptions, targets []engine.Target, opt engine.Options, stderr io.Writer, write func(i int, r engine.Record)) {
 	var skippedPaths []string
-	inOrder := newOrderedEmitter(func(x indexedRecord[record]) {
-		if x.r.ok {
-			write(x.i, x.r.r)
-		}
-	})
 	bar := newProgress(stderr, len(targets))
-	runParallel(ctx, len(targets), o.jobs,
-		func(i int) record {
-			r, ok := work(i)
-			return record{r, ok}
-		},
-		func(i int, r record) {
+	engine.Run(ctx, targets, o.jobs,
+		func(ctx context.Context, t engine.Target) engine.Record { return engine.JudgeTarget(ctx, t, opt) },
+		func(i int, r engine.Record) {
 			bar.step()
-			if !r.ok {
-				skippedPaths = append(skippedPaths, targets[i].path)
-			}
-			if o.format.Streaming() {
-				if r.ok {
-					write(i, r.r)
-				}
+			if r.Skipped {
+				skippedPaths = append(skippedPaths, r.Target.Path)
 				return
 			}
-			inOrder.add(i, indexedRecord[record]{i, r})
-		})
+			write(i, r)
+		},
+		!o.format.Streaming())
 	bar.done()
 	noteSkipped(stderr, skippedPaths)
-}
-
-// indexedRecord carries a record with its target index through the
-// ordered emitter.
-type indexedRecord[T any] struct {
-	i int
-	r T
 }

@@ -5,14 +5,11 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"path/filepath"
-	"strings"
-	"sync"
 	"time"
 
 	"github.com/urfave/cli/v3"
 
-	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/rules"
 )
@@ -59,87 +56,29 @@ type checkOptions struct {
 	strict bool
 }
 
-// specFinder resolves each file's spec: --spec when given (an explicit
-// choice wins), else the nearest kweigh.toml between the file and the path
-// it was found under. Parsed folder specs are cached; a broken one is
-// reported for each file it governs.
-type specFinder struct {
-	given *rules.Spec
-	mu    sync.Mutex
-	cache map[string]specOrError
-}
-
-// noSpecError is a file with neither a folder spec nor --spec.
-type noSpecError struct{ path string }
-
-func (e noSpecError) Error() string {
-	return fmt.Sprintf("%s: no spec: give --spec NAME, or put a %s in its folder", e.path, folderSpecName)
-}
-
-type specOrError struct {
-	spec *rules.Spec
-	err  error
-}
-
-func (f *specFinder) find(t target) (*rules.Spec, error) {
-	if f.given != nil {
-		return f.given, nil
-	}
-	dir := filepath.Dir(t.path)
-	root := filepath.Clean(t.root)
-	for {
-		if s, ok := f.load(filepath.Join(dir, folderSpecName)); ok {
-			return s.spec, s.err
-		}
-		if dir == root || !strings.HasPrefix(dir, root) {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			break
-		}
-		dir = parent
-	}
-	return nil, noSpecError{t.path}
-}
-
-func (f *specFinder) load(path string) (specOrError, bool) {
-	f.mu.Lock()
-	defer f.mu.Unlock()
-	if s, ok := f.cache[path]; ok {
-		return s, s.spec != nil || s.err != nil
-	}
-	var s specOrError
-	if fileExists(path) {
-		s.spec, s.err = rules.LoadFile(path)
-	}
-	f.cache[path] = s
-	return s, s.spec != nil || s.err != nil
-}
-
 // runCheck measures and judges the files under args.
 func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr io.Writer) error {
-	targets, err := collect(args)
+	targets, err := engine.Collect(args)
 	if err != nil {
 		return usageError{err}
 	}
 	if len(targets) == 0 {
 		return errNoAudio(args)
 	}
-	finder := &specFinder{given: o.spec, cache: map[string]specOrError{}}
+	specs := engine.NewSpecs()
 	if o.spec == nil {
 		// When no file has a spec the command line is wrong: say so once
 		// instead of failing every file. Files without one among others
 		// that have one are reported one by one.
 		orphans := 0
 		for _, t := range targets {
-			var none noSpecError
-			if _, err := finder.find(t); errors.As(err, &none) {
+			var none *engine.NoSpecError
+			if _, _, err := specs.Find(t.Path); errors.As(err, &none) {
 				orphans++
 			}
 		}
 		if orphans == len(targets) {
-			return usagef("no spec: give --spec NAME (see 'kweigh specs') or put a %s in the delivery folder", folderSpecName)
+			return usagef("no spec: give --spec NAME (see 'kweigh specs') or put a %s in the delivery folder or a folder above it", rules.SpecFileName)
 		}
 	}
 
@@ -160,34 +99,15 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 	var summary reports.Summary
 	var kept []*rules.Result
 	var keptSpecs []*rules.Spec
-	specs := make([]*rules.Spec, len(targets))
-	mopt := o.measureOptions()
-	runBatch(ctx, o.batchOptions, targets, stderr,
-		func(i int) (*rules.Result, bool) {
-			t := targets[i]
-			spec, specErr := finder.find(t)
-			specs[i] = spec
-			var none noSpecError
-			if specErr != nil && !errors.As(specErr, &none) {
-				// A broken folder spec: no point measuring.
-				return specFailure(t, spec, specErr), true
-			}
-			m := measureTarget(ctx, t, mopt)
-			if skipped(t, m) {
-				return nil, false
-			}
-			if specErr != nil {
-				return specFailure(t, spec, specErr), true
-			}
-			r := rules.Evaluate(spec, m)
-			return &r, true
-		},
-		func(i int, r *rules.Result) {
+	opt := engine.Options{Spec: o.spec, Specs: specs, Measure: o.measureOptions()}
+	runBatch(ctx, o.batchOptions, targets, opt, stderr,
+		func(_ int, rec engine.Record) {
+			r := rec.Result
 			summary.Add(r)
 			out.write(r)
 			if o.report != "" || o.plots != "" {
 				kept = append(kept, r)
-				keptSpecs = append(keptSpecs, specs[i])
+				keptSpecs = append(keptSpecs, rec.Spec)
 			}
 		})
 	summary.Elapsed = time.Since(start)
@@ -212,15 +132,4 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 		return failedError{summary.Warned}
 	}
 	return nil
-}
-
-// specFailure is the result for a file whose spec could not be resolved;
-// the error names the missing or broken spec.
-func specFailure(t target, spec *rules.Spec, err error) *rules.Result {
-	if spec == nil {
-		spec = &rules.Spec{ID: "none"}
-	}
-	m := &measure.Measurement{Path: t.path, Error: err.Error(), Err: err, Notes: []string{}}
-	r := rules.Evaluate(spec, m)
-	return &r
 }

@@ -8,6 +8,7 @@ import (
 
 	"github.com/urfave/cli/v3"
 
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/reports"
 )
@@ -34,7 +35,7 @@ func measureCommand() *cli.Command {
 
 // runMeasure measures the files under args and writes them in o.format.
 func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stderr io.Writer) error {
-	targets, err := collect(args)
+	targets, err := engine.Collect(args)
 	if err != nil {
 		return usageError{err}
 	}
@@ -52,13 +53,10 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	start := time.Now()
 	var summary reports.Summary
 	var kept []*measure.Measurement
-	mopt := o.measureOptions()
-	runBatch(ctx, o, targets, stderr,
-		func(i int) (*measure.Measurement, bool) {
-			m := measureTarget(ctx, targets[i], mopt)
-			return m, !skipped(targets[i], m)
-		},
-		func(_ int, m *measure.Measurement) {
+	opt := engine.Options{MeasureOnly: true, Measure: o.measureOptions()}
+	runBatch(ctx, o, targets, opt, stderr,
+		func(_ int, r engine.Record) {
+			m := r.Measurement
 			summary.AddMeasurement(m)
 			out.write(m)
 			if o.report != "" || o.plots != "" {

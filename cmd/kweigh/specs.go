@@ -9,6 +9,7 @@ import (
 
 	"github.com/urfave/cli/v3"
 
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/rules"
 )
 
@@ -112,14 +113,10 @@ func runSpecsCheck(paths []string, stdout io.Writer) error {
 	return nil
 }
 
-// loadSpec resolves a --spec value: a built-in id, or else a TOML file.
+// loadSpec resolves a --spec value: a built-in id, or else a TOML file
+// (regular files only: a FIFO is refused at once).
 func loadSpec(name string) (*rules.Spec, error) {
-	if s, err := rules.Lookup(name); err == nil {
-		return s, nil
-	} else if !fileExists(name) {
-		return nil, usageError{err}
-	}
-	s, err := rules.LoadFile(name)
+	s, err := engine.LoadSpec(name)
 	if err != nil {
 		return nil, usageError{err}
 	}

@@ -5,7 +5,8 @@
 // copy of: the CPU-time clocks and the multiple-of-real-time metrics the
 // benchmarks report ("x-realtime" by wall clock, "x-realtime-cpu" by CPU
 // time), a plain reader for the PCM WAV files fixtures are made from
-// (Microsoft RIFF/WAVE), and helpers that read a decoder to its end.
+// (Microsoft RIFF/WAVE) and a writer to build small ones in tests (PCMWAV,
+// Sine), and helpers that read a decoder to its end.
 //
 // It imports package decode only, never a format sub-package nor loudness,
 // so that the in-package tests of every one of them can import it without
