@@ -3,15 +3,12 @@ package watch
 import (
 	"bytes"
 	"context"
-	"errors"
 	"fmt"
-	"os"
 	"path/filepath"
 	"strings"
-	"sync"
 	"time"
 
-	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/reports/htmlpage"
@@ -20,10 +17,10 @@ import (
 
 // JudgeOptions configure CheckJudge.
 type JudgeOptions struct {
-	// Spec judges every file; nil means each file's nearest kweigh.toml,
-	// looked for from its folder up to the inbox.
+	// Spec judges every file; nil means each file's nearest kweigh.toml
+	// (the engine's search, the same as `kweigh check`).
 	Spec *rules.Spec
-	// Strict turns warnings into failures (the file goes to --failed).
+	// Strict turns warnings into failures (the file goes to Failed).
 	Strict bool
 	// Measure are the measurement options; KeepSeries is always set, the
 	// HTML page draws the series.
@@ -35,43 +32,38 @@ type JudgeOptions struct {
 }
 
 // audioExtensions are the names that make a file a delivery even when it
-// cannot be read (an unreadable .wav is an error, not a file to skip).
+// cannot be read: an unreadable .wav is an error, not a file to skip.
 var audioExtensions = map[string]bool{
 	".wav": true, ".bwf": true, ".rf64": true, ".w64": true, ".bw64": true, ".flac": true,
 	".mp3": true, ".aif": true, ".aiff": true, ".aifc": true,
 }
 
-// CheckJudge returns the JudgeFunc of `kweigh check`: measure the file,
-// judge it against its spec, and render the check record (JSON) and the
-// HTML QC page.
+// CheckJudge returns the JudgeFunc of `kweigh check`: engine.JudgeTarget
+// (measure the file, judge it against its spec), then the check record
+// (JSON) and the HTML QC page rendered from the result.
 func CheckJudge(o JudgeOptions) JudgeFunc {
 	o.Measure.KeepSeries = true
-	specs := &folderSpecs{cache: map[string]specLoad{}}
+	opt := engine.Options{Spec: o.Spec, Measure: o.Measure}
 	return func(ctx context.Context, path, root string) (Judgement, error) {
-		m := measure.File(ctx, path, o.Measure)
-		if ctx.Err() != nil && m.Err != nil && errors.Is(m.Err, ctx.Err()) {
+		// A file named as audio is a delivery (explicit), so an unreadable
+		// one is an error; any other file that is not audio is skipped.
+		t := engine.Target{Path: path, Root: root, Explicit: audioExtensions[strings.ToLower(filepath.Ext(path))]}
+		rec := engine.JudgeTarget(ctx, t, opt)
+		if rec.Interrupted() {
 			return Judgement{}, ctx.Err()
 		}
-		if m.Err != nil && errors.Is(m.Err, decode.ErrUnknownFormat) && !audioExtensions[strings.ToLower(filepath.Ext(path))] {
-			return Judgement{Skipped: true, Problem: m.Error}, nil
+		if rec.Skipped || rec.Result == nil {
+			return Judgement{Skipped: true, Problem: rec.Measurement.Error}, nil
 		}
-		spec := o.Spec
-		if spec == nil {
-			var err error
-			if spec, err = specs.find(path, root); err != nil {
-				m = &measure.Measurement{Path: path, Error: err.Error(), Err: err, Notes: []string{}}
-				spec = &rules.Spec{ID: "none"}
-			}
-		}
-		r := rules.Evaluate(spec, m)
+		r := rec.Result
 		verdict := r.Verdict
 		if o.Strict && verdict == rules.Warn {
 			verdict = rules.Fail
 		}
-		var rec bytes.Buffer
-		w, err := reports.NewCheckWriter(&rec, reports.JSONL, reports.Options{Version: o.Version})
+		var line bytes.Buffer
+		w, err := reports.NewCheckWriter(&line, reports.JSONL, reports.Options{Version: o.Version})
 		if err == nil {
-			err = w.Write(&r)
+			err = w.Write(r)
 		}
 		if err == nil {
 			err = w.Close(reports.Summary{})
@@ -84,61 +76,12 @@ func CheckJudge(o JudgeOptions) JudgeFunc {
 			Title:     "kweigh delivery check — " + filepath.Base(path),
 			Generated: time.Now(),
 			Specs:     []string{r.Spec},
-			Entries:   []htmlpage.Entry{{Result: &r, Target: htmlpage.TargetFor(spec, r.Channels)}},
+			Entries:   []htmlpage.Entry{{Result: r, Target: htmlpage.TargetFor(rec.Spec, r.Channels)}},
 			Caution:   o.Caution,
 		})
 		if err != nil {
 			return Judgement{}, fmt.Errorf("%s: writing the page: %w", path, err)
 		}
-		j := Judgement{Verdict: string(verdict), Record: bytes.TrimSpace(rec.Bytes()), Page: page.Bytes()}
-		if r.Error != "" {
-			j.Problem = r.Error
-		}
-		return j, nil
+		return Judgement{Verdict: string(verdict), Problem: r.Error, Record: bytes.TrimSpace(line.Bytes()), Page: page.Bytes()}, nil
 	}
-}
-
-// folderSpecs finds and caches the nearest kweigh.toml of each file. A spec
-// file is read again when its modification time changes, so a QC desk can
-// edit a folder's rules without restarting the watcher.
-type folderSpecs struct {
-	mu    sync.Mutex
-	cache map[string]specLoad
-}
-
-type specLoad struct {
-	mtime time.Time
-	spec  *rules.Spec
-	err   error
-}
-
-func (f *folderSpecs) find(path, root string) (*rules.Spec, error) {
-	dir := filepath.Dir(path)
-	root = filepath.Clean(root)
-	for {
-		file := filepath.Join(dir, specFileName)
-		if st, err := os.Stat(file); err == nil && !st.IsDir() {
-			return f.load(file, st.ModTime())
-		}
-		if dir == root || !strings.HasPrefix(dir, root) {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			break
-		}
-		dir = parent
-	}
-	return nil, fmt.Errorf("%s: no spec: give --spec NAME, or put a %s in its folder or the inbox", path, specFileName)
-}
-
-func (f *folderSpecs) load(file string, mtime time.Time) (*rules.Spec, error) {
-	f.mu.Lock()
-	defer f.mu.Unlock()
-	if s, ok := f.cache[file]; ok && s.mtime.Equal(mtime) {
-		return s.spec, s.err
-	}
-	spec, err := rules.LoadFile(file)
-	f.cache[file] = specLoad{mtime: mtime, spec: spec, err: err}
-	return spec, err
 }

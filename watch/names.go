@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"path"
 	"strings"
+
+	"github.com/kweigh/kweigh/rules"
 )
 
 // temporarySuffixes are the endings upload and download tools give a file
@@ -14,7 +16,7 @@ var temporarySuffixes = []string{".part", ".partial", ".tmp", ".crdownload", ".f
 
 // specFileName is the folder spec file; it governs its folder and is never a
 // delivery, so it is never taken.
-const specFileName = "kweigh.toml"
+const specFileName = rules.SpecFileName
 
 // Names decides which names in an inbox are deliveries.
 type Names struct {
