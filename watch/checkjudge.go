@@ -9,6 +9,8 @@ import (
 	"time"
 
 	"github.com/kweigh/kweigh/engine"
+	// CheckJudge reads every format kweigh reads.
+	_ "github.com/kweigh/kweigh/decode/formats"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/reports/htmlpage"
