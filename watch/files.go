@@ -48,11 +48,13 @@ func writeAtomic(path string, data []byte) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
 	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")
+	// One fixed temporary name per file: a write cut short by a crash is
+	// overwritten and renamed away by the write that redoes it.
+	name := filepath.Join(dir, "."+filepath.Base(path)+".kweigh-tmp")
+	tmp, err := os.OpenFile(name, os.O_CREATE|os.O_TRUNC|os.O_WRONLY, 0o644)
 	if err != nil {
 		return err
 	}
-	name := tmp.Name()
 	_, err = tmp.Write(data)
 	if err == nil {
 		err = tmp.Sync()
@@ -117,6 +119,7 @@ func moveFile(src, dst string, size int64) error {
 	if err := copyFile(src, dst, size); err != nil {
 		return err
 	}
+	testPause("copied", src)
 	return removeSource(src)
 }
 

@@ -13,7 +13,8 @@ import (
 // "STEP" or "STEP:N" (the N-th time the step is reached, counting from 1).
 // Steps: judging (after the judging state is committed, before the judge
 // runs), judged (after the verdict and the report pair are committed, before
-// the move), moving (before each move attempt), moved (after the move,
+// the move), moving (before each move attempt), copied (a move across file systems has
+// copied the file into place but not yet removed the source), moved (after the move,
 // before placed is committed). On reaching it the watcher prints
 // "kweigh watch: test pause at STEP: PATH" to stderr and waits forever.
 // Nothing else reads it; it is not an option for users.
