@@ -210,4 +210,3 @@ func sameDevice(a, b string) bool {
 	}
 	return sa.Dev == sb.Dev
 }
-

@@ -288,6 +288,51 @@ func (l *Ledger) Seen(ctx context.Context, inbox, rel string, size int64, mtime,
 	return id, l.wrap("recording "+rel, err)
 }
 
+// Observation is a file not yet judged as a scan found it.
+type Observation struct {
+	ID         int64 // 0 for a file new to the ledger; set by Observe
+	Inbox, Rel string
+	Size       int64
+	ModTime    time.Time
+	State      State // seen or settling
+}
+
+// Observe records a scan's findings in one transaction: new files get a
+// row in state seen, known ones their new size, time and state.
+func (l *Ledger) Observe(ctx context.Context, obs []*Observation, now time.Time) error {
+	tx, err := l.db.BeginTx(ctx, nil)
+	if err != nil {
+		return l.wrap("recording a scan", err)
+	}
+	defer tx.Rollback()
+	for _, o := range obs {
+		if o.ID != 0 {
+			if _, err := tx.ExecContext(ctx,
+				`UPDATE files SET size = ?, mtime_ns = ?, state = ?, fingerprint = '', updated_at = ? WHERE id = ? AND state IN ('seen', 'settling', 'judging')`,
+				o.Size, nanos(o.ModTime), string(o.State), nanos(now), o.ID); err != nil {
+				return l.wrap("recording a scan", err)
+			}
+			continue
+		}
+		res, err := tx.ExecContext(ctx,
+			`INSERT INTO files (inbox, rel, size, mtime_ns, state, seen_at, updated_at) VALUES (?, ?, ?, ?, ?, ?, ?)`,
+			o.Inbox, o.Rel, o.Size, nanos(o.ModTime), string(o.State), nanos(now), nanos(now))
+		if err != nil {
+			return l.wrap("recording "+o.Rel, err)
+		}
+		if o.ID, err = res.LastInsertId(); err != nil {
+			return l.wrap("recording "+o.Rel, err)
+		}
+	}
+	if err := tx.Commit(); err != nil {
+		for _, o := range obs {
+			o.ID = 0
+		}
+		return l.wrap("recording a scan", err)
+	}
+	return nil
+}
+
 // Observed records a file not yet judged as it is now: growing (back to
 // seen, with its new size and time) or unchanged (settling).
 func (l *Ledger) Observed(ctx context.Context, id int64, size int64, mtime time.Time, state State, now time.Time) error {
@@ -298,27 +343,32 @@ func (l *Ledger) Observed(ctx context.Context, id int64, size int64, mtime time.
 }
 
 // Judging records that a settled file, with this fingerprint, is being
-// judged.
-func (l *Ledger) Judging(ctx context.Context, id int64, fingerprint string, now time.Time) error {
-	_, err := l.db.ExecContext(ctx,
-		`UPDATE files SET state = 'judging', fingerprint = ?, error = '', updated_at = ? WHERE id = ?`,
-		fingerprint, nanos(now), id)
-	return l.wrap("recording judging", err)
-}
-
-// ClaimStem gives the row report names (and a placement name) that no other
-// row holds: the first of the candidates from name(1), name(2), … that is
-// free in the ledger and for which free(n) is true. A row that already has
-// one keeps it.
-func (l *Ledger) ClaimStem(ctx context.Context, id int64, name func(n int) string, free func(n int) bool) (string, error) {
+// judged, and gives it its report names (and placement name) in the same
+// commit: the first of name(1), name(2), … that no other row holds and for
+// which free(n) is true. A row judged again after an interruption keeps
+// the names it had.
+func (l *Ledger) Judging(ctx context.Context, id int64, fingerprint string, name func(n int) string, free func(n int) bool, now time.Time) (string, error) {
 	tx, err := l.db.BeginTx(ctx, nil)
+	if err != nil {
+		return "", l.wrap("recording judging", err)
+	}
+	defer tx.Rollback()
+	stem, err := claimStem(ctx, tx, id, name, free)
 	if err != nil {
 		return "", l.wrap("claiming report names", err)
 	}
-	defer tx.Rollback()
+	if _, err := tx.ExecContext(ctx,
+		`UPDATE files SET state = 'judging', fingerprint = ?, stem = ?, error = '', updated_at = ? WHERE id = ?`,
+		fingerprint, stem, nanos(now), id); err != nil {
+		return "", l.wrap("recording judging", err)
+	}
+	return stem, l.wrap("recording judging", tx.Commit())
+}
+
+func claimStem(ctx context.Context, tx *sql.Tx, id int64, name func(n int) string, free func(n int) bool) (string, error) {
 	var have sql.NullString
 	if err := tx.QueryRowContext(ctx, `SELECT stem FROM files WHERE id = ?`, id).Scan(&have); err != nil {
-		return "", l.wrap("claiming report names", err)
+		return "", err
 	}
 	if have.Valid && have.String != "" {
 		return have.String, nil
@@ -327,17 +377,13 @@ func (l *Ledger) ClaimStem(ctx context.Context, id int64, name func(n int) strin
 		stem := name(n)
 		var taken int
 		if err := tx.QueryRowContext(ctx, `SELECT count(*) FROM files WHERE stem = ?`, stem).Scan(&taken); err != nil {
-			return "", l.wrap("claiming report names", err)
+			return "", err
 		}
-		if taken > 0 || !free(n) {
-			continue
+		if taken == 0 && free(n) {
+			return stem, nil
 		}
-		if _, err := tx.ExecContext(ctx, `UPDATE files SET stem = ?, updated_at = ? WHERE id = ?`, stem, nanos(time.Now()), id); err != nil {
-			return "", l.wrap("claiming report names", err)
-		}
-		return stem, l.wrap("claiming report names", tx.Commit())
 	}
-	return "", l.wrap("claiming report names", errors.New("no free name"))
+	return "", errors.New("no free name")
 }
 
 // Judged records the verdict, the record, the report folder and where the

@@ -17,6 +17,7 @@ func (w *watcher) scanAll(ctx context.Context) {
 	for _, in := range w.inboxes {
 		w.scanDir(ctx, in, in)
 	}
+	w.commit(ctx)
 }
 
 // scanDir walks dir (inside inbox), observing every delivery and, with
@@ -107,6 +108,7 @@ func (w *watcher) hint(ctx context.Context, h hint) {
 	if st.IsDir() {
 		if h.created {
 			w.scanDir(ctx, inbox, h.path) // watch it, and find what was made before the watch
+			w.commit(ctx)
 		}
 		return
 	}
@@ -123,6 +125,7 @@ func (w *watcher) hint(ctx context.Context, h hint) {
 		return
 	}
 	w.observe(ctx, inbox, rel, st, time.Now())
+	w.commit(ctx)
 }
 
 // hiddenOrOwn reports whether path lies in one of the watcher's own folders.

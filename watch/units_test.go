@@ -167,9 +167,8 @@ func TestLedger(t *testing.T) {
 		want State
 	}{
 		{func() error { return l.Observed(ctx, id, 1000, mtime, StateSettling, now) }, StateSettling},
-		{func() error { return l.Judging(ctx, id, "ab12", now) }, StateJudging},
 		{func() error {
-			_, err := l.ClaimStem(ctx, id, func(n int) string { return numbered("show/ep1.wav", n) }, func(int) bool { return true })
+			_, err := l.Judging(ctx, id, "ab12", func(n int) string { return numbered("show/ep1.wav", n) }, func(int) bool { return true }, now)
 			return err
 		}, StateJudging},
 		{func() error {
@@ -196,8 +195,8 @@ func TestLedger(t *testing.T) {
 	}
 	// The next version of the same name gets the next numbered stem.
 	id2, _ := l.Seen(ctx, "inbox", "show/ep1.wav", 2000, mtime.Add(time.Second), now)
-	stem, err := l.ClaimStem(ctx, id2, func(n int) string { return numbered("show/ep1.wav", n) }, func(int) bool { return true })
-	if err != nil || stem != "show/ep1 (2).wav" {
+	stem, err := l.Judging(ctx, id2, "cd34", func(n int) string { return numbered("show/ep1.wav", n) }, func(n int) bool { return n != 2 }, now)
+	if err != nil || stem != "show/ep1 (3).wav" { // 1 is held by the first version, 2 is taken on disk
 		t.Errorf("second version's stem %q, %v", stem, err)
 	}
 	if v, ok, _ := l.Version(ctx, "inbox", "show/ep1.wav", 1000, mtime); !ok || v.ID != id {

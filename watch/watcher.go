@@ -88,7 +88,8 @@ type watcher struct {
 	results  chan result
 	poke     chan struct{} // wakes the notifier
 	events   *events
-	complain map[string]bool // paths whose non-regular type was logged
+	complain map[string]bool     // paths whose non-regular type was logged
+	dirty    map[*candidate]bool // changes not yet committed
 	summary  Summary
 	outMu    sync.Mutex
 }
@@ -117,7 +118,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		o: o, led: led, log: o.Log, names: names,
 		cands: map[string]*candidate{}, busy: map[string]bool{}, finished: map[string]version{},
 		work: make(chan Entry), results: make(chan result), poke: make(chan struct{}, 1),
-		complain: map[string]bool{},
+		complain: map[string]bool{}, dirty: map[*candidate]bool{},
 	}
 	for _, in := range o.Inboxes {
 		w.inboxes = append(w.inboxes, filepath.Clean(in))
@@ -273,14 +274,15 @@ func (w *watcher) isInbox(in string) bool {
 	return false
 }
 
-// observe handles one file found by a scan or an event.
+// observe handles one file found by a scan or an event. What it finds is
+// written to the ledger by the next commit, one transaction per scan.
 func (w *watcher) observe(ctx context.Context, inbox, rel string, st fs.FileInfo, now time.Time) {
 	path := filepath.Join(inbox, filepath.FromSlash(rel))
 	if w.busy[path] {
 		return
 	}
 	if c := w.cands[path]; c != nil {
-		w.update(ctx, c, st, now)
+		w.update(c, st, now)
 		return
 	}
 	if v, ok := w.finished[path]; ok && v.size == st.Size() && v.mtime.Equal(st.ModTime()) {
@@ -295,29 +297,51 @@ func (w *watcher) observe(ctx context.Context, inbox, rel string, st fs.FileInfo
 		w.finished[path] = version{st.Size(), st.ModTime()}
 		return
 	}
-	id, err := w.led.Seen(ctx, inbox, rel, st.Size(), st.ModTime(), now)
-	if err != nil {
-		w.log.Error("ledger", "file", path, "err", err)
-		return
-	}
 	w.log.Info("seen", "file", path, "size", st.Size())
-	w.cands[path] = &candidate{id: id, inbox: inbox, rel: rel, size: st.Size(), mtime: st.ModTime(), since: now, state: StateSeen}
+	c := &candidate{inbox: inbox, rel: rel, size: st.Size(), mtime: st.ModTime(), since: now, state: StateSeen}
+	w.cands[path] = c
+	w.dirty[c] = true
 }
 
 // update compares a candidate with its file as it is now.
-func (w *watcher) update(ctx context.Context, c *candidate, st fs.FileInfo, now time.Time) {
+func (w *watcher) update(c *candidate, st fs.FileInfo, now time.Time) {
 	if st.Size() != c.size || !st.ModTime().Equal(c.mtime) {
 		c.size, c.mtime, c.since, c.state = st.Size(), st.ModTime(), now, StateSeen
-		if err := w.led.Observed(ctx, c.id, c.size, c.mtime, StateSeen, now); err != nil {
-			w.log.Error("ledger", "file", filepath.Join(c.inbox, c.rel), "err", err)
-		}
+		w.dirty[c] = true
 		return
 	}
 	if c.state == StateSeen {
 		c.state = StateSettling
-		if err := w.led.Observed(ctx, c.id, c.size, c.mtime, StateSettling, now); err != nil {
-			w.log.Error("ledger", "file", filepath.Join(c.inbox, c.rel), "err", err)
+		w.dirty[c] = true
+	}
+}
+
+// commit writes what the last scan or tick found to the ledger, in one
+// transaction, before any of it is acted on. Files new to the ledger get
+// their rows (and ids) here; if the commit fails they are forgotten and
+// found again by the next scan.
+func (w *watcher) commit(ctx context.Context) {
+	if len(w.dirty) == 0 {
+		return
+	}
+	obs := make([]*Observation, 0, len(w.dirty))
+	cands := make([]*candidate, 0, len(w.dirty))
+	for c := range w.dirty {
+		obs = append(obs, &Observation{ID: c.id, Inbox: c.inbox, Rel: c.rel, Size: c.size, ModTime: c.mtime, State: c.state})
+		cands = append(cands, c)
+	}
+	clear(w.dirty)
+	if err := w.led.Observe(ctx, obs, time.Now()); err != nil {
+		w.log.Error("ledger", "err", err)
+		for _, c := range cands {
+			if c.id == 0 {
+				delete(w.cands, filepath.Join(c.inbox, filepath.FromSlash(c.rel)))
+			}
 		}
+		return
+	}
+	for i, c := range cands {
+		c.id = obs[i].ID
 	}
 }
 
@@ -350,8 +374,8 @@ func (w *watcher) settleTick(ctx context.Context) {
 			w.summary.Gone++
 			continue
 		}
-		w.update(ctx, c, st, now)
-		if now.Sub(c.since) < w.o.Settle {
+		w.update(c, st, now)
+		if now.Sub(c.since) < w.o.Settle || c.id == 0 {
 			continue
 		}
 		w.log.Info("taken", "file", path, "size", c.size)
@@ -359,6 +383,7 @@ func (w *watcher) settleTick(ctx context.Context) {
 		w.busy[path] = true
 		w.queue = append(w.queue, Entry{ID: c.id, Inbox: c.inbox, Rel: c.rel, Size: c.size, ModTime: c.mtime, State: StateSettling})
 	}
+	w.commit(ctx)
 }
 
 // finish takes a worker's result.

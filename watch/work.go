@@ -53,11 +53,25 @@ func (w *watcher) judge(ctx, bg context.Context, e *Entry) (result, bool) {
 	if err != nil {
 		w.log.Warn("cannot read file", "file", p, "err", err)
 	}
-	if err := w.led.Judging(bg, e.ID, fp, time.Now()); err != nil {
+	// Report names (and the placement name) are chosen now, free in the
+	// ledger and in both destination folders, and kept if the file is
+	// judged again after an interruption.
+	stem, err := w.led.Judging(bg, e.ID, fp, func(n int) string { return numbered(e.Rel, n) }, func(n int) bool {
+		for _, dir := range []string{w.o.Passed, w.o.Failed} {
+			if dir == "" {
+				continue
+			}
+			if _, err := os.Lstat(filepath.Join(dir, filepath.FromSlash(numbered(e.Rel, n)))); err == nil {
+				return false
+			}
+		}
+		return true
+	}, time.Now())
+	if err != nil {
 		w.log.Error("ledger", "file", p, "err", err)
 		return result{entry: *e, outcome: outcomeRetry}, false
 	}
-	e.State, e.Fingerprint = StateJudging, fp
+	e.State, e.Fingerprint, e.Stem = StateJudging, fp, stem
 	testPause("judging", p)
 	j, err := w.o.Judge(ctx, p, e.Inbox)
 	if err != nil {
@@ -84,22 +98,6 @@ func (w *watcher) judge(ctx, bg context.Context, e *Entry) (result, bool) {
 		}
 		return result{entry: *e, outcome: outcomeDone, skipped: true}, false
 	}
-	stem, err := w.led.ClaimStem(bg, e.ID, func(n int) string { return numbered(e.Rel, n) }, func(n int) bool {
-		for _, dir := range []string{w.o.Passed, w.o.Failed} {
-			if dir == "" {
-				continue
-			}
-			if _, err := os.Lstat(filepath.Join(dir, filepath.FromSlash(numbered(e.Rel, n)))); err == nil {
-				return false
-			}
-		}
-		return true
-	})
-	if err != nil {
-		w.log.Error("ledger", "file", p, "err", err)
-		return result{entry: *e, outcome: outcomeRetry}, false
-	}
-	e.Stem = stem
 	if err := w.writeReports(stem, j); err != nil {
 		w.log.Error("cannot write the report pair", "file", p, "err", err)
 		w.led.Problem(bg, e.ID, err.Error(), time.Now())
