@@ -5,6 +5,8 @@ import (
 	"context"
 	"encoding/binary"
 	"encoding/json"
+	"io"
+	"log/slog"
 	"math"
 	"os"
 	"path/filepath"
@@ -190,3 +192,6 @@ func filesUnder(t testing.TB, dir string) []string {
 	})
 	return out
 }
+
+// newTextLogger logs as the command line does, into w.
+func newTextLogger(w io.Writer) *slog.Logger { return slog.New(slog.NewTextHandler(w, nil)) }

@@ -82,7 +82,7 @@ type watcher struct {
 	cands    map[string]*candidate
 	busy     map[string]bool
 	finished map[string]version
-	retry    []Entry
+	retry    map[string]Entry // failed a step; queued again at the next rescan
 	queue    []Entry
 	work     chan Entry
 	results  chan result
@@ -118,7 +118,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		o: o, led: led, log: o.Log, names: names,
 		cands: map[string]*candidate{}, busy: map[string]bool{}, finished: map[string]version{},
 		work: make(chan Entry), results: make(chan result), poke: make(chan struct{}, 1),
-		complain: map[string]bool{}, dirty: map[*candidate]bool{},
+		complain: map[string]bool{}, dirty: map[*candidate]bool{}, retry: map[string]Entry{},
 	}
 	for _, in := range o.Inboxes {
 		w.inboxes = append(w.inboxes, filepath.Clean(in))
@@ -278,7 +278,7 @@ func (w *watcher) isInbox(in string) bool {
 // written to the ledger by the next commit, one transaction per scan.
 func (w *watcher) observe(ctx context.Context, inbox, rel string, st fs.FileInfo, now time.Time) {
 	path := filepath.Join(inbox, filepath.FromSlash(rel))
-	if w.busy[path] {
+	if _, waiting := w.retry[path]; w.busy[path] || waiting {
 		return
 	}
 	if c := w.cands[path]; c != nil {
@@ -293,12 +293,17 @@ func (w *watcher) observe(ctx context.Context, inbox, rel string, st fs.FileInfo
 		w.log.Error("ledger", "file", path, "err", err)
 		return
 	}
-	if ok && e.State == StatePlaced {
+	if ok && (e.State == StatePlaced || e.State == StateJudged) {
+		// Placed, or judged and queued for placing since the start.
 		w.finished[path] = version{st.Size(), st.ModTime()}
 		return
 	}
-	w.log.Info("seen", "file", path, "size", st.Size())
 	c := &candidate{inbox: inbox, rel: rel, size: st.Size(), mtime: st.ModTime(), since: now, state: StateSeen}
+	if ok && e.State != StateGone {
+		c.id = e.ID // this version's row, not yet judged: no second row
+	} else {
+		w.log.Info("seen", "file", path, "size", st.Size())
+	}
 	w.cands[path] = c
 	w.dirty[c] = true
 }
@@ -411,7 +416,7 @@ func (w *watcher) finish(ctx context.Context, r result) {
 			w.summary.Errors++ // left in the ledger for the next run
 			return
 		}
-		w.retry = append(w.retry, r.entry)
+		w.retry[path] = r.entry
 	case outcomeAbandoned:
 	}
 }
@@ -420,8 +425,8 @@ func (w *watcher) stopping(ctx context.Context) bool { return ctx.Err() != nil }
 
 // retryFailed queues again the files whose last step failed.
 func (w *watcher) retryFailed() {
-	for _, e := range w.retry {
-		path := e.Path()
+	for path, e := range w.retry {
+		delete(w.retry, path)
 		if w.busy[path] {
 			continue
 		}
@@ -432,5 +437,4 @@ func (w *watcher) retryFailed() {
 		}
 		w.cands[path] = &candidate{id: e.ID, inbox: e.Inbox, rel: e.Rel, size: e.Size, mtime: e.ModTime, since: time.Now(), state: StateSeen}
 	}
-	w.retry = nil
 }
