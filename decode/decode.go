@@ -19,6 +19,9 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
+	"slices"
+	"strings"
 	"sync"
 )
 
@@ -52,7 +55,8 @@ type Info struct {
 	// tag of the same name), 0 when absent.
 	ChannelMask uint32
 	// BitsPerSample is the number of significant bits per sample (the
-	// "valid bits" of an extensible WAV, 16 for a decoded MP3).
+	// "valid bits" of an extensible WAV), 0 for lossy formats (MP3), which
+	// have no bit depth.
 	BitsPerSample int
 	// SampleFormat is Int or Float.
 	SampleFormat SampleFormat
@@ -65,8 +69,19 @@ type Info struct {
 	// Mode is a format-specific description of the channel coding, e.g.
 	// "joint stereo" for MP3; empty when it adds nothing.
 	Mode string
+	// BitRateMode is "cbr", "vbr" or "abr" for compressed formats that
+	// say (an MP3's Xing/Info/LAME header, or constant frame sizes), ""
+	// when unknown or not applicable.
+	BitRateMode string
+	// Tags lists the metadata blocks found around the audio, e.g.
+	// "id3v2.3", "id3v1", "ape"; nil when there are none.
+	Tags []string
 	// Bext holds the Broadcast Wave extension chunk when the file has one.
 	Bext *Bext
+	// Undeclared is set when the file holds data after the audio its
+	// header declares that is neither a chunk nor a tag (see Undeclared);
+	// nil otherwise. ReadFrames delivers only the declared audio.
+	Undeclared *Undeclared
 }
 
 // Decoder streams the samples of one file.
@@ -102,6 +117,12 @@ type Format struct {
 	// Name is the container name used in Info.Container (the primary one
 	// when a format has variants).
 	Name string
+	// Extensions are the file-name extensions (lower case, without the
+	// dot) deliveries in this format carry. The content, not the name,
+	// decides how a file is read; the name decides only that a file which
+	// cannot be read is a broken delivery rather than something else in the
+	// folder (see HasAudioExtension).
+	Extensions []string
 	// Match reports whether the content looks like this format. It may read
 	// anywhere in r but must be cheap and must not panic on any input.
 	Match func(r io.ReaderAt, size int64) bool
@@ -130,6 +151,24 @@ func Register(f Format) {
 	formatsMu.Lock()
 	defer formatsMu.Unlock()
 	formats = append(formats, f)
+}
+
+// HasAudioExtension reports whether name ends in an extension a registered
+// format claims (case does not matter): such a file is a delivery, and if
+// it cannot be read that is an error, never a silent skip.
+func HasAudioExtension(name string) bool {
+	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(name), "."))
+	if ext == "" {
+		return false
+	}
+	formatsMu.RLock()
+	defer formatsMu.RUnlock()
+	for _, f := range formats {
+		if slices.Contains(f.Extensions, ext) {
+			return true
+		}
+	}
+	return false
 }
 
 // Formats returns the names of the registered formats.

@@ -1,11 +1,13 @@
 package engine_test
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"os"
 	"path/filepath"
 
+	"github.com/kweigh/kweigh/decode"
 	_ "github.com/kweigh/kweigh/decode/formats"
 	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/internal/audiotest"
@@ -78,4 +80,45 @@ func ExampleRun() {
 	// 1 take-1.wav: -20.0 LUFS
 	// 2 take-2.wav: -30.0 LUFS
 	// 3 take-3.wav: -26.0 LUFS
+}
+
+// ExampleFindSpec shows the search for a file's spec: the nearest
+// kweigh.toml from the file's folder upwards, here two folders up.
+func ExampleFindSpec() {
+	dir, _ := os.MkdirTemp("", "engine-example")
+	defer os.RemoveAll(dir)
+	os.MkdirAll(filepath.Join(dir, "reedbank-audio", "season-2", "week-07"), 0o755)
+	os.WriteFile(filepath.Join(dir, "reedbank-audio", "kweigh.toml"), []byte("name = \"reedbank-audio\"\nextends = \"podcast\"\n"), 0o644)
+
+	spec, file, err := engine.FindSpec(filepath.Join(dir, "reedbank-audio", "season-2", "week-07", "ep-31.mp3"))
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	rel, _ := filepath.Rel(dir, file)
+	fmt.Println(spec.ID, "from", filepath.ToSlash(rel), "extends", spec.Extends)
+	// Output:
+	// reedbank-audio from reedbank-audio/kweigh.toml extends podcast
+}
+
+// ExampleJudgeStream judges audio that is not a file on disk (an upload
+// already in memory) against a spec given in the options. A 997 Hz sine at
+// -16 dBFS left and -22.0 dBFS right reads 10·log10((10^-1.6 + 10^-2.2)/2)
+// = -18.0 LUFS (BS.1770: a -23 dBFS 997 Hz stereo tone reads -23.0 LUFS, so
+// each channel adds its mean square with the same weight), 5.0 LU above
+// R 128's -23 LUFS target.
+func ExampleJudgeStream() {
+	a := audiotest.DBFS(-16)
+	upload := audiotest.PCMWAV(48000, 2, 16, audiotest.Sine(48000, 5, 997, a, 0.5*a))
+	d, err := decode.New(bytes.NewReader(upload))
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	spec, _ := engine.LoadSpec("ebu-r128")
+	rec := engine.JudgeStream(context.Background(), "upload-7731.wav", d, engine.Options{Spec: spec})
+	fmt.Printf("%s: %s, integrated %.1f LUFS, gain %+.1f dB\n", rec.Measurement.Path, rec.Result.Verdict,
+		*rec.Measurement.IntegratedLUFS, *rec.Result.SuggestedGainDB)
+	// Output:
+	// upload-7731.wav: fail, integrated -18.0 LUFS, gain -5.0 dB
 }

@@ -115,6 +115,7 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func() *measure
 	if opt.MeasureOnly {
 		rec.Measurement = measureIt()
 		rec.Skipped = skip(t, rec.Measurement)
+		namedLikeAudio(t.Path, rec.Measurement)
 		return rec
 	}
 	spec, file, specErr := opt.Spec, "", error(nil)
@@ -137,6 +138,7 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func() *measure
 	if rec.Skipped = skip(t, rec.Measurement); rec.Skipped {
 		return rec
 	}
+	namedLikeAudio(t.Path, rec.Measurement)
 	if specErr != nil {
 		// Measured (so that a non-audio file is still skipped), but
 		// nothing to judge it by.
@@ -150,9 +152,19 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func() *measure
 }
 
 // skip reports whether a measurement is of a non-audio file found by
-// walking a folder.
+// walking a folder. A file whose name carries an audio extension is a
+// delivery (decode.HasAudioExtension): if it cannot be read, that is its
+// error, never a skip.
 func skip(t Target, m *measure.Measurement) bool {
-	return !t.Explicit && m.Err != nil && errors.Is(m.Err, decode.ErrUnknownFormat)
+	return !t.Explicit && m.Err != nil && errors.Is(m.Err, decode.ErrUnknownFormat) && !decode.HasAudioExtension(t.Path)
+}
+
+// namedLikeAudio says in the error of an unrecognised file with an audio
+// name what that most likely means.
+func namedLikeAudio(path string, m *measure.Measurement) {
+	if m.Err != nil && errors.Is(m.Err, decode.ErrUnknownFormat) && decode.HasAudioExtension(path) {
+		m.Error += " although its name says it is: a damaged or mislabelled delivery"
+	}
 }
 
 func errorMeasurement(path string, err error) *measure.Measurement {

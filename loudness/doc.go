@@ -52,9 +52,22 @@
 // difference between the 95th and 10th percentiles of the rest, taken by
 // nearest rank (index round((n−1)·p) in the sorted values).
 //
-// The meter keeps, per 100 ms block, only the weighted sum of squares and
-// the peaks, and builds every window from those; at rates where 100 ms is
-// not a whole number of samples, block k ends at sample round(k·fs/10).
+// The meter keeps the weighted sums of squares of the last 30 blocks of
+// 100 ms and builds every window from those; at rates where 100 ms is not a
+// whole number of samples, block k ends at sample round(k·fs/10).
+//
+// # Bounded memory
+//
+// Gating and the loudness range need every window's value until the end.
+// The meter keeps them exactly for 2¹⁶ blocks (1 h 49 min), so shorter
+// programmes get the textbook result to the last bit; past that it keeps a
+// histogram of 0.005 LU bins with the exact energy sum of each bin, and the
+// exact absolute-gated mean, so integrated loudness and loudness range stay
+// within a few thousandths of an LU of the exact method on programme
+// material (histogram.go argues the bound). The maxima are running maxima;
+// the 10 Hz series are decimated to the extremes of growing stretches once
+// they reach 2¹⁶ elements (see Series). A day of audio needs the same few
+// megabytes as an hour.
 //
 // # True peak
 //
@@ -91,7 +104,9 @@
 //
 // # Bad samples
 //
-// Float input may exceed full scale and is measured as it is. NaN and ±Inf
-// samples are measured as 0 and counted in Result.NonFinite, so that one
-// bad sample cannot poison the filter state for the rest of the stream.
+// Float input may exceed full scale and is measured as it is, up to
+// ±MaxMagnitude (1e100): within that bound every figure is finite (the
+// constant's comment argues why). NaN, ±Inf and larger samples are measured
+// as 0 and counted in Result.Rejected, so that one bad sample cannot poison
+// the filter state for the rest of the stream; a caller refuses the stream.
 package loudness

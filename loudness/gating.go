@@ -106,16 +106,3 @@ func loudnessRange(z []float64) Reading {
 func percentileIndex(n int, p float64) int {
 	return int(math.Round(float64(n-1) * p))
 }
-
-// maxLoudness returns the loudness of the largest z, undefined with
-// tooShort when there is none and with silent when all are zero.
-func maxLoudness(z []float64, tooShort, silent string) Reading {
-	if len(z) == 0 {
-		return undefined(tooShort)
-	}
-	m := slices.Max(z)
-	if m <= 0 {
-		return undefined(silent)
-	}
-	return defined(loudnessOf(m))
-}

@@ -34,11 +34,12 @@ type Result struct {
 	// Oversampling is the true-peak oversampling factor used (4, 2 or 1).
 	Oversampling int
 
-	// NonFinite counts NaN and ±Inf samples written. The meter measured
+	// Rejected counts the samples written that the meter cannot measure:
+	// NaN, ±Inf and finite values beyond ±MaxMagnitude. The meter measured
 	// each of them as 0 (silence) so that one bad sample cannot poison the
-	// filter state for the rest of the stream; when NonFinite is not zero
-	// the figures describe damaged audio and a caller should say so.
-	NonFinite int64
+	// filter state for the rest of the stream; when Rejected is not zero the
+	// figures describe damaged audio and a caller should say so.
+	Rejected int64
 
 	// Series holds the 10 Hz time series behind the figures above.
 	Series Series
@@ -65,6 +66,13 @@ func maxOf(v []float64) float64 {
 // first 3 momentary and 29 short-term updates) and -Inf where the window is
 // digital silence.
 //
+// That holds while Step is 1: for streams up to 2¹⁶ blocks (1 h 49 min).
+// Longer streams are decimated to keep memory bounded: each element then
+// stands for Step consecutive blocks (a power of two), and each pair of
+// elements 2k, 2k+1 holds the lowest and highest value of its 2·Step blocks
+// in the order they occurred, so every extreme survives. A decimated series
+// has between 2¹⁵ and 2¹⁶ elements whatever the length.
+//
 // At sample rates where 100 ms is not a whole number of samples (11 025 Hz:
 // 1102.5), block k ends at sample round(k·rate/10), halves rounded up, so
 // the blocks alternate in length and never drift. A final block shorter
@@ -72,6 +80,9 @@ func maxOf(v []float64) float64 {
 // Interpolated true-peak values are attributed to the block of the newest
 // input sample they use (a lag of about 5.5 input samples).
 type Series struct {
+	// Step is how many 100 ms blocks each element stands for: 1, or a
+	// power of two for a decimated series.
+	Step int
 	// Momentary is the 400 ms loudness in LUFS at each 100 ms step.
 	Momentary []float32
 	// ShortTerm is the 3 s loudness in LUFS at each 100 ms step.
@@ -82,7 +93,17 @@ type Series struct {
 	// SamplePeak is the highest |sample| over all channels inside the 100 ms
 	// block, in dBFS.
 	SamplePeak []float32
+
+	// ShortTermLevels is the distribution of every short-term value above
+	// the −70 LUFS absolute gate, never decimated: element i counts the
+	// values from −70 + i·LevelStep up to −70 + (i+1)·LevelStep LUFS. A
+	// histogram of short-term loudness drawn from it stays true for a
+	// stream of any length.
+	ShortTermLevels []int64
 }
+
+// LevelStep is the bin width of Series.ShortTermLevels in LU.
+const LevelStep = 0.1
 
 // DB converts a linear magnitude to decibels (20·log10); 0 gives -Inf.
 func DB(linear float64) float64 { return 20 * math.Log10(linear) }
@@ -90,10 +111,11 @@ func DB(linear float64) float64 { return 20 * math.Log10(linear) }
 // Meter accumulates one stream. Build it once per stream with NewMeter, feed
 // it with Write, read it with Result.
 //
-// It keeps, per 100 ms block, the weighted K-filtered energy and the peaks
-// (24 bytes), and per channel a few kilobytes of working buffer: memory grows
-// with duration by about 1 MB per hour and not at all with sample rate or
-// channel count beyond that.
+// Its memory is bounded whatever the stream's length: per channel a few
+// kilobytes of working buffer, the energies of the last 30 blocks (for the
+// 3 s window), the gating statistics (exact up to 1 h 49 min, then a
+// histogram: see histogram.go) and the decimated 10 Hz series (see Series):
+// at most a few megabytes in all.
 type Meter struct {
 	rate     int
 	channels int
@@ -103,7 +125,7 @@ type Meter struct {
 
 	frames       int64 // frames written
 	nextBoundary int64 // frame index where the current 100 ms block ends
-	nonFinite    int64
+	rejected     int64 // samples beyond MaxMagnitude, NaN included
 
 	// The current, unfinished 100 ms block.
 	energy     float64   // Σ weight·Σy² over channels
@@ -112,14 +134,17 @@ type Meter struct {
 	streamTrue []float64 // per channel, finished blocks only
 	streamPeak []float64
 
-	blocks []block // finished 100 ms blocks
-}
+	// Finished 100 ms blocks: how many, and the weighted energies
+	// (Σ weight·Σy² over channels, not yet means) of the last 30, at index
+	// block number mod 30.
+	blocks int64
+	recent [shortTermBlocks]float64
 
-// block is what the meter keeps of one finished 100 ms block.
-type block struct {
-	energy     float64 // Σ weight·Σy² over channels (not yet a mean)
-	truePeak   float64 // linear, highest over channels
-	samplePeak float64
+	momentary gatedValues // every 400 ms block: gating, maximum
+	shortTerm gatedValues // every 3 s window: loudness range, maximum
+
+	// The 10 Hz series.
+	seriesM, seriesS, seriesTP, seriesSP seriesRecorder
 }
 
 // NewMeter returns a meter for interleaved frames of len(weights) channels at
@@ -149,6 +174,12 @@ func NewMeter(sampleRate int, weights []float64) (*Meter, error) {
 		blockPeak:  make([]float64, n),
 		streamTrue: make([]float64, n),
 		streamPeak: make([]float64, n),
+		momentary:  newGatedValues(),
+		shortTerm:  newGatedValues(),
+		seriesM:    newSeriesRecorder(),
+		seriesS:    newSeriesRecorder(),
+		seriesTP:   newSeriesRecorder(),
+		seriesSP:   newSeriesRecorder(),
 	}
 	k := NewKWeighting(sampleRate)
 	for c := range n {
@@ -163,10 +194,10 @@ func NewMeter(sampleRate int, weights []float64) (*Meter, error) {
 // round(k·rate/10), halves up.
 func (m *Meter) boundary(k int64) int64 { return (k*int64(m.rate) + 5) / 10 }
 
-// NonFinite returns how many NaN or ±Inf samples have been written since
-// the meter was built or reset. Unlike Result it costs nothing, so a caller
-// can ask after every Write.
-func (m *Meter) NonFinite() int64 { return m.nonFinite }
+// Rejected returns how many samples the meter could not measure (NaN, ±Inf,
+// or beyond ±MaxMagnitude) since it was built or reset. Unlike Result it
+// costs nothing, so a caller can ask after every Write.
+func (m *Meter) Rejected() int64 { return m.rejected }
 
 // Reset makes the meter ready for a new stream with the same configuration.
 func (m *Meter) Reset() {
@@ -174,18 +205,23 @@ func (m *Meter) Reset() {
 		m.filters[c].Reset()
 		m.peaks[c].Reset()
 	}
-	m.frames, m.nonFinite, m.energy = 0, 0, 0
+	m.frames, m.rejected, m.energy = 0, 0, 0
 	m.nextBoundary = m.boundary(1)
 	clear(m.blockTrue)
 	clear(m.blockPeak)
 	clear(m.streamTrue)
 	clear(m.streamPeak)
-	m.blocks = m.blocks[:0]
+	m.blocks = 0
+	m.momentary.reset()
+	m.shortTerm.reset()
+	for _, r := range []*seriesRecorder{&m.seriesM, &m.seriesS, &m.seriesTP, &m.seriesSP} {
+		r.reset()
+	}
 }
 
 // Write feeds interleaved frames. len(frames) must be a multiple of the
-// channel count; Write panics otherwise. NaN and ±Inf samples are measured
-// as 0 and counted in Result.NonFinite.
+// channel count; Write panics otherwise. NaN, ±Inf and samples beyond
+// ±MaxMagnitude are measured as 0 and counted in Result.Rejected.
 func (m *Meter) Write(frames []float64) {
 	nch := m.channels
 	if len(frames)%nch != 0 {
@@ -214,12 +250,15 @@ func (m *Meter) process(frames []float64, n int) {
 		for i := range in {
 			v := frames[j]
 			j += nch
-			if v-v != 0 { // NaN or ±Inf
-				v = 0
-				m.nonFinite++
+			// The bits of |v| order like |v|, and NaN and ±Inf order above
+			// every finite value: one integer comparison rejects all three.
+			a := math.Float64bits(v) &^ signBit
+			if a > maxMagnitudeBits {
+				v, a = 0, 0
+				m.rejected++
 			}
 			in[i] = v
-			if a := math.Float64bits(v) &^ signBit; a > peak {
+			if a > peak {
 				peak = a
 			}
 		}
@@ -255,20 +294,40 @@ func (m *Meter) addEnergy(n int) {
 	}
 }
 
-// finishBlock closes the current 100 ms block.
+// finishBlock closes the current 100 ms block: it completes a momentary
+// window (once there are 4 blocks) and a short-term window (once there are
+// 30), feeds both to their statistics and the series, and forgets the
+// block's samples.
 func (m *Meter) finishBlock() {
-	b := block{energy: m.energy}
+	var truePeak, samplePeak float64 // linear, highest over channels
 	for c := range m.channels {
-		b.truePeak = max(b.truePeak, m.blockTrue[c])
-		b.samplePeak = max(b.samplePeak, m.blockPeak[c])
+		truePeak = max(truePeak, m.blockTrue[c])
+		samplePeak = max(samplePeak, m.blockPeak[c])
 		m.streamTrue[c] = max(m.streamTrue[c], m.blockTrue[c])
 		m.streamPeak[c] = max(m.streamPeak[c], m.blockPeak[c])
 	}
-	m.blocks = append(m.blocks, b)
+	m.recent[m.blocks%shortTermBlocks] = m.energy
+	m.blocks++
+	mom, short := float32(math.NaN()), float32(math.NaN())
+	if m.blocks >= momentaryBlocks {
+		z := m.windowEnergy(momentaryBlocks)
+		m.momentary.add(z)
+		mom = float32(loudnessOf(z))
+	}
+	if m.blocks >= shortTermBlocks {
+		z := m.windowEnergy(shortTermBlocks)
+		m.shortTerm.add(z)
+		short = float32(loudnessOf(z))
+	}
+	m.seriesM.add(mom)
+	m.seriesS.add(short)
+	m.seriesTP.add(float32(DB(truePeak)))
+	m.seriesSP.add(float32(DB(samplePeak)))
+
 	m.energy = 0
 	clear(m.blockTrue)
 	clear(m.blockPeak)
-	m.nextBoundary = m.boundary(int64(len(m.blocks)) + 1)
+	m.nextBoundary = m.boundary(m.blocks + 1)
 }
 
 // Window lengths in 100 ms blocks.
@@ -277,22 +336,16 @@ const (
 	shortTermBlocks = 30 // 3 s
 )
 
-// windowEnergies returns, for every window of size consecutive finished
-// 100 ms blocks, the weighted mean square Σ weight·zᵢ of the window.
-func (m *Meter) windowEnergies(size int) []float64 {
-	if len(m.blocks) < size {
-		return nil
+// windowEnergy returns the weighted mean square Σ weight·zᵢ of the window
+// of size consecutive blocks that ends with the last finished block (at
+// most shortTermBlocks). The block energies are added oldest first.
+func (m *Meter) windowEnergy(size int) float64 {
+	sum := 0.0
+	for k := m.blocks - int64(size); k < m.blocks; k++ {
+		sum += m.recent[k%shortTermBlocks]
 	}
-	z := make([]float64, len(m.blocks)-size+1)
-	for j := range z {
-		sum := 0.0
-		for _, b := range m.blocks[j : j+size] {
-			sum += b.energy
-		}
-		samples := m.boundary(int64(j+size)) - m.boundary(int64(j))
-		z[j] = sum / float64(samples)
-	}
-	return z
+	samples := m.boundary(m.blocks) - m.boundary(m.blocks-int64(size))
+	return sum / float64(samples)
 }
 
 // Result returns the measurement of everything written so far. It may be
@@ -303,7 +356,7 @@ func (m *Meter) Result() Result {
 		Channels:     m.channels,
 		Frames:       m.frames,
 		Oversampling: m.peaks[0].Factor(),
-		NonFinite:    m.nonFinite,
+		Rejected:     m.rejected,
 		TruePeak:     make([]float64, m.channels),
 		SamplePeak:   make([]float64, m.channels),
 	}
@@ -313,38 +366,18 @@ func (m *Meter) Result() Result {
 		r.SamplePeak[c] = max(m.streamPeak[c], m.blockPeak[c])
 	}
 
-	momentary := m.windowEnergies(momentaryBlocks)
-	shortTerm := m.windowEnergies(shortTermBlocks)
-	r.Integrated = gatedLoudness(momentary)
-	r.LoudnessRange = loudnessRange(shortTerm)
-	r.MaxMomentary = maxLoudness(momentary, whyTooShortBlock, whySilentBlocks)
-	r.MaxShortTerm = maxLoudness(shortTerm, whyTooShortShort, whySilentWindows)
+	r.Integrated = m.momentary.integrated()
+	r.LoudnessRange = m.shortTerm.loudnessRange()
+	r.MaxMomentary = m.momentary.maximum(whyTooShortBlock, whySilentBlocks)
+	r.MaxShortTerm = m.shortTerm.maximum(whyTooShortShort, whySilentWindows)
+	r.Series = Series{
+		Step:       m.seriesM.step,
+		Momentary:  m.seriesM.series(),
+		ShortTerm:  m.seriesS.series(),
+		TruePeak:   m.seriesTP.series(),
+		SamplePeak: m.seriesSP.series(),
 
-	n := len(m.blocks)
-	s := Series{
-		Momentary:  seriesOf(momentary, n),
-		ShortTerm:  seriesOf(shortTerm, n),
-		TruePeak:   make([]float32, n),
-		SamplePeak: make([]float32, n),
+		ShortTermLevels: m.shortTerm.levels(),
 	}
-	for i, b := range m.blocks {
-		s.TruePeak[i] = float32(DB(b.truePeak))
-		s.SamplePeak[i] = float32(DB(b.samplePeak))
-	}
-	r.Series = s
 	return r
-}
-
-// seriesOf turns the energies of windows ending at blocks n−len(z)…n−1 into
-// n loudness values, NaN before the first full window.
-func seriesOf(z []float64, n int) []float32 {
-	out := make([]float32, n)
-	lead := n - len(z)
-	for i := range lead {
-		out[i] = float32(math.NaN())
-	}
-	for j, v := range z {
-		out[lead+j] = float32(loudnessOf(v))
-	}
-	return out
 }

@@ -241,8 +241,8 @@ func TestNonFinite(t *testing.T) {
 	clean := measure(t, 48000, []float64{1, 1}, x, 0)
 	x[1000], x[1001], x[5000] = math.NaN(), math.Inf(1), math.Inf(-1)
 	r := measure(t, 48000, []float64{1, 1}, x, 7)
-	if r.NonFinite != 3 {
-		t.Errorf("NonFinite = %d, want 3", r.NonFinite)
+	if r.Rejected != 3 {
+		t.Errorf("Rejected = %d, want 3", r.Rejected)
 	}
 	if d := r.Integrated.Value - clean.Integrated.Value; !r.Integrated.Defined || math.Abs(d) > 0.01 {
 		t.Errorf("integrated %+v, clean %v", r.Integrated, clean.Integrated.Value)
@@ -262,16 +262,16 @@ func TestNonFiniteRunningCount(t *testing.T) {
 		t.Fatal(err)
 	}
 	m.Write([]float64{0.1, 0.1, math.NaN(), 0.2})
-	if m.NonFinite() != 1 {
-		t.Errorf("after one NaN: %d", m.NonFinite())
+	if m.Rejected() != 1 {
+		t.Errorf("after one NaN: %d", m.Rejected())
 	}
 	m.Write([]float64{math.Inf(1), math.Inf(-1)})
-	if got := m.NonFinite(); got != 3 || m.Result().NonFinite != 3 {
-		t.Errorf("after three: running %d, Result %d", got, m.Result().NonFinite)
+	if got := m.Rejected(); got != 3 || m.Result().Rejected != 3 {
+		t.Errorf("after three: running %d, Result %d", got, m.Result().Rejected)
 	}
 	m.Reset()
-	if m.NonFinite() != 0 {
-		t.Errorf("after Reset: %d", m.NonFinite())
+	if m.Rejected() != 0 {
+		t.Errorf("after Reset: %d", m.Rejected())
 	}
 }
 

@@ -9,6 +9,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"runtime"
+	"runtime/debug"
 	"strconv"
 	"strings"
 	"testing"
@@ -59,27 +60,36 @@ func BenchmarkFile48kStereo24(b *testing.B) {
 	clock.Report(60)
 }
 
-// synthWAV is a 48 kHz stereo 24-bit WAV file of any length that exists
-// only as a formula: its header is real and its samples are computed from
-// their offset, so a multi-hour file can be decoded by the real WAV reader
-// without gigabytes of disk.
+// synthWAV is a PCM WAV file of any length that exists only as a formula:
+// its header is real and its samples are computed from their offset, so a
+// multi-hour file can be decoded by the real WAV reader without gigabytes
+// of disk.
 type synthWAV struct {
 	header []byte
 	size   int64
 	pos    int64
+	width  int64 // bytes per sample
 }
 
-func newSynthWAV(seconds int) *synthWAV {
-	data := int64(seconds) * rate * 6
-	h := []byte("RIFF\x00\x00\x00\x00WAVEfmt \x10\x00\x00\x00\x01\x00\x02\x00")
-	h = binary.LittleEndian.AppendUint32(h, rate)
-	h = binary.LittleEndian.AppendUint32(h, rate*6)
-	h = binary.LittleEndian.AppendUint16(h, 6)
-	h = binary.LittleEndian.AppendUint16(h, 24)
+// newSynthWAV is a 48 kHz stereo 24-bit synthWAV.
+func newSynthWAV(seconds int) *synthWAV { return newSynthWAVOf(rate, 2, 24, seconds) }
+
+// newSynthWAVOf is a synthWAV of the given rate, channel count and bit
+// depth (16 or 24).
+func newSynthWAVOf(sampleRate, channels, bits, seconds int) *synthWAV {
+	width := bits / 8
+	frame := channels * width
+	data := int64(seconds) * int64(sampleRate*frame)
+	h := []byte("RIFF\x00\x00\x00\x00WAVEfmt \x10\x00\x00\x00\x01\x00")
+	h = binary.LittleEndian.AppendUint16(h, uint16(channels))
+	h = binary.LittleEndian.AppendUint32(h, uint32(sampleRate))
+	h = binary.LittleEndian.AppendUint32(h, uint32(sampleRate*frame))
+	h = binary.LittleEndian.AppendUint16(h, uint16(frame))
+	h = binary.LittleEndian.AppendUint16(h, uint16(bits))
 	h = append(h, "data"...)
 	h = binary.LittleEndian.AppendUint32(h, uint32(data))
 	binary.LittleEndian.PutUint32(h[4:], uint32(int64(len(h))+data-8))
-	return &synthWAV{header: h, size: int64(len(h)) + data}
+	return &synthWAV{header: h, size: int64(len(h)) + data, width: int64(width)}
 }
 
 func (s *synthWAV) ReadAt(p []byte, off int64) (int, error) {
@@ -96,7 +106,7 @@ func (s *synthWAV) ReadAt(p []byte, off int64) (int, error) {
 			k := off - int64(len(s.header))
 			v := uint64(k) * 0x9E3779B97F4A7C15
 			b := byte(v >> 56)
-			if k%3 == 2 {
+			if k%s.width == s.width-1 {
 				b = byte(int8(b) / 4)
 			}
 			p[n] = b
@@ -170,4 +180,49 @@ func peakRSS() (float64, bool) {
 		}
 	}
 	return 0, false
+}
+
+// BenchmarkDayMemory measures a 24-hour stream (864 000 blocks of 100 ms,
+// the engine's unit of state) through the real WAV reader with the series
+// kept for plots, as --report does, and reports the process's peak resident
+// set (Linux VmHWM) for it and for a 10-minute stream of the same kind
+// measured first in the same run: rss-ratio is 24 h over 10 min, 1.0 when
+// memory does not grow with length. The stream is 8 kHz mono 16-bit, so a
+// day of blocks takes seconds, not an hour (the engine's per-block state
+// does not depend on rate or channels). Requirement: peak RSS under 64 MB.
+// Run it alone:
+//
+//	go test -run '^$' -bench DayMemory -benchtime 1x ./measure
+func BenchmarkDayMemory(b *testing.B) {
+	run := func(seconds int) float64 {
+		debug.FreeOSMemory()
+		resetPeakRSS()
+		d, err := decode.New(newSynthWAVOf(8000, 1, 16, seconds))
+		if err != nil {
+			b.Fatal(err)
+		}
+		m := measure.Stream(context.Background(), "day.wav", d, measure.Options{KeepSeries: true})
+		if m.Error != "" || m.DurationS != float64(seconds) || m.IntegratedLUFS == nil || m.Series == nil {
+			b.Fatalf("error %q, duration %v", m.Error, m.DurationS)
+		}
+		hwm, ok := peakRSS()
+		if !ok {
+			b.Skip("no /proc/self/status: peak RSS unknown on this system")
+		}
+		return hwm
+	}
+	var short, day float64
+	for b.Loop() {
+		short = run(600)
+		day = run(24 * 3600)
+	}
+	b.ReportMetric(day, "peak-RSS-MB")
+	b.ReportMetric(day/short, "rss-ratio")
+}
+
+// resetPeakRSS sets the process's peak resident set back to its current
+// resident set (Linux: 5 written to /proc/self/clear_refs); elsewhere it
+// does nothing.
+func resetPeakRSS() {
+	_ = os.WriteFile("/proc/self/clear_refs", []byte("5"), 0)
 }

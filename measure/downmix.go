@@ -69,8 +69,10 @@ func newDownmixer(layout []string, sampleRate int) *downmixer {
 	return d
 }
 
-// write folds and meters one block of interleaved frames.
-func (d *downmixer) write(buf []float64) {
+// write folds and meters one block of interleaved frames. It returns the
+// index of the first frame whose fold-down the meter had to reject (beyond
+// loudness.MaxMagnitude), or -1.
+func (d *downmixer) write(buf []float64) int {
 	frames := len(buf) / d.channels
 	if cap(d.stereo) < 2*frames {
 		d.stereo = make([]float64, 2*frames)
@@ -85,7 +87,12 @@ func (d *downmixer) write(buf []float64) {
 		}
 		out[2*f], out[2*f+1] = lo, ro
 	}
+	before := d.meter.Rejected()
 	d.meter.Write(out)
+	if d.meter.Rejected() == before {
+		return -1
+	}
+	return firstRejected(out) / 2
 }
 
 // result returns the fold-down's figures.

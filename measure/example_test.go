@@ -34,3 +34,13 @@ func ExampleStream() {
 	// integrated -23.0 LUFS, true peak -23.0 dBTP, sample peak -23.0 dBFS
 	// correlation 1.00, dual mono true
 }
+
+// ExampleUndeclaredText words what a header leaves out: here a WAV whose
+// data chunk declares 10 s of 48 kHz mono 16-bit audio while 10 s more
+// follow it.
+func ExampleUndeclaredText() {
+	u := &decode.Undeclared{Offset: 960044, Bytes: 960000, Seconds: 10}
+	fmt.Println(measure.UndeclaredText(10, u))
+	// Output:
+	// the header declares 10.0 s but 10.0 s more audio-like data follows (960000 bytes from byte 960044 that are neither chunks nor tags)
+}

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 
 	"github.com/kweigh/kweigh/decode"
@@ -26,7 +27,8 @@ type Options struct {
 	// DefaultClipRunMinSamples.
 	ClipRunMinSamples int
 	// KeepSeries keeps the 10 Hz time series in Measurement.Series (for
-	// plots).
+	// plots). Their size is bounded: past 1 h 49 min the engine decimates
+	// them (see loudness.Series).
 	KeepSeries bool
 	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
 	// passed to this file's decoder only.
@@ -103,13 +105,13 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		return fail(fmt.Errorf("header declares %d channels at %d Hz", info.Channels, info.SampleRate))
 	}
 
-	layout, source, err := chooseLayout(info, opt.Layout)
-	if err != nil {
-		return fail(err)
-	}
+	layout, source, note := chooseLayout(info, opt.Layout)
 	m.ChannelLayout, m.LayoutSource = layout, source
+	if note != "" {
+		m.Notes = append(m.Notes, note)
+	}
 	if source == "default" && info.Channels > 2 {
-		m.Notes = append(m.Notes, fmt.Sprintf("the file does not declare its channel layout; assumed %v by channel count (override with a layout option)", layout))
+		m.Notes = append(m.Notes, fmt.Sprintf("the file does not declare its channel layout; assumed %v by channel count (override with --layout)", layout))
 	}
 	weights, err := loudness.Weights(layout)
 	if err != nil {
@@ -140,19 +142,23 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		n, err := d.ReadFrames(buf)
 		if n > 0 {
 			block := buf[:n*info.Channels]
-			// The engine counts NaN and ±Inf samples as it goes; only when
-			// it has seen one is the block searched for where.
-			before := meter.NonFinite()
+			// The engine counts the samples it cannot measure (NaN, ±Inf,
+			// beyond loudness.MaxMagnitude) as it goes; only when it has
+			// seen one is the block searched for where.
+			before := meter.Rejected()
 			meter.Write(block)
-			if meter.NonFinite() != before {
-				i := firstNonFinite(block)
+			if meter.Rejected() != before {
+				i := firstRejected(block)
 				at := frames + int64(i/info.Channels)
-				return fail(fmt.Errorf("sample %d of channel %s (%.3f s) is %v: the file holds invalid floating-point audio and cannot be measured",
-					at, layout[i%info.Channels], float64(at)/float64(info.SampleRate), block[i]))
+				return fail(unmeasurable(at, layout[i%info.Channels], info.SampleRate, block[i]))
 			}
 			hyg.write(block)
 			if fold != nil {
-				fold.write(block)
+				if f := fold.write(block); f >= 0 {
+					at := frames + int64(f)
+					return fail(fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
+						at, float64(at)/float64(info.SampleRate), sci(loudness.MaxMagnitude)))
+				}
 			}
 			frames += int64(n)
 		}
@@ -180,6 +186,10 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 	if n, ok := d.(decode.Noter); ok {
 		m.Notes = append(m.Notes, n.Notes()...)
 	}
+	if u := info.Undeclared; u != nil {
+		m.Undeclared = u
+		m.Notes = append(m.Notes, UndeclaredText(m.DurationS, u)+"; only the declared audio was measured")
+	}
 	fillLoudness(m, r)
 	if fold != nil {
 		m.StereoDownmix = fold.result()
@@ -193,30 +203,48 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 }
 
 // chooseLayout picks the user's layout, then the file's, then the default
-// by channel count.
-func chooseLayout(info decode.Info, user []string) ([]string, string, error) {
-	switch {
-	case user != nil:
-		if len(user) != info.Channels {
-			return nil, "", fmt.Errorf("the layout option names %d channels but the file has %d", len(user), info.Channels)
-		}
-		return user, "user", nil
-	case len(info.Layout) == info.Channels:
-		return info.Layout, "file", nil
-	default:
-		return decode.DefaultLayout(info.Channels), "default", nil
+// by channel count. A user layout applies only to files whose channel
+// count it fits: in a mixed batch the others keep their own layout, with a
+// note saying so.
+func chooseLayout(info decode.Info, user []string) (layout []string, source, note string) {
+	if user != nil && len(user) == info.Channels {
+		return user, "user", ""
 	}
+	if user != nil {
+		note = fmt.Sprintf("--layout %s names %d channels but the file has %d: it was not applied to this file", strings.Join(user, ","), len(user), info.Channels)
+	}
+	if len(info.Layout) == info.Channels {
+		return info.Layout, "file", note
+	}
+	return decode.DefaultLayout(info.Channels), "default", note
 }
 
-// firstNonFinite returns the index of the first NaN or ±Inf sample, or -1.
-func firstNonFinite(v []float64) int {
+// firstRejected returns the index of the first sample the engine rejects
+// (NaN, ±Inf, or beyond ±loudness.MaxMagnitude), or -1.
+func firstRejected(v []float64) int {
 	for i, x := range v {
-		// x-x is NaN for both NaN and ±Inf, 0 otherwise.
-		if x-x != 0 {
+		if !(math.Abs(x) <= loudness.MaxMagnitude) { // true for NaN too
 			return i
 		}
 	}
 	return -1
+}
+
+// unmeasurable is the error for a sample the engine rejects: invalid
+// floating-point data (NaN, ±Inf), or a finite value so far beyond full
+// scale that its squared sums could overflow (see loudness.MaxMagnitude).
+func unmeasurable(frame int64, channel string, rate int, x float64) error {
+	at := fmt.Sprintf("sample %d of channel %s (%.3f s)", frame, channel, float64(frame)/float64(rate))
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return fmt.Errorf("%s is %v: the file holds invalid floating-point audio and cannot be measured", at, x)
+	}
+	return fmt.Errorf("%s is %s: far beyond full scale, cannot be measured (kweigh measures samples up to ±%s)",
+		at, sci(x), sci(loudness.MaxMagnitude))
+}
+
+// sci writes a huge sample value briefly, e.g. 1e300 or -2.5e155.
+func sci(x float64) string {
+	return strings.Replace(strconv.FormatFloat(x, 'g', 4, 64), "e+", "e", 1)
 }
 
 // fillLoudness copies the engine's result into the record, turning
@@ -264,4 +292,17 @@ func peak(linear float64) *float64 {
 	}
 	v := loudness.DB(linear)
 	return &v
+}
+
+// UndeclaredText says in words what a file holds beyond the declared
+// seconds of audio, e.g. "the header declares 10.0 s but 10.0 s more
+// audio-like data follows (960000 bytes from byte 960044 that are neither
+// chunks nor tags)". Less than 0.05 s is given in bytes.
+func UndeclaredText(declaredS float64, u *decode.Undeclared) string {
+	if u.Seconds < 0.05 {
+		return fmt.Sprintf("the header declares %.1f s but %d more bytes follow the audio from byte %d that are neither chunks nor tags",
+			declaredS, u.Bytes, u.Offset)
+	}
+	return fmt.Sprintf("the header declares %.1f s but %.1f s more audio-like data follows (%d bytes from byte %d that are neither chunks nor tags)",
+		declaredS, u.Seconds, u.Bytes, u.Offset)
 }

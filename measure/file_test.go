@@ -155,9 +155,16 @@ func TestLayoutOverride(t *testing.T) {
 	if len(def.Notes) == 0 || !strings.Contains(strings.Join(def.Notes, " "), "does not declare its channel layout") {
 		t.Errorf("default layout of a 6-channel file needs a note: %v", def.Notes)
 	}
-	bad := measure.File(context.Background(), path, measure.Options{Layout: []string{"L", "R"}})
-	if !strings.Contains(bad.Error, "2 channels but the file has 6") {
-		t.Errorf("mismatched layout: %q", bad.Error)
+	if !strings.Contains(strings.Join(def.Notes, " "), "--layout") {
+		t.Errorf("the missing-layout note should name the option --layout: %v", def.Notes)
+	}
+	// A layout that does not fit the channel count is not applied (a mixed
+	// batch keeps every other file measurable); the file keeps its own
+	// layout with a note.
+	other := measure.File(context.Background(), path, measure.Options{Layout: []string{"L", "R"}})
+	if other.Error != "" || other.LayoutSource != "default" || *other.IntegratedLUFS != *def.IntegratedLUFS ||
+		!strings.Contains(strings.Join(other.Notes, " "), "names 2 channels but the file has 6: it was not applied") {
+		t.Errorf("layout for another channel count: error %q, source %q, notes %v", other.Error, other.LayoutSource, other.Notes)
 	}
 }
 

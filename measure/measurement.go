@@ -51,8 +51,12 @@ type Measurement struct {
 
 	// Damaged is set when decoding found the audio damaged (truncated data,
 	// CRC or MD5 mismatch): the figures describe only what could be decoded.
-	Damaged string   `json:"damaged,omitempty"`
-	Notes   []string `json:"notes"`
+	Damaged string `json:"damaged,omitempty"`
+	// Undeclared is set when the file holds audio-like data after the
+	// audio its header declares (bytes that are neither chunks nor tags):
+	// the figures cover only the declared audio.
+	Undeclared *decode.Undeclared `json:"undeclared_data,omitempty"`
+	Notes      []string           `json:"notes"`
 	// Error is set when the file could not be measured at all; the other
 	// fields are then zero.
 	Error string `json:"error,omitempty"`

@@ -115,6 +115,8 @@ type measureSummaryJSON struct {
 	Errors       int      `json:"errors"`
 	AudioSeconds float64  `json:"audio_s"`
 	Elapsed      *float64 `json:"elapsed_s"`
+	Interrupted  bool     `json:"interrupted,omitempty"`
+	Unfinished   int      `json:"unfinished,omitempty"`
 }
 
 // checkSummaryJSON is the "summary" member of a check document.
@@ -126,6 +128,8 @@ type checkSummaryJSON struct {
 	Errors       int      `json:"errors"`
 	AudioSeconds float64  `json:"audio_s"`
 	Elapsed      *float64 `json:"elapsed_s"`
+	Interrupted  bool     `json:"interrupted,omitempty"`
+	Unfinished   int      `json:"unfinished,omitempty"`
 }
 
 // measureJSON writes measurements as one JSON document.
@@ -142,6 +146,7 @@ func (w *measureJSON) Close(s Summary) error {
 	return w.doc.finish(measureSummaryJSON{
 		Files: s.Files, Measured: s.Measured(), Damaged: s.Damaged, Errors: s.Errors,
 		AudioSeconds: audioSeconds(s), Elapsed: elapsedSeconds(s),
+		Interrupted: s.Interrupted, Unfinished: s.Unfinished,
 	})
 }
 
@@ -159,5 +164,6 @@ func (w *checkJSON) Close(s Summary) error {
 	return w.doc.finish(checkSummaryJSON{
 		Files: s.Files, Passed: s.Passed, Warned: s.Warned, Failed: s.Failed, Errors: s.Errors,
 		AudioSeconds: audioSeconds(s), Elapsed: elapsedSeconds(s),
+		Interrupted: s.Interrupted, Unfinished: s.Unfinished,
 	})
 }

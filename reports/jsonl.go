@@ -37,8 +37,18 @@ func (w *measureJSONL) Write(m *measure.Measurement) error {
 	return w.lines.line(m, measurementPath(m))
 }
 
-// Close flushes; JSON Lines has no summary line.
-func (w *measureJSONL) Close(Summary) error { return w.lines.close() }
+// Close flushes. A complete run has no summary line; an interrupted one
+// ends with {"summary": {..., "interrupted": true}} so that a reader of the
+// stream knows files are missing.
+func (w *measureJSONL) Close(s Summary) error {
+	if s.Interrupted {
+		w.lines.line(map[string]any{"summary": measureSummaryJSON{
+			Files: s.Files, Measured: s.Measured(), Damaged: s.Damaged, Errors: s.Errors,
+			AudioSeconds: audioSeconds(s), Elapsed: elapsedSeconds(s), Interrupted: true, Unfinished: s.Unfinished,
+		}}, "summary")
+	}
+	return w.lines.close()
+}
 
 // checkJSONL writes one result per line.
 type checkJSONL struct{ lines *jsonLines }
@@ -50,5 +60,14 @@ func (w *checkJSONL) Write(r *rules.Result) error {
 	return w.lines.line(r, measurementPath(r.Measurement))
 }
 
-// Close flushes; JSON Lines has no summary line.
-func (w *checkJSONL) Close(Summary) error { return w.lines.close() }
+// Close flushes; an interrupted run ends with a summary line (see
+// measureJSONL.Close).
+func (w *checkJSONL) Close(s Summary) error {
+	if s.Interrupted {
+		w.lines.line(map[string]any{"summary": checkSummaryJSON{
+			Files: s.Files, Passed: s.Passed, Warned: s.Warned, Failed: s.Failed, Errors: s.Errors,
+			AudioSeconds: audioSeconds(s), Elapsed: elapsedSeconds(s), Interrupted: true, Unfinished: s.Unfinished,
+		}}, "summary")
+	}
+	return w.lines.close()
+}

@@ -179,6 +179,15 @@ func (j *checkJUnit) Close(s Summary) error {
 			doc.Failures += suite.Failures
 			doc.Errors += suite.Errors
 		}
+		if s.Interrupted {
+			// A CI system must not read a partial run as complete: one
+			// error case says what is missing.
+			problem := fmt.Sprintf("the run was interrupted: %s not checked", plural(s.Unfinished, "file"))
+			doc.Suites = append(doc.Suites, junitSuite{Name: "kweigh run", Tests: 1, Errors: 1, Timestamp: stamp,
+				Cases: []junitCase{{ClassName: "kweigh", Name: "run complete", Error: &junitProblem{Message: problem, Type: "interrupted"}}}})
+			doc.Tests++
+			doc.Errors++
+		}
 		j.print(xml.Header)
 		enc := xml.NewEncoder(j.buf)
 		enc.Indent("", "  ")

@@ -25,6 +25,11 @@ type Summary struct {
 	AudioSeconds float64
 	// Elapsed is the wall time of the run; zero when unknown.
 	Elapsed time.Duration
+	// Interrupted is set when the run was stopped (a signal, a cancelled
+	// context) before every file was done; Unfinished counts the files
+	// left out. Every report then says so.
+	Interrupted bool
+	Unfinished  int
 }
 
 // Add counts one check result.
@@ -65,6 +70,7 @@ func (s Summary) Measured() int { return s.Files - s.Errors }
 // "2 passed, 1 warned, 1 failed, 0 errors · 4 files, 1:52:10.4 of audio checked in 3.2 s".
 func (s Summary) String() string {
 	var b strings.Builder
+	b.WriteString(s.interruption())
 	fmt.Fprintf(&b, "%d passed, %d warned, %d failed, %s · %s, %s of audio checked",
 		s.Passed, s.Warned, s.Failed, plural(s.Errors, "error"), plural(s.Files, "file"), Duration(s.AudioSeconds))
 	if s.Elapsed > 0 {
@@ -77,6 +83,7 @@ func (s Summary) String() string {
 // "3 files measured, 1 could not be · 1:52:10.4 of audio in 3.2 s".
 func (s Summary) MeasureString() string {
 	var b strings.Builder
+	b.WriteString(s.interruption())
 	fmt.Fprintf(&b, "%s measured", plural(s.Measured(), "file"))
 	if s.Damaged > 0 {
 		fmt.Fprintf(&b, " (%d only in part: damaged)", s.Damaged)
@@ -89,6 +96,14 @@ func (s Summary) MeasureString() string {
 		fmt.Fprintf(&b, " in %s", WallTime(s.Elapsed))
 	}
 	return b.String()
+}
+
+// interruption heads an interrupted run's summary line.
+func (s Summary) interruption() string {
+	if !s.Interrupted {
+		return ""
+	}
+	return fmt.Sprintf("INTERRUPTED: %s not done · ", plural(s.Unfinished, "file"))
 }
 
 func plural(n int, noun string) string {

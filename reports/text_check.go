@@ -46,7 +46,7 @@ func (t *checkText) Write(r *rules.Result) error {
 	}
 	t.files++
 	v := fileVerdict(r)
-	head := t.verdictCell(v) + "  " + measurementPath(r.Measurement)
+	head := t.verdictCell(v) + "  " + Printable(measurementPath(r.Measurement))
 	if r.Spec != t.opts.Spec && r.Spec != "" {
 		head += "  (spec " + r.Spec + ")"
 	}
@@ -57,7 +57,7 @@ func (t *checkText) Write(r *rules.Result) error {
 		t.detail("could not be checked: no measurement")
 	case m.Error != "":
 		// The rules' checks for such a file only repeat the message.
-		t.detail("could not be checked: " + m.Error)
+		t.detail("could not be checked: " + Printable(m.Error))
 	default:
 		t.detail(figuresText(r))
 		if m.Damaged != "" && !damageExplained(r.Checks, m.Damaged) {
@@ -121,7 +121,7 @@ func (t *checkText) checks(all []rules.Check) {
 		t.detail(fmt.Sprintf("%s %s  %s  limit %s", verdict,
 			padRight(c.ID, idWidth), padRight(Measured(c.Measured, c.Unit), measuredWidth), c.Limit))
 		if c.Reason != "" {
-			t.detail(reasonIndent + c.Reason)
+			t.detail(reasonIndent + Printable(c.Reason))
 		}
 	}
 	if len(shown) > 0 && passed > 0 {

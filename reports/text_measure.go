@@ -52,9 +52,9 @@ func (t *measureText) Write(m *measure.Measurement) error {
 		t.print("\n")
 	}
 	t.files++
-	t.print(m.Path + "\n")
+	t.print(Printable(m.Path) + "\n")
 	if m.Error != "" {
-		t.line("ERROR", "could not be measured: "+m.Error)
+		t.line("ERROR", "could not be measured: "+Printable(m.Error))
 		t.notes(m.Notes)
 		return t.flush()
 	}

@@ -27,6 +27,14 @@ func advise(s *Spec, m *measure.Measurement) (gain, limiter *float64, advice str
 	if m.Damaged != "" {
 		return nil, nil, "Deliver the file again: its audio is damaged, so no level fix is offered."
 	}
+	if u := m.Undeclared; u != nil && u.Seconds >= undeclaredFailS {
+		return nil, nil, "Deliver the file again with a header that declares all of its audio: the figures cover only the declared part, so no level fix is offered."
+	}
+	for _, v := range []*float64{m.IntegratedLUFS, m.TruePeakDBTP, m.MaxShortTermLUFS, m.MaxMomentaryLUFS} {
+		if v != nil && !finite(*v) {
+			return nil, nil, "Measure the file again: its figures are not numbers, so no level fix is offered."
+		}
+	}
 	var sentences []string
 	g := 0.0
 	lo, hi, aim, hasIntegrated := s.integratedWindow(m.Channels)

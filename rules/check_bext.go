@@ -49,6 +49,9 @@ func checkBextLoudness(j *judge) (Check, bool) {
 			off = append(off, fmt.Sprintf("%s declared %s %s but undefined in the audio", f.what, signed(*f.declared, 1), f.unit))
 			continue
 		}
+		if notFinite(&c, *f.measured, "measured "+f.what) {
+			return c, true
+		}
 		d := math.Abs(*f.measured - *f.declared)
 		if d > worst {
 			worst = d

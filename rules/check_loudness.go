@@ -56,6 +56,9 @@ func checkIntegrated(j *judge) (Check, bool) {
 		return c, true
 	}
 	v := *m.IntegratedLUFS
+	if notFinite(&c, v, "integrated loudness") {
+		return c, true
+	}
 	c.Measured = round2(v)
 	margin := hundredths(s.Loudness.WarnMarginLU)
 	if t := s.targetFor(m.Channels); t != nil {
@@ -164,6 +167,9 @@ func checkMaximum(limit, value *float64, d maximum) (Check, bool) {
 		return c, true
 	}
 	v := *value
+	if notFinite(&c, v, d.what) {
+		return c, true
+	}
 	c.Measured = round2(v)
 	diff := float64(hundredths(v)-hundredths(lim)) / 100
 	switch {
@@ -202,6 +208,9 @@ func checkLoudnessRange(j *judge) (Check, bool) {
 		return c, true
 	}
 	v := *j.m.LoudnessRangeLU
+	if notFinite(&c, v, "loudness range") {
+		return c, true
+	}
 	c.Measured = round2(v)
 	c.Verdict, c.Reason = judgeRange(v, l.MinLRALU, l.MaxLRALU, out, rangeWords{
 		what: "loudness range", unit: "LU", over: "wider", under: "narrower", limit: limitNum,
@@ -262,6 +271,9 @@ func checkDownmixIntegrated(j *judge) (Check, bool) {
 		return c, true
 	}
 	v := *m.StereoDownmix.IntegratedLUFS
+	if notFinite(&c, v, "the stereo fold-down's integrated loudness") {
+		return c, true
+	}
 	c.Measured = round2(v)
 	margin := hundredths(s.Loudness.WarnMarginLU)
 	var reason string

@@ -59,6 +59,9 @@ func checkDCOffset(j *judge) (Check, bool) {
 	c := Check{ID: "dc_offset", Unit: "dBFS", Limit: fmt.Sprintf("≤ %s dBFS%s", limitNum(limit), suffix)}
 	worst, at := 0.0, 0
 	for i, x := range dc {
+		if notFinite(&c, x, "DC offset of channel "+channelLabel(j.m.ChannelLayout, i)) {
+			return c, true
+		}
 		if math.Abs(x) > worst {
 			worst, at = math.Abs(x), i
 		}
@@ -108,6 +111,9 @@ func checkCorrelation(id, what string, value, limitPtr *float64, qcDefault float
 	limit, out, suffix := limitOrDefault(limitPtr, qcDefault)
 	v := *value
 	c := Check{ID: id, Measured: round2(v), Limit: fmt.Sprintf("≥ %s%s", num(limit, 2), suffix)}
+	if notFinite(&c, v, what) {
+		return c, true
+	}
 	if below(v, limit) {
 		c.Verdict = out
 		c.Reason = fmt.Sprintf("%s is %s, below %s: the channels partly cancel when folded down to mono (is one channel phase-inverted?)",

@@ -10,6 +10,9 @@ func checkDuration(j *judge) (Check, bool) {
 	}
 	v := j.m.DurationS
 	c := Check{ID: "duration", Unit: "s", Measured: round2(v), Limit: rangeLimit(t.MinDurationS, t.MaxDurationS, "s")}
+	if notFinite(&c, v, "duration") {
+		return c, true
+	}
 	c.Verdict, c.Reason = judgeRange(v, t.MinDurationS, t.MaxDurationS, Fail, rangeWords{
 		what: "duration", unit: "s", over: "longer", under: "shorter", limit: magnitude,
 	})
@@ -31,6 +34,9 @@ func checkSilence(id, where string, limit *float64, v, thresholdDBFS float64) (C
 		return Check{}, false
 	}
 	c := Check{ID: id, Unit: "s", Measured: round2(v), Limit: fmt.Sprintf("≤ %s s", magnitude(*limit))}
+	if notFinite(&c, v, where+" silence") {
+		return c, true
+	}
 	below := silenceNote(thresholdDBFS)
 	if above(v, *limit) {
 		c.Verdict = Fail

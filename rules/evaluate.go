@@ -90,14 +90,33 @@ func (v Verdict) rank() int {
 	return 0
 }
 
+// undeclaredFailS is how much undeclared audio-like data fails a file's
+// integrity check rather than warning: one 100 ms block, the engine's unit.
+// A header that declares less than the file holds makes players disagree
+// about what the programme is (some stop where the header says, others
+// play on), and the figures describe only the declared part, so a loud
+// second half could hide behind a passing verdict: that is a failed
+// delivery. Less than one block cannot hold a programme; it is more likely
+// a writer's padding or a cut tag, so it only warns.
+const undeclaredFailS = 0.1
+
 // checkIntegrity fails damaged audio: a corrupt delivery whatever its
-// figures say.
+// figures say; and a file holding data beyond what its header declares.
 func checkIntegrity(j *judge) (Check, bool) {
 	c := Check{ID: "integrity", Limit: "audio decodes without damage", Measured: "intact"}
 	if j.m.Damaged != "" {
 		c.Verdict = Fail
 		c.Measured = "damaged"
 		c.Reason = "corrupt delivery: " + j.m.Damaged + "; the figures cover only the audio that could be decoded"
+		return c, true
+	}
+	if u := j.m.Undeclared; u != nil {
+		c.Verdict, c.Measured = Warn, "undeclared data"
+		c.Limit = "audio decodes without damage; the header declares all of it"
+		if u.Seconds >= undeclaredFailS {
+			c.Verdict = Fail
+		}
+		c.Reason = measure.UndeclaredText(j.m.DurationS, u) + ": players may stop where the header ends or play on; the figures cover only the declared audio"
 		return c, true
 	}
 	c.Verdict = Pass

@@ -3,24 +3,33 @@ package rules
 import (
 	"errors"
 	"fmt"
-	"os"
+	"io"
 	"slices"
 	"sort"
 	"strings"
 	"unicode"
 
 	"github.com/BurntSushi/toml"
+
+	"github.com/kweigh/kweigh/decode"
 )
 
 // SpecFileName is the name of the per-folder spec file `kweigh check` looks
 // for in a delivery folder.
 const SpecFileName = "kweigh.toml"
 
-// LoadFile reads and parses the user spec at path (see Parse).
+// LoadFile reads and parses the user spec at path (see Parse). Only a
+// regular file is read, and at most MaxSpecBytes of it: a FIFO, a device
+// (/dev/zero) or a folder is refused at once, without blocking or reading.
 func LoadFile(path string) (*Spec, error) {
-	data, err := os.ReadFile(path)
+	f, err := decode.OpenRegular(path)
 	if err != nil {
 		return nil, fmt.Errorf("reading spec: %w", err)
+	}
+	defer f.Close()
+	data, err := io.ReadAll(io.LimitReader(f, MaxSpecBytes+1))
+	if err != nil {
+		return nil, fmt.Errorf("reading spec %s: %w", path, err)
 	}
 	return Parse(path, data)
 }
@@ -52,8 +61,15 @@ func LoadFile(path string) (*Spec, error) {
 // replaces an inherited min/max window and the other way round; a file may
 // not set both. Unknown keys, values of the wrong type or out of range,
 // unknown containers or layout labels, an unknown base and min > max are
-// errors: a SpecErrors listing each problem with file, line and key.
+// errors: a SpecErrors listing each problem with file, line and key. So are
+// a file that sets no limit and extends nothing (it would pass every file),
+// one larger than MaxSpecBytes, and one whose inline tables, arrays or
+// dotted keys nest deeper than any spec needs (checked before the TOML
+// library parses it, whose cost grows steeply with such nesting).
 func Parse(file string, data []byte) (*Spec, error) {
+	if line, problem := checkSpecShape(data); problem != "" {
+		return nil, SpecErrors{{File: file, Line: line, Problem: problem}}
+	}
 	var raw map[string]any
 	if _, err := toml.Decode(string(data), &raw); err != nil {
 		return nil, SpecErrors{syntaxError(file, err)}
@@ -81,6 +97,10 @@ func Parse(file string, data []byte) (*Spec, error) {
 		}
 	}
 	p.crossCheck(spec)
+	if _, extends := raw["extends"]; !extends && len(p.set) == 0 && len(p.errs) == 0 {
+		p.errs = append(p.errs, &SpecError{File: file, Problem: "the spec sets no limits and extends no built-in spec, so every file would pass: " +
+			`add extends = "ebu-r128" (or another built-in) or a [loudness] table`})
+	}
 	if len(p.errs) > 0 {
 		sort.SliceStable(p.errs, func(i, j int) bool { return p.errs[i].Line < p.errs[j].Line })
 		return nil, p.errs

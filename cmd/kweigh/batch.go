@@ -1,11 +1,11 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"io"
 	"os"
-	"path/filepath"
 	"runtime"
 	"strings"
 
@@ -96,30 +96,34 @@ type recordWriter[T any] interface {
 // It keeps the first error of writing so that one failing output neither
 // stops the run nor goes unreported.
 type runOutput[T any] struct {
-	file    *os.File // the --output file, nil without it
+	file    *pendingFile // the --output file, nil without it
 	writers []recordWriter[T]
 	err     error
+	// held is CSV meant for stdout, kept until the run is complete: a CSV
+	// table cannot say that rows are missing, so an interrupted run
+	// writes none (the exit status and stderr say why).
+	held   *bytes.Buffer
+	stdout io.Writer
 }
 
-// openRunOutput opens the run's outputs. newWriter is the reports
-// constructor for the command's record type; colour goes only to a
-// terminal.
-func openRunOutput[T any](o batchOptions, stdout io.Writer, opts reports.Options,
+// openRunOutput sets up the run's record writers on the prepared output
+// files. newWriter is the reports constructor for the command's record
+// type; colour goes only to a terminal.
+func openRunOutput[T any](o batchOptions, files *runFiles, stdout io.Writer, opts reports.Options,
 	newWriter func(io.Writer, reports.Format, reports.Options) (recordWriter[T], error)) (*runOutput[T], error) {
-	out := &runOutput[T]{}
+	out := &runOutput[T]{file: files.output, stdout: stdout}
 	primary := stdout
-	if o.output != "" {
-		f, err := os.Create(o.output)
-		if err != nil {
-			return nil, usageError{fmt.Errorf("--output: %w", err)}
-		}
-		out.file, primary = f, f
+	switch {
+	case out.file != nil:
+		primary = out.file
+	case o.format == reports.CSV:
+		out.held = &bytes.Buffer{}
+		primary = out.held
 	}
 	terminal := opts
 	opts.Colour = o.colour && out.file == nil
 	w, err := newWriter(primary, o.format, opts)
 	if err != nil {
-		out.closeFile()
 		return nil, usageError{err}
 	}
 	out.writers = append(out.writers, w)
@@ -127,7 +131,6 @@ func openRunOutput[T any](o batchOptions, stdout io.Writer, opts reports.Options
 		terminal.Colour = o.colour
 		console, err := newWriter(stdout, reports.Text, terminal)
 		if err != nil {
-			out.closeFile()
 			return nil, err
 		}
 		out.writers = append(out.writers, console)
@@ -144,51 +147,46 @@ func (r *runOutput[T]) write(rec T) {
 	}
 }
 
-// close closes the writers with the summary, then the --output file, and
-// returns the first error of the whole run's output.
-func (r *runOutput[T]) close(summary reports.Summary) error {
+// close closes the writers with the summary and returns the first error
+// of the whole run's output. The --output file is renamed into place only
+// when the run is complete and every write succeeded; otherwise any
+// previous file of that name stays as it was.
+func (r *runOutput[T]) close(summary reports.Summary, stderr io.Writer) error {
 	for _, w := range r.writers {
 		if err := w.Close(summary); err != nil && r.err == nil {
 			r.err = err
 		}
 	}
-	if err := r.closeFile(); err != nil && r.err == nil {
-		r.err = fmt.Errorf("--output: %w", err)
+	if r.held != nil {
+		if summary.Interrupted {
+			fmt.Fprintln(stderr, "kweigh: interrupted: the CSV table is not written (it could not show which files are missing)")
+		} else if _, err := r.stdout.Write(r.held.Bytes()); err != nil && r.err == nil {
+			r.err = err
+		}
+	}
+	if r.file == nil {
+		return r.err
+	}
+	switch {
+	case r.err != nil:
+		r.file.abort()
+		r.err = fmt.Errorf("--output %s not written: %w", r.file.final, r.err)
+	case summary.Interrupted:
+		r.file.abort()
+		fmt.Fprintf(stderr, "kweigh: interrupted: --output %s not written (a previous file of that name is kept)\n", r.file.final)
+	default:
+		if err := r.file.commit(); err != nil {
+			r.err = fmt.Errorf("--output: %w", err)
+		}
 	}
 	return r.err
-}
-
-func (r *runOutput[T]) closeFile() error {
-	if r.file == nil {
-		return nil
-	}
-	f := r.file
-	r.file = nil
-	return f.Close()
 }
 
 func noteSkipped(stderr io.Writer, paths []string) {
 	if len(paths) == 0 {
 		return
 	}
-	fmt.Fprintf(stderr, "kweigh: skipped %d file(s) that are not audio: %s\n", len(paths), strings.Join(paths, ", "))
-}
-
-// ensureDir makes the --plots folder.
-func ensureDir(dir string) error {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("--plots: %w", err)
-	}
-	return nil
-}
-
-// plotName is the SVG file name for a measured file: its path with
-// separators replaced, so files of the same name in different folders do
-// not overwrite each other.
-func plotName(path string) string {
-	clean := filepath.ToSlash(filepath.Clean(path))
-	clean = strings.TrimLeft(strings.ReplaceAll(clean, "../", ""), "/")
-	return strings.NewReplacer("/", "__", ":", "_").Replace(clean) + ".svg"
+	fmt.Fprintf(stderr, "kweigh: skipped %d file(s) that are not audio: %s\n", len(paths), reports.Printable(strings.Join(paths, ", ")))
 }
 
 // errNoAudio is returned when a run found nothing to measure: an empty
@@ -203,13 +201,22 @@ func errNoAudio(args []string) error {
 // progressive but stable), in completion order for streaming formats. Files
 // found in folders that are not audio are left out and noted on stderr at
 // the end. A progress bar runs on a terminal.
-func runBatch(ctx context.Context, o batchOptions, targets []engine.Target, opt engine.Options, stderr io.Writer, write func(i int, r engine.Record)) {
+//
+// It returns how many targets were left unfinished: never started, or
+// stopped part-way, because ctx was cancelled. Records of stopped files are
+// not handed to write: they hold no complete measurement.
+func runBatch(ctx context.Context, o batchOptions, targets []engine.Target, opt engine.Options, stderr io.Writer, write func(i int, r engine.Record)) (unfinished int) {
 	var skippedPaths []string
+	done := 0
 	bar := newProgress(stderr, len(targets))
 	engine.Run(ctx, targets, o.jobs,
 		func(ctx context.Context, t engine.Target) engine.Record { return engine.JudgeTarget(ctx, t, opt) },
 		func(i int, r engine.Record) {
 			bar.step()
+			if r.Interrupted() {
+				return
+			}
+			done++
 			if r.Skipped {
 				skippedPaths = append(skippedPaths, r.Target.Path)
 				return
@@ -219,4 +226,5 @@ func runBatch(ctx context.Context, o batchOptions, targets []engine.Target, opt 
 		!o.format.Streaming())
 	bar.done()
 	noteSkipped(stderr, skippedPaths)
+	return len(targets) - done
 }

@@ -16,7 +16,7 @@ import (
 
 func checkCommand() *cli.Command {
 	flags := append(batchFlags(reports.CheckFormats()),
-		&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` for every file: a built-in id (see 'kweigh specs') or a TOML file; without it each file is judged by the kweigh.toml of its folder (or the nearest folder above, up to the path named)"},
+		&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` for every file: a built-in id (see 'kweigh specs') or a TOML file; without it each file is judged by the nearest kweigh.toml, from its folder upwards"},
 		&cli.BoolFlag{Name: "strict", Usage: "treat warnings as failures (exit 1)"},
 	)
 	return &cli.Command{
@@ -24,8 +24,9 @@ func checkCommand() *cli.Command {
 		Usage:     "judge files against a delivery spec: verdict, reasons and the gain that fixes them",
 		ArgsUsage: "FILE|DIR|GLOB...",
 		Description: "Measures every audio file named (folders recursively) and judges it against its spec: the\n" +
-			"spec given by --spec or, without it, the kweigh.toml of the file's folder, so one run can check\n" +
-			"deliveries for several outlets. Every check is pass, warn or fail, with the measured value, the limit and\n" +
+			"spec given by --spec or, without it, the nearest kweigh.toml from the file's folder upwards\n" +
+			"(a kweigh.toml with root = true ends the search), so one run can check deliveries for several\n" +
+			"outlets. Every check is pass, warn or fail, with the measured value, the limit and\n" +
 			"a reason; loudness failures come with the gain that reaches the target and whether a limiter\n" +
 			"is needed.\n\n" +
 			"Raising gain raises level: audition corrected files at a safe monitoring level. A pass is not\n" +
@@ -82,12 +83,18 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 		}
 	}
 
+	files, err := prepareOutputs(o.batchOptions, targets)
+	if err != nil {
+		return err
+	}
+	defer files.abort()
+
 	specName := ""
 	if o.spec != nil {
 		specName = o.spec.ID
 	}
-	opts := reports.Options{Spec: specName, Strict: o.strict, Version: version}
-	out, err := openRunOutput(o.batchOptions, stdout, opts,
+	opts := reports.Options{Spec: specName, Strict: o.strict, Version: versionString()}
+	out, err := openRunOutput(o.batchOptions, files, stdout, opts,
 		func(w io.Writer, f reports.Format, opts reports.Options) (recordWriter[*rules.Result], error) {
 			return reports.NewCheckWriter(w, f, opts)
 		})
@@ -100,7 +107,7 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 	var kept []*rules.Result
 	var keptSpecs []*rules.Spec
 	opt := engine.Options{Spec: o.spec, Specs: specs, Measure: o.measureOptions()}
-	runBatch(ctx, o.batchOptions, targets, opt, stderr,
+	unfinished := runBatch(ctx, o.batchOptions, targets, opt, stderr,
 		func(_ int, rec engine.Record) {
 			r := rec.Result
 			summary.Add(r)
@@ -111,17 +118,20 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 			}
 		})
 	summary.Elapsed = time.Since(start)
-	if err := out.close(summary); err != nil {
+	summary.Interrupted = ctx.Err() != nil
+	summary.Unfinished = unfinished
+	if err := out.close(summary, stderr); err != nil {
 		return err
+	}
+	if summary.Interrupted {
+		writeVisuals(files, true, stderr, nil, nil, nil)
+		return interruption(ctx, unfinished)
 	}
 	if summary.Files == 0 {
 		return errNoAudio(args)
 	}
-	if err := writeVisuals(o.batchOptions, nil, kept, keptSpecs); err != nil {
+	if err := writeVisuals(files, false, stderr, nil, kept, keptSpecs); err != nil {
 		return err
-	}
-	if err := ctx.Err(); err != nil {
-		return fmt.Errorf("interrupted: %w", err)
 	}
 	switch {
 	case summary.Errors > 0:

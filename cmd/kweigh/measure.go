@@ -42,7 +42,12 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	if len(targets) == 0 {
 		return errNoAudio(args)
 	}
-	out, err := openRunOutput(o, stdout, reports.Options{Version: version},
+	files, err := prepareOutputs(o, targets)
+	if err != nil {
+		return err
+	}
+	defer files.abort()
+	out, err := openRunOutput(o, files, stdout, reports.Options{Version: versionString()},
 		func(w io.Writer, f reports.Format, opts reports.Options) (recordWriter[*measure.Measurement], error) {
 			return reports.NewMeasureWriter(w, f, opts)
 		})
@@ -54,7 +59,7 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	var summary reports.Summary
 	var kept []*measure.Measurement
 	opt := engine.Options{MeasureOnly: true, Measure: o.measureOptions()}
-	runBatch(ctx, o, targets, opt, stderr,
+	unfinished := runBatch(ctx, o, targets, opt, stderr,
 		func(_ int, r engine.Record) {
 			m := r.Measurement
 			summary.AddMeasurement(m)
@@ -64,17 +69,20 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 			}
 		})
 	summary.Elapsed = time.Since(start)
-	if err := out.close(summary); err != nil {
+	summary.Interrupted = ctx.Err() != nil
+	summary.Unfinished = unfinished
+	if err := out.close(summary, stderr); err != nil {
 		return err
+	}
+	if summary.Interrupted {
+		writeVisuals(files, true, stderr, nil, nil, nil)
+		return interruption(ctx, unfinished)
 	}
 	if summary.Files == 0 {
 		return errNoAudio(args)
 	}
-	if err := writeVisuals(o, kept, nil, nil); err != nil {
+	if err := writeVisuals(files, false, stderr, kept, nil, nil); err != nil {
 		return err
-	}
-	if err := ctx.Err(); err != nil {
-		return fmt.Errorf("interrupted: %w", err)
 	}
 	// A damaged file is not a complete measurement: exit 2 as for errors.
 	if n := summary.Errors + summary.Damaged; n > 0 {

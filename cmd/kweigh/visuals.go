@@ -2,10 +2,14 @@ package main
 
 import (
 	"bufio"
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
-	"os"
+	"io"
 	"path/filepath"
+	"strings"
 	"time"
+	"unicode"
 
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/reports/htmlpage"
@@ -18,9 +22,17 @@ const cautionText = "Full-scale test signals and gain increases can damage heari
 	"and the receiving party's own QC decide."
 
 // writeVisuals writes the --report page and the --plots SVGs. A measure run
-// passes measurements; a check run passes results with their specs.
-func writeVisuals(o batchOptions, ms []*measure.Measurement, rs []*rules.Result, specs []*rules.Spec) error {
-	if o.report == "" && o.plots == "" {
+// passes measurements; a check run passes results with their specs. Each
+// file is renamed into place only when complete. An interrupted run writes
+// neither: a page or plots of a partial run must not replace a complete
+// one.
+func writeVisuals(files *runFiles, interrupted bool, stderr io.Writer, ms []*measure.Measurement, rs []*rules.Result, specs []*rules.Spec) error {
+	if files.report == nil && files.plots == "" {
+		return nil
+	}
+	if interrupted {
+		files.report.abort()
+		fmt.Fprintln(stderr, "kweigh: interrupted: --report and --plots not written (previous files are kept)")
 		return nil
 	}
 	var entries []htmlpage.Entry
@@ -36,26 +48,26 @@ func writeVisuals(o batchOptions, ms []*measure.Measurement, rs []*rules.Result,
 			specNames = append(specNames, r.Spec)
 		}
 	}
-	if o.report != "" {
+	if files.report != nil {
 		title := "kweigh loudness measurement"
 		if rs != nil {
 			title = "kweigh delivery check"
 		}
 		page := htmlpage.Page{Title: title, Generated: time.Now(), Specs: specNames, Entries: entries, Caution: cautionText}
-		if err := writeFile(o.report, func(w *bufio.Writer) error { return htmlpage.Write(w, page) }); err != nil {
+		if err := writePending(files.report, func(w *bufio.Writer) error { return htmlpage.Write(w, page) }); err != nil {
 			return fmt.Errorf("--report: %w", err)
 		}
 	}
-	if o.plots != "" {
-		if err := ensureDir(o.plots); err != nil {
-			return err
-		}
+	if files.plots != "" {
 		for _, e := range entries {
 			if e.Result.Error != "" || e.Result.Series == nil {
 				continue
 			}
-			path := filepath.Join(o.plots, plotName(e.Result.Path))
-			if err := writeFile(path, func(w *bufio.Writer) error { return htmlpage.WritePlotSVG(w, e) }); err != nil {
+			p, err := createPending(filepath.Join(files.plots, plotName(e.Result.Path)))
+			if err != nil {
+				return fmt.Errorf("--plots: %w", err)
+			}
+			if err := writePending(p, func(w *bufio.Writer) error { return htmlpage.WritePlotSVG(w, e) }); err != nil {
 				return fmt.Errorf("--plots: %w", err)
 			}
 		}
@@ -63,20 +75,47 @@ func writeVisuals(o batchOptions, ms []*measure.Measurement, rs []*rules.Result,
 	return nil
 }
 
-// writeFile writes a file through a buffer and reports the first error of
-// writing, flushing or closing.
-func writeFile(path string, write func(*bufio.Writer) error) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	w := bufio.NewWriter(f)
-	err = write(w)
+// writePending writes a pending file through a buffer and puts it in place
+// only when writing and flushing succeeded; on any error the temporary file
+// is removed.
+func writePending(p *pendingFile, write func(*bufio.Writer) error) error {
+	w := bufio.NewWriter(p)
+	err := write(w)
 	if ferr := w.Flush(); err == nil {
 		err = ferr
 	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
+	if err != nil {
+		p.abort()
+		return fmt.Errorf("%s: %w", p.final, err)
 	}
-	return err
+	return p.commit()
+}
+
+// plotStemRunes bounds the readable part of a plot name, well inside the
+// 255-byte name limit of common file systems even in multi-byte scripts.
+const plotStemRunes = 60
+
+// plotName is the SVG file name for a measured file: a readable stem (the
+// file name, safe characters only, cut to plotStemRunes) and a short hash of
+// the whole cleaned path, so files of the same name in different folders,
+// or paths that differ only in characters the stem drops, never share a
+// plot, and a path of any length makes a valid name.
+func plotName(path string) string {
+	clean := filepath.ToSlash(filepath.Clean(path))
+	sum := sha256.Sum256([]byte(clean))
+	base := strings.TrimSuffix(filepath.Base(clean), filepath.Ext(clean))
+	stem := strings.Map(func(r rune) rune {
+		if unicode.IsLetter(r) || unicode.IsDigit(r) || r == '-' || r == '_' || r == '.' {
+			return r
+		}
+		return '_'
+	}, base)
+	stem = strings.TrimLeft(stem, ".")
+	if r := []rune(stem); len(r) > plotStemRunes {
+		stem = string(r[:plotStemRunes])
+	}
+	if stem == "" {
+		stem = "plot"
+	}
+	return stem + "-" + hex.EncodeToString(sum[:4]) + ".svg"
 }

@@ -65,9 +65,36 @@ func NewDecoder(src io.ReaderAt, size int64) (*Decoder, error) {
 		d.info.Frames = -1
 		d.notes = append(d.notes, fmt.Sprintf("COMM declares 0 sample frames; measuring the %d frames the SSND chunk holds", d.present))
 	case d.present > h.frames:
-		d.present = h.frames // COMM's count is authoritative; the rest is padding
+		d.present = h.frames // COMM's count decides what is played
 	}
+	d.info.Undeclared = d.undeclared(size)
 	return d, nil
+}
+
+// undeclared reports the data the header does not declare: whole frames in
+// SSND beyond COMM's count, and bytes after the chunks and tags that are
+// neither; at least one frame (and 8 bytes) of it, else nil.
+func (d *Decoder) undeclared(size int64) *decode.Undeclared {
+	h := d.h
+	var u decode.Undeclared
+	if extra := h.dataLen/d.frameBytes - d.present; h.frames > 0 && extra > 0 {
+		u.Offset = h.dataOff + d.present*d.frameBytes
+		u.Bytes = extra * d.frameBytes
+	}
+	if tail := size - h.foreign; tail > 0 {
+		if u.Bytes == 0 {
+			u.Offset = h.foreign
+		}
+		u.Bytes += tail
+	}
+	if u.Bytes < max(8, d.frameBytes) {
+		if u.Bytes > 0 {
+			d.notes = append(d.notes, fmt.Sprintf("%d stray bytes after the audio (byte %d) ignored", u.Bytes, u.Offset))
+		}
+		return nil
+	}
+	u.Seconds = float64(u.Bytes/d.frameBytes) / math.Round(h.rate)
+	return &u
 }
 
 // Info returns the stream description read from COMM.

@@ -22,6 +22,10 @@ func FuzzAIFF(f *testing.F) {
 		f.Add(b[:min(len(b), 600)])
 	}
 	f.Add(buildAIFF(aiffSpec{aifc: true, compression: "sowt", channels: 3, bits: 20, rate: 8000, ints: make([]int32, 30), commFrames: -1, formSize: -1, ssndOffset: 3}))
+	// A COMM frame count covering half of SSND, and audio after the FORM.
+	f.Add(buildAIFF(aiffSpec{channels: 1, bits: 16, rate: 8000, ints: make([]int32, 40), commFrames: 20, formSize: -1}))
+	f.Add(append(buildAIFF(aiffSpec{channels: 1, bits: 16, rate: 8000, ints: make([]int32, 20), commFrames: -1, formSize: -1}),
+		0x81, 0x7F, 0x81, 0x7F, 0x81, 0x7F, 0x81, 0x7F, 0x81, 0x7F))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		d, err := NewDecoder(bytes.NewReader(data), int64(len(data)))
 		if err != nil {
@@ -33,6 +37,9 @@ func FuzzAIFF(f *testing.F) {
 		info := d.Info()
 		if info.Channels < 1 || info.SampleRate < 1 {
 			t.Fatalf("info %+v", info)
+		}
+		if u := info.Undeclared; u != nil && (u.Bytes <= 0 || u.Offset < 0 || u.Offset+u.Bytes > int64(len(data)) || !(u.Seconds >= 0)) {
+			t.Fatalf("implausible undeclared data %+v in a %d-byte file", *u, len(data))
 		}
 		buf := make([]float64, 256*info.Channels)
 		for calls := 0; ; calls++ {

@@ -38,6 +38,10 @@ type header struct {
 	dataLen     int64 // bytes of sample frames present in the file
 	ssndEnd     int64 // where the SSND chunk claims to end
 	hasSSND     bool
+	// foreign is the offset of the first byte after the chunks and tags
+	// that is neither (audio the header does not declare?); the file size
+	// when there is none.
+	foreign int64
 }
 
 // unsupportedCompression names the AIFF-C compression types kweigh does not
@@ -75,10 +79,14 @@ func readHeader(r io.ReaderAt, size int64) (*header, error) {
 	// SSND is still missing (some writers leave a FORM size of 0 or of an
 	// earlier state of the file).
 	var hasCOMM bool
-	for off := int64(12); off+8 <= size && (off < formEnd || !hasCOMM || !h.hasSSND); {
+	off := int64(12)
+	for off+8 <= size && (off < formEnd || !hasCOMM || !h.hasSSND) {
 		var ck [8]byte
 		if _, err := r.ReadAt(ck[:], off); err != nil {
 			return nil, formatError(h.container, off, "cannot read chunk header")
+		}
+		if hasCOMM && h.hasSSND && !decode.PlausibleChunkID(ck[:4]) {
+			break // not a chunk: audio past the declared sizes?
 		}
 		id := string(ck[:4])
 		n := int64(binary.BigEndian.Uint32(ck[4:]))
@@ -101,6 +109,12 @@ func readHeader(r io.ReaderAt, size int64) (*header, error) {
 	}
 	if !h.hasSSND && h.frames > 0 {
 		return nil, formatError(h.container, 12, fmt.Sprintf("no SSND chunk, though COMM declares %d sample frames", h.frames))
+	}
+	// What follows the walk: tags and chunks past the FORM (some writers
+	// append ID3 tags), or audio the header does not declare.
+	h.foreign = size
+	if off < size {
+		h.foreign = decode.ForeignAfter(r, off, size, binary.BigEndian)
 	}
 	return h, nil
 }

@@ -8,8 +8,9 @@ import (
 
 func init() {
 	decode.Register(decode.Format{
-		Name:  "aiff",
-		Match: match,
+		Name:       "aiff",
+		Extensions: []string{"aif", "aiff", "aifc"},
+		Match:      match,
 		New: func(src decode.Source, size int64, opt decode.Options) (decode.Decoder, error) {
 			return NewDecoder(src, size)
 		},

@@ -9,8 +9,9 @@ import (
 
 func init() {
 	decode.Register(decode.Format{
-		Name:  "flac",
-		Match: match,
+		Name:       "flac",
+		Extensions: []string{"flac"},
+		Match:      match,
 		New: func(src decode.Source, size int64, opt decode.Options) (decode.Decoder, error) {
 			return NewDecoder(src, size, Options{VerifyMD5: !opt.SkipMD5})
 		},

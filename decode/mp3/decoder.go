@@ -12,8 +12,9 @@ import (
 
 func init() {
 	decode.Register(decode.Format{
-		Name:  "mp3",
-		Match: Match,
+		Name:       "mp3",
+		Extensions: []string{"mp3"},
+		Match:      Match,
 		New: func(src decode.Source, size int64, opt decode.Options) (decode.Decoder, error) {
 			return New(src, size)
 		},
@@ -57,11 +58,13 @@ type Decoder struct {
 }
 
 // New reads the first frame header, the Xing/Info header and the encoder
-// extension of src (size bytes) and returns a Decoder ready for ReadFrames.
-// It returns a *decode.FormatError when src holds no MPEG audio frame, and
-// a *decode.UnsupportedError for MPEG-2.5, free format and layers I/II.
+// extension of src (size bytes), walks the frame headers of the whole
+// stream once (the stream, not the Xing/Info header, decides what is
+// audio), and returns a Decoder ready for ReadFrames. It returns a
+// *decode.FormatError when src holds no MPEG audio frame, and a
+// *decode.UnsupportedError for MPEG-2.5, free format and layers I/II.
 func New(src decode.Source, size int64) (*Decoder, error) {
-	start, end := audioBounds(src, size)
+	start, end, tags := taggedBounds(src, size)
 	off, ok := firstFrame(src, start, end)
 	if !ok {
 		return nil, &decode.FormatError{Format: "mp3", Offset: start, Problem: "no MPEG audio frame header where the audio should start"}
@@ -87,53 +90,97 @@ func New(src decode.Source, size int64) (*Decoder, error) {
 
 	d := &Decoder{
 		info: decode.Info{
-			Container:     "mp3",
-			Codec:         h.codec(),
-			SampleRate:    h.sampleRate,
-			Channels:      h.channels(),
-			Layout:        decode.DefaultLayout(h.channels()),
-			BitsPerSample: 16,
+			Container:  "mp3",
+			Codec:      h.codec(),
+			SampleRate: h.sampleRate,
+			Channels:   h.channels(),
+			Layout:     decode.DefaultLayout(h.channels()),
+			// A lossy stream has no bit depth: the decoder's output
+			// resolution is not a property of the file.
+			BitsPerSample: 0,
 			SampleFormat:  decode.Int,
 			Frames:        -1,
 			BitRate:       h.bitRate,
 			Mode:          h.mode.String(),
+			Tags:          tags,
 		},
 		pcm:       make([]byte, 0, h.samplesPerFrame()*bytesPerDecodedFrame),
 		remaining: -1,
 	}
 	audioStart, declared := off, int64(-1)
-	if x, ok := parseXing(first, h); ok {
+	x, hasXing := parseXing(first, h)
+	if hasXing {
 		audioStart += int64(len(first))
-		declared = d.applyXing(x, h, len(first))
+		if x.hasFrames {
+			declared = int64(x.frames)
+		}
+	}
+	scan := newFrameFeed(src, audioStart, end, h, declared)
+	scan.drain()
+	d.describeRate(h, x, hasXing, scan)
+	if hasXing {
+		d.applyXing(x, h, scan.frames)
 	} else {
+		d.info.Frames = scan.frames * int64(h.samplesPerFrame())
 		d.notes = append(d.notes, fmt.Sprintf("no Xing/Info header: the encoder delay and end padding are unknown, so the audio was measured untrimmed (it starts with the decoder's %d-sample delay plus the encoder's)", SynthesisDelay))
 	}
 	d.feed = newFrameFeed(src, audioStart, end, h, declared)
+	d.feed.known = scan
 	return d, nil
 }
 
-// applyXing sets the trimming and the declared length from the Xing/Info
-// header x found in the first frame (infoLen bytes) and returns the
-// declared number of audio frames, or -1.
-func (d *Decoder) applyXing(x xingHeader, h frameHeader, infoLen int) int64 {
-	spf := int64(h.samplesPerFrame())
-	if !x.hasFrames {
-		d.notes = append(d.notes, "the Xing/Info header does not give the frame count: the audio was measured untrimmed")
-		return -1
+// describeRate fills BitRate and BitRateMode from the frames the scan
+// walked and from the encoder extension. A stream whose frames all have
+// one bit rate shows that rate; otherwise the average over the audio
+// frames. The mode is the extension's when it has a valid CRC and does not
+// contradict the frames (a "cbr" claim over frames of varying rates), else
+// "cbr" for frames of one rate and "vbr" for varying ones.
+func (d *Decoder) describeRate(h frameHeader, x xingHeader, hasXing bool, scan *frameFeed) {
+	constant := scan.frames == 0 || scan.minBitRate == scan.maxBitRate
+	if scan.frames > 0 {
+		if constant {
+			d.info.BitRate = scan.minBitRate
+		} else {
+			seconds := float64(scan.frames*int64(h.samplesPerFrame())) / float64(h.sampleRate)
+			d.info.BitRate = int(float64(scan.bytes)*8/seconds + 0.5)
+		}
 	}
-	frames := int64(x.frames)
-	// An "Xing" (VBR) stream reports its average rate; an "Info" (CBR)
-	// stream keeps the nominal rate of its first frame.
-	if !x.cbr && x.hasBytes && frames > 0 && int64(x.bytes) > int64(infoLen) {
-		seconds := float64(frames*spf) / float64(h.sampleRate)
-		d.info.BitRate = int(float64(int64(x.bytes)-int64(infoLen))*8/seconds + 0.5)
+	mode := ""
+	if hasXing && x.extension && x.extensionCRCOK {
+		mode = x.rateMode()
 	}
 	switch {
+	case mode == "cbr" && !constant, mode == "":
+		if constant {
+			mode = "cbr"
+		} else {
+			mode = "vbr"
+		}
+	}
+	d.info.BitRateMode = mode
+}
+
+// applyXing sets the trimming and the length from the Xing/Info header x
+// found in the first frame, given the number of audio frames the stream
+// really holds. The delay and padding are applied only when the header's
+// frame count agrees with the stream: a header that declares fewer frames
+// would otherwise hide the rest of the programme, and one that declares
+// more describes a stream that is not there.
+func (d *Decoder) applyXing(x xingHeader, h frameHeader, counted int64) {
+	spf := int64(h.samplesPerFrame())
+	d.info.Frames = counted * spf
+	if !x.hasFrames {
+		d.notes = append(d.notes, "the Xing/Info header does not give the frame count: the audio was measured untrimmed")
+		return
+	}
+	frames := int64(x.frames)
+	switch {
+	case frames != counted:
+		d.notes = append(d.notes, fmt.Sprintf("the Xing/Info header declares %d audio frames but the stream holds %d: every frame was measured, and the header's encoder delay and padding were not applied (the audio is untrimmed)", frames, counted))
 	case x.extension && x.extensionCRCOK:
 		total := frames*spf - int64(x.delay) - int64(x.padding)
 		if total < 0 {
 			d.notes = append(d.notes, fmt.Sprintf("the encoder delay (%d) and padding (%d) exceed the %d decoded samples: the audio was measured untrimmed", x.delay, x.padding, frames*spf))
-			d.info.Frames = frames * spf
 			break
 		}
 		d.skip = int64(x.delay) + SynthesisDelay
@@ -141,12 +188,9 @@ func (d *Decoder) applyXing(x xingHeader, h frameHeader, infoLen int) int64 {
 		d.info.Frames = total
 	case x.extension:
 		d.notes = append(d.notes, "the encoder extension of the Xing/Info header fails its CRC: its delay and padding were ignored and the audio was measured untrimmed")
-		d.info.Frames = frames * spf
 	default:
 		d.notes = append(d.notes, "the Xing/Info header has no encoder delay and padding: the audio was measured untrimmed")
-		d.info.Frames = frames * spf
 	}
-	return frames
 }
 
 // Info returns the stream description. Channels is 1 for a mono stream
@@ -278,15 +322,8 @@ func (d *Decoder) finish() {
 	if d.feed.note != "" {
 		d.notes = append(d.notes, d.feed.note)
 	}
-	f := d.feed
-	if f.declared >= 0 && f.frames > f.declared {
-		d.notes = append(d.notes, fmt.Sprintf("%d audio frames follow the %d the Xing/Info header declares; they were not measured", f.frames-f.declared, f.declared))
-	}
 	if d.err == nil && d.info.Frames >= 0 && d.delivered < d.info.Frames {
-		d.notes = append(d.notes, fmt.Sprintf("the stream decoded to %d samples per channel, %d fewer than its header declares", d.delivered, d.info.Frames-d.delivered))
-	}
-	if f.declared < 0 && f.frames > 0 && f.minBitRate != f.maxBitRate {
-		d.notes = append(d.notes, fmt.Sprintf("variable bit rate (%d–%d kbit/s) without an Xing header: the bit rate shown is that of the first frame", f.minBitRate/1000, f.maxBitRate/1000))
+		d.notes = append(d.notes, fmt.Sprintf("the stream decoded to %d samples per channel, %d fewer than its frames hold", d.delivered, d.info.Frames-d.delivered))
 	}
 }
 

@@ -5,6 +5,8 @@ import (
 	"errors"
 	"io"
 	"math"
+	"slices"
+	"strings"
 	"testing"
 
 	gomp3 "github.com/hajimehoshi/go-mp3"
@@ -87,15 +89,19 @@ func TestInfo(t *testing.T) {
 		mode     string
 		bitRate  int
 		frames   int64
+		rateMode string
+		tags     []string
 	}{
-		{"music-s48-128.mp3", "mpeg-1 layer 3", 48000, 2, []string{"L", "R"}, "joint stereo", 128000, 192000},
-		{"music-s48-192.mp3", "mpeg-1 layer 3", 48000, 2, []string{"L", "R"}, "joint stereo", 192000, 192000},
-		{"music-s48-v2.mp3", "mpeg-1 layer 3", 48000, 2, []string{"L", "R"}, "joint stereo", 156286, 192000},
-		{"speech-m44-128.mp3", "mpeg-1 layer 3", 44100, 1, []string{"M"}, "mono", 128000, 220500},
-		{"hot-s44-128.mp3", "mpeg-1 layer 3", 44100, 2, []string{"L", "R"}, "stereo", 128000, 44100},
-		{"mpeg2-22k.mp3", "mpeg-2 layer 3", 22050, 1, []string{"M"}, "mono", 64000, 44100},
-		{"tagged-id3v2-id3v1.mp3", "mpeg-1 layer 3", 44100, 1, []string{"M"}, "mono", 64000, 88200},
-		{"no-info-header.mp3", "mpeg-1 layer 3", 44100, 1, []string{"M"}, "mono", 64000, -1},
+		{"music-s48-128.mp3", "mpeg-1 layer 3", 48000, 2, []string{"L", "R"}, "joint stereo", 128000, 192000, "cbr", nil},
+		{"music-s48-192.mp3", "mpeg-1 layer 3", 48000, 2, []string{"L", "R"}, "joint stereo", 192000, 192000, "cbr", nil},
+		{"music-s48-v2.mp3", "mpeg-1 layer 3", 48000, 2, []string{"L", "R"}, "joint stereo", 156286, 192000, "vbr", nil},
+		{"speech-m44-128.mp3", "mpeg-1 layer 3", 44100, 1, []string{"M"}, "mono", 128000, 220500, "cbr", nil},
+		{"hot-s44-128.mp3", "mpeg-1 layer 3", 44100, 2, []string{"L", "R"}, "stereo", 128000, 44100, "cbr", nil},
+		{"mpeg2-22k.mp3", "mpeg-2 layer 3", 22050, 1, []string{"M"}, "mono", 64000, 44100, "cbr", nil},
+		{"tagged-id3v2-id3v1.mp3", "mpeg-1 layer 3", 44100, 1, []string{"M"}, "mono", 64000, 88200, "cbr", []string{"id3v2.3", "id3v1"}},
+		// No Info frame: the length is every frame, untrimmed (78 frames,
+		// TestNoInfoHeader).
+		{"no-info-header.mp3", "mpeg-1 layer 3", 44100, 1, []string{"M"}, "mono", 64000, 78 * 1152, "cbr", nil},
 	}
 	for _, tt := range tests {
 		b := audiotest.Fixture(t, tt.file)
@@ -106,7 +112,8 @@ func TestInfo(t *testing.T) {
 		got := d.Info()
 		if got.Container != "mp3" || got.Codec != tt.codec || got.SampleRate != tt.rate || got.Channels != tt.channels ||
 			len(got.Layout) != len(tt.layout) || got.Layout[0] != tt.layout[0] || got.Mode != tt.mode ||
-			got.BitRate != tt.bitRate || got.Frames != tt.frames || got.BitsPerSample != 16 || got.SampleFormat != decode.Int {
+			got.BitRate != tt.bitRate || got.Frames != tt.frames || got.BitsPerSample != 0 || got.SampleFormat != decode.Int ||
+			got.BitRateMode != tt.rateMode || !slices.Equal(got.Tags, tt.tags) {
 			t.Errorf("%s: got %+v", tt.file, got)
 		}
 	}
@@ -311,7 +318,7 @@ func TestNoInfoHeader(t *testing.T) {
 	got := decodeFixture(t, "no-info-header.mp3")
 	// 16300 bytes of 64 kbit/s 44.1 kHz frames (208/209 bytes) = 78 frames
 	// of 1152 samples, nothing trimmed [calc].
-	if got.err != nil || got.frames() != 78*1152 || got.dec.Info().Frames != -1 {
+	if got.err != nil || got.frames() != 78*1152 || got.dec.Info().Frames != 78*1152 {
 		t.Errorf("err %v, %d frames (want %d), Info.Frames %d", got.err, got.frames(), 78*1152, got.dec.Info().Frames)
 	}
 	if len(got.notes) != 1 || !bytes.Contains([]byte(got.notes[0]), []byte("no Xing/Info header")) {
@@ -379,9 +386,14 @@ func TestTruncated(t *testing.T) {
 	if !errors.As(got.err, &ie) || ie.Offset != 29952 {
 		t.Fatalf("got %v, want an *decode.IntegrityError at byte 29952", got.err)
 	}
-	// 77 frames decoded, minus the 576 + 529 delay samples [calc].
-	if want := 77*1152 - 576 - SynthesisDelay; got.frames() != want {
+	// 77 frames decoded, untrimmed: the Info header declares 168 frames
+	// (TestParseXingFixtures), the stream holds 77, so its delay and
+	// padding are not applied.
+	if want := 77 * 1152; got.frames() != want {
 		t.Errorf("%d frames delivered, want %d", got.frames(), want)
+	}
+	if len(got.notes) != 1 || !strings.Contains(got.notes[0], "declares 168 audio frames but the stream holds 77") {
+		t.Errorf("notes %q, want the frame-count disagreement", got.notes)
 	}
 }
 

@@ -22,6 +22,14 @@
 //     decoded audio lines up with the encoder's input. Without that
 //     information nothing is trimmed and a note says so.
 //
+//   - The stream decides. New walks the frame headers of the whole stream
+//     once (a buffered pass, headers only parsed) before the first sample:
+//     the length, the bit rate and the bit-rate mode come from the frames
+//     found, and the Xing/Info header's delay and padding are applied only
+//     when its frame count agrees with them. A header that declares fewer
+//     frames than the stream holds would otherwise hide the rest of the
+//     programme; every frame is measured and a note gives both counts.
+//
 //   - Clipping. go-mp3 limits its output to ±32767. Samples at that limit
 //     reached or exceeded full scale; they are counted and reported through
 //     Notes, because the true peak of such a file is above what is measured.

@@ -2,6 +2,7 @@ package mp3
 
 import (
 	"bufio"
+	"encoding/binary"
 	"fmt"
 	"io"
 
@@ -33,6 +34,14 @@ type frameFeed struct {
 	done       bool
 	stop       *decode.IntegrityError
 	note       string
+	stopOff    int64 // where the frames ended, once done
+
+	// known is a feed that already walked the same frames (New's scan of
+	// the stream): this feed stops where it stopped, with its verdict, so
+	// the bytes after the last frame are examined once, not twice.
+	known *frameFeed
+	// resyncReads counts the reads resync made (for tests of its cost).
+	resyncReads int
 }
 
 // maxFrameLen is the longest frame any valid header describes: Layer II
@@ -77,6 +86,11 @@ func (f *frameFeed) next() bool {
 		return false
 	}
 	off := f.pos
+	if k := f.known; k != nil && k.done && off == k.stopOff {
+		f.done, f.stopOff = true, off
+		f.stop, f.note = k.stop, k.note
+		return false
+	}
 	if off == f.end {
 		f.finish()
 		return false
@@ -122,7 +136,7 @@ func (f *frameFeed) drain() {
 
 // finish checks a clean end of the stream against the Xing frame count.
 func (f *frameFeed) finish() {
-	f.done = true
+	f.done, f.stopOff = true, f.end
 	if f.stop == nil && f.declared >= 0 && f.frames < f.declared {
 		f.stopAt(f.end, fmt.Sprintf("the file ends after %d of the %d audio frames its Xing/Info header declares", f.frames, f.declared))
 	}
@@ -130,7 +144,9 @@ func (f *frameFeed) finish() {
 
 // stopAt ends the stream with damage at off.
 func (f *frameFeed) stopAt(off int64, problem string) {
-	f.done = true
+	if !f.done {
+		f.done, f.stopOff = true, off
+	}
 	if f.stop == nil {
 		f.stop = &decode.IntegrityError{Format: "mp3", Offset: off, Problem: problem}
 	}
@@ -140,7 +156,7 @@ func (f *frameFeed) stopAt(off int64, problem string) {
 // stream mean: damage when frames follow them or the declared frames are not
 // all there, harmless trailing data otherwise.
 func (f *frameFeed) notAFrame(off int64, h frameHeader, validHeader bool) {
-	f.done = true
+	f.done, f.stopOff = true, off
 	junk := f.end - off
 	if validHeader && !f.first.sameStream(h) && linked(f.src, off, f.end) {
 		f.stopAt(off, fmt.Sprintf("the stream changes from %s %d Hz %d-channel to %s %d Hz %d-channel; only the first part was decoded",
@@ -166,25 +182,52 @@ func (f *frameFeed) notAFrame(off int64, h frameHeader, validHeader bool) {
 	f.note = fmt.Sprintf("ignored %d bytes at byte %d after the last audio frame: neither MPEG frames nor a known tag", junk, off)
 }
 
+// resyncWindow is how many bytes resync examines per read. Each read also
+// takes chainSpan bytes beyond the window, so that the chain of frames
+// after any candidate header in the window is checked in memory.
+const resyncWindow = 64 << 10
+
 // resync returns the first offset at or after from where frames of the
-// stream link up again.
+// stream link up again. It reads the bytes once, in windows of
+// resyncWindow (plus the overlap), and examines them in memory with a test
+// that does not allocate, so even megabytes of sync-like bytes (0xFF) cost
+// a few reads and linear time.
 func (f *frameFeed) resync(from int64) (int64, bool) {
-	buf := make([]byte, 32<<10)
-	for off := from; off < f.end; {
-		n, _ := f.src.ReadAt(buf[:min(int64(len(buf)), f.end-off)], off)
+	buf := make([]byte, resyncWindow+chainSpan)
+	first := f.firstWord()
+	for base := from; base < f.end; base += resyncWindow {
+		n, _ := f.src.ReadAt(buf[:min(int64(len(buf)), f.end-base)], base)
 		if n == 0 {
 			return 0, false
 		}
-		for i := range n {
-			if buf[i] != 0xFF {
+		f.resyncReads++
+		atEnd := base+int64(n) == f.end
+		b := buf[:n]
+		for i := range min(n, resyncWindow) {
+			if b[i] != 0xFF || i+headerSize > n {
 				continue
 			}
-			p := off + int64(i)
-			if h, ok := readHeader(f.src, p, f.end); ok && f.first.sameStream(h) && linked(f.src, p, f.end) {
-				return p, true
+			w := binary.BigEndian.Uint32(b[i:])
+			if plausibleWord(w) && sameStreamWord(first, w) && linkedBytes(b[i:], atEnd) {
+				return base + int64(i), true
 			}
 		}
-		off += int64(n)
+		if atEnd {
+			break
+		}
 	}
 	return 0, false
+}
+
+// firstWord is the header word of the stream's first frame, rebuilt from
+// its parsed fields for the comparisons of sameStreamWord.
+func (f *frameFeed) firstWord() uint32 {
+	h := f.first
+	var rate uint32
+	for i, r := range sampleRates[h.version] {
+		if r == h.sampleRate {
+			rate = uint32(i)
+		}
+	}
+	return 0x7FF<<21 | uint32(h.version)<<19 | uint32(4-h.layer)<<17 | rate<<10 | uint32(h.mode)<<6
 }

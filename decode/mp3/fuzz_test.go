@@ -61,6 +61,13 @@ func FuzzDecode(f *testing.F) {
 		b := audiotest.Fixture(f, name)
 		f.Add(b[:min(len(b), 3000)])
 	}
+	// The two shapes of issue 8: sync-like junk after the frames, and an
+	// Info header declaring fewer frames than follow.
+	short := audiotest.Fixture(f, "mpeg2-22k.mp3")[:2000]
+	f.Add(junkTail(short, 3000))
+	lying := append([]byte(nil), audiotest.Fixture(f, "music-s48-128.mp3")[:4000]...)
+	halveInfoFrames(f, lying)
+	f.Add(lying)
 	f.Fuzz(func(t *testing.T, b []byte) {
 		matched := Match(bytes.NewReader(b), int64(len(b)))
 		d, err := New(bytes.NewReader(b), int64(len(b)))
@@ -87,6 +94,11 @@ func FuzzDecode(f *testing.F) {
 			total += n
 			if total > limit {
 				t.Fatalf("%d frames from %d bytes", total, len(b))
+			}
+			// The length is the stream's, found before the first sample:
+			// never less than what is delivered.
+			if fr := d.Info().Frames; fr >= 0 && int64(total) > fr {
+				t.Fatalf("%d frames delivered, Info.Frames %d", total, fr)
 			}
 			for _, v := range buf[:n*ch] {
 				if v < -1 || v > 1 || v != v {

@@ -70,7 +70,8 @@ func firstFrame(r io.ReaderAt, start, end int64) (int64, bool) {
 }
 
 // linked reports whether the frame at off is followed by enough frames of
-// the same stream at the offsets its frame lengths predict.
+// the same stream at the offsets its frame lengths predict. It reads the
+// bytes of the chain with one ReadAt.
 func linked(r io.ReaderAt, off, end int64) bool {
 	first, ok := readHeader(r, off, end)
 	if !ok {
@@ -79,20 +80,74 @@ func linked(r io.ReaderAt, off, end int64) bool {
 	if first.freeFormat() {
 		return linkedFree(r, off, end)
 	}
+	var buf [chainSpan]byte
+	n, _ := r.ReadAt(buf[:min(int64(chainSpan), end-off)], off)
+	return linkedBytes(buf[:n], off+int64(n) == end)
+}
+
+// chainSpan is the most bytes a chain of chainFrames frames and the header
+// after it can cover.
+const chainSpan = chainFrames*maxFrameLen + headerSize
+
+// linkedBytes is linked on bytes already read: b starts with a frame
+// header, and atEnd says that the stream ends where b does (otherwise b
+// holds at least chainSpan bytes or the chain is judged broken).
+func linkedBytes(b []byte, atEnd bool) bool {
+	if len(b) < headerSize {
+		return false
+	}
+	w := binary.BigEndian.Uint32(b)
+	if !plausibleWord(w) {
+		return false
+	}
+	first, err := parseHeader(b)
+	if err != nil || first.freeFormat() {
+		return false
+	}
+	off := 0
 	for n := 0; n < chainFrames; n++ {
-		h, ok := readHeader(r, off, end)
-		if !ok || !first.sameStream(h) || h.freeFormat() {
+		if off+headerSize > len(b) {
 			return false
 		}
-		off += int64(h.frameLen())
-		if off > end {
+		w := binary.BigEndian.Uint32(b[off:])
+		if !plausibleWord(w) || !sameStreamWord(binary.BigEndian.Uint32(b), w) {
 			return false
 		}
-		if off == end {
+		h, err := parseHeader(b[off:])
+		if err != nil || h.freeFormat() {
+			return false
+		}
+		off += h.frameLen()
+		if off > len(b) {
+			return false
+		}
+		if off == len(b) && atEnd {
 			return n+1 >= minChainFrames
 		}
 	}
 	return true
+}
+
+// plausibleWord is a quick test, without allocating, that the 32-bit word w
+// can be a frame header: frame sync, and none of the reserved or forbidden
+// values parseHeader rejects. Scanning loops call it before parseHeader.
+func plausibleWord(w uint32) bool {
+	return w>>21 == 0x7FF && // sync
+		w>>19&3 != 1 && // reserved version
+		w>>17&3 != 0 && // reserved layer
+		w>>12&15 != 15 && // forbidden bit-rate index
+		w>>10&3 != 3 && // reserved sampling frequency
+		w&3 != 2 // reserved emphasis
+}
+
+// streamWordMask keeps the header bits that stay fixed within one stream
+// as sameStream defines it: sync, version, layer and sampling frequency.
+// The channel count (mono or not) is compared separately.
+const streamWordMask = 0xFFFE0C00
+
+// sameStreamWord is frameHeader.sameStream on raw header words.
+func sameStreamWord(a, b uint32) bool {
+	return a&streamWordMask == b&streamWordMask && (a>>6&3 == 3) == (b>>6&3 == 3)
 }
 
 // linkedFree checks a free-format stream: its frames have one fixed length

@@ -3,6 +3,7 @@ package mp3
 import (
 	"bytes"
 	"encoding/binary"
+	"fmt"
 	"io"
 )
 
@@ -25,45 +26,60 @@ const (
 // size-byte file. It never fails: unreadable or implausible tags are left in
 // place for the frame parser to reject.
 func audioBounds(r io.ReaderAt, size int64) (start, end int64) {
-	for start < size {
-		n, ok := id3v2Len(r, start, size)
-		if !ok {
-			break
-		}
-		start += n
-	}
-	end = size
-	for end > start {
-		n := trailingTagLen(r, start, end)
-		if n == 0 {
-			break
-		}
-		end -= n
-	}
+	start, end, _ = taggedBounds(r, size)
 	return start, end
 }
 
-// id3v2Len returns the full length of an ID3v2 tag that starts at off.
-func id3v2Len(r io.ReaderAt, off, size int64) (int64, bool) {
+// taggedBounds is audioBounds that also names the tags it stepped over, in
+// file order, as decode.Info.Tags lists them: "id3v2.3" (with the tag's
+// major version), "ape", "lyrics3v2", "id3v1".
+func taggedBounds(r io.ReaderAt, size int64) (start, end int64, tags []string) {
+	for start < size {
+		n, version, ok := id3v2Len(r, start, size)
+		if !ok {
+			break
+		}
+		tags = append(tags, fmt.Sprintf("id3v2.%d", version))
+		start += n
+	}
+	end = size
+	var trailing []string
+	for end > start {
+		n, name := trailingTagLen(r, start, end)
+		if n == 0 {
+			break
+		}
+		trailing = append(trailing, name)
+		end -= n
+	}
+	for i := len(trailing) - 1; i >= 0; i-- {
+		tags = append(tags, trailing[i])
+	}
+	return start, end, tags
+}
+
+// id3v2Len returns the full length and the major version of an ID3v2 tag
+// that starts at off.
+func id3v2Len(r io.ReaderAt, off, size int64) (int64, int, bool) {
 	var h [id3v2HeaderLen]byte
 	if _, err := r.ReadAt(h[:], off); err != nil {
-		return 0, false
+		return 0, 0, false
 	}
 	if string(h[:3]) != "ID3" || h[3] == 0xFF || h[4] == 0xFF {
-		return 0, false
+		return 0, 0, false
 	}
 	n, ok := syncsafe(h[6:10])
 	if !ok {
-		return 0, false
+		return 0, 0, false
 	}
 	n += id3v2HeaderLen
 	if h[5]&id3v2FooterFlag != 0 {
 		n += id3v2HeaderLen
 	}
 	if off+n > size {
-		return 0, false
+		return 0, 0, false
 	}
-	return n, true
+	return n, int(h[3]), true
 }
 
 // syncsafe decodes a 28-bit ID3v2 size stored 7 bits per byte.
@@ -78,13 +94,14 @@ func syncsafe(b []byte) (int64, bool) {
 	return n, true
 }
 
-// trailingTagLen returns the length of the tag that ends at end, or 0.
-func trailingTagLen(r io.ReaderAt, start, end int64) int64 {
+// trailingTagLen returns the length and the name of the tag that ends at
+// end, or 0.
+func trailingTagLen(r io.ReaderAt, start, end int64) (int64, string) {
 	avail := end - start
 	var tail [apeFooterLen]byte
 	if avail >= id3v1Len {
 		if _, err := r.ReadAt(tail[:3], end-id3v1Len); err == nil && string(tail[:3]) == "TAG" {
-			return id3v1Len
+			return id3v1Len, "id3v1"
 		}
 	}
 	if avail >= apeFooterLen {
@@ -94,7 +111,7 @@ func trailingTagLen(r io.ReaderAt, start, end int64) int64 {
 				n += apeFooterLen
 			}
 			if n >= apeFooterLen && n <= avail {
-				return n
+				return n, "ape"
 			}
 		}
 	}
@@ -102,7 +119,7 @@ func trailingTagLen(r io.ReaderAt, start, end int64) int64 {
 		if _, err := r.ReadAt(tail[:lyrics3EndLen], end-lyrics3EndLen); err == nil &&
 			string(tail[6:lyrics3EndLen]) == "LYRICS200" {
 			if n, ok := decimal(tail[:6]); ok && n+lyrics3EndLen <= avail {
-				return n + lyrics3EndLen
+				return n + lyrics3EndLen, "lyrics3v2"
 			}
 		}
 	}
@@ -110,11 +127,11 @@ func trailingTagLen(r io.ReaderAt, start, end int64) int64 {
 		if _, err := r.ReadAt(tail[:id3v2HeaderLen], end-id3v2HeaderLen); err == nil &&
 			bytes.Equal(tail[:3], []byte("3DI")) {
 			if n, ok := syncsafe(tail[6:10]); ok && n+2*id3v2HeaderLen <= avail {
-				return n + 2*id3v2HeaderLen
+				return n + 2*id3v2HeaderLen, fmt.Sprintf("id3v2.%d", tail[3])
 			}
 		}
 	}
-	return 0
+	return 0, ""
 }
 
 // decimal parses ASCII digits.

@@ -19,6 +19,7 @@ import (
 // tag, after the encoder that introduced it); of it kweigh reads
 //
 //	0..8    encoder version, ASCII
+//	9       tag revision (high nibble), rate method (low nibble)
 //	21..23  encoder delay (12 bits) then end padding (12 bits), in samples
 //	34..35  CRC-16 of every frame byte before this field
 //
@@ -54,6 +55,27 @@ type xingHeader struct {
 	extensionCRCOK bool
 	encoder        string
 	delay, padding int
+	// method is the extension's rate-method nibble (valid with the CRC):
+	// see rateMode.
+	method int
+}
+
+// rateMode maps the encoder extension's rate method to decode.Info's
+// BitRateMode: 1 constant and 8 constant two-pass are "cbr", 2 average and
+// 9 average two-pass are "abr", 3 to 6 (the variable-rate methods) are
+// "vbr", anything else "" (unknown). Values from the public LAME-tag
+// description [desc]; checked on lame 3.100's -b, --abr and -V output
+// (TestRateModeFromLame).
+func (x xingHeader) rateMode() string {
+	switch x.method {
+	case 1, 8:
+		return "cbr"
+	case 2, 9:
+		return "abr"
+	case 3, 4, 5, 6:
+		return "vbr"
+	}
+	return ""
 }
 
 // parseXing looks for an Xing/Info header in frame (one whole frame, header
@@ -121,6 +143,7 @@ func parseXing(frame []byte, h frameHeader) (xingHeader, bool) {
 		d := ext[extensionDelayAt:]
 		x.delay = int(d[0])<<4 | int(d[1])>>4
 		x.padding = int(d[1]&0x0F)<<8 | int(d[2])
+		x.method = int(ext[9] & 0x0F)
 	}
 	return x, true
 }

@@ -33,6 +33,9 @@ func fuzzSeeds() map[string][]byte {
 		"data-before-fmt": wavFile("RIFF", chunk("data", data), chunk("JUNK", []byte{1, 2, 3}), fmt16),
 		"truncated":       wavFile("RIFF", fmt16, chunk("data", data))[:50],
 		"unsupported":     wavFile("RIFF", fmtChunk(7, 1, 8000, 8), chunk("data", []byte{1})),
+		"undeclared":      wavFile("RIFF", fmt16, chunk("data", data).declaring(8)),
+		"trailing-tags": append(wavFile("RIFF", fmt16, chunk("data", data[:8]), chunk("LIST", []byte("INFO")), chunk("id3 ", make([]byte, 3))),
+			"ID3\x04\x00\x00\x00\x00\x00\x02\x00\x00TAG"...),
 	}
 }
 
@@ -89,6 +92,9 @@ func FuzzReader(f *testing.F) {
 		}
 		if !damaged && info.Frames >= 0 && total != info.Frames {
 			t.Fatalf("clean read delivered %d frames, header declares %d", total, info.Frames)
+		}
+		if u := info.Undeclared; u != nil && (u.Bytes <= 0 || u.Offset+u.Bytes != int64(len(file)) || !(u.Seconds >= 0) || u.Seconds > float64(len(file))) {
+			t.Fatalf("implausible undeclared data %+v in a %d-byte file", *u, len(file))
 		}
 		_ = d.(decode.Noter).Notes()
 	})

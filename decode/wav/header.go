@@ -34,6 +34,12 @@ type header struct {
 
 	bext  *decode.Bext
 	notes []string
+
+	// trailer is where the chunk walk stopped at bytes that may not be
+	// chunks (the end of the RIFF form, or an implausible chunk ID after
+	// fmt and data); -1 when it ran to the end of the file.
+	trailer    int64
+	undeclared *decode.Undeclared
 }
 
 // readHeader checks the RIFF header and walks the chunk list of a file of
@@ -47,7 +53,7 @@ func readHeader(r io.ReaderAt, size int64) (*header, error) {
 	if err := readFull(r, head[:], 0); err != nil {
 		return nil, e.wrap(0, err, "file is %d bytes long, too short for a RIFF header", size)
 	}
-	h := &header{fileSize: size}
+	h := &header{fileSize: size, trailer: -1}
 	switch string(head[:4]) {
 	case "RIFF":
 		h.container = "wav"
@@ -74,7 +80,28 @@ func readHeader(r io.ReaderAt, size int64) (*header, error) {
 	if !h.haveData {
 		return nil, e.wrap(size, io.ErrUnexpectedEOF, "no data chunk before the end of the file")
 	}
+	h.findUndeclared(r)
 	return h, nil
+}
+
+// findUndeclared looks at the bytes where the chunk walk stopped: past the
+// tags and chunks that may follow the audio, anything left is data the
+// header does not declare. At least one frame (and at least a chunk
+// header's 8 bytes) of it is reported in h.undeclared; less is a note.
+func (h *header) findUndeclared(r io.ReaderAt) {
+	if h.trailer < 0 || h.trailer >= h.fileSize {
+		return
+	}
+	foreign := decode.ForeignAfter(r, h.trailer, h.fileSize, binary.LittleEndian)
+	n := h.fileSize - foreign
+	switch {
+	case n == 0:
+	case n < max(chunkHeaderSize, int64(h.layout.blockAlign)):
+		h.note("%d stray bytes at the end of the file (byte %d) ignored", n, foreign)
+	default:
+		h.undeclared = &decode.Undeclared{Offset: foreign, Bytes: n,
+			Seconds: float64(n/int64(h.layout.blockAlign)) / float64(h.layout.sampleRate)}
+	}
 }
 
 // setRIFFSize records the declared form size; an implausible one (0,
@@ -98,7 +125,8 @@ func (h *header) walk(r io.ReaderAt, e chunkErrors) error {
 	for pos < h.fileSize {
 		complete := h.haveFmt && h.haveData
 		if complete && pos >= h.riffEnd {
-			break // bytes after the RIFF form (e.g. appended tags) are not ours
+			h.trailer = pos // bytes after the RIFF form: appended tags, or audio the header does not declare
+			break
 		}
 		if h.fileSize-pos < chunkHeaderSize {
 			if complete {
@@ -112,6 +140,10 @@ func (h *header) walk(r io.ReaderAt, e chunkErrors) error {
 			return e.wrap(pos, err, "reading chunk header")
 		}
 		id := string(ch[:4])
+		if complete && !decode.PlausibleChunkID(ch[:4]) {
+			h.trailer = pos // not a chunk: audio past the declared data size?
+			break
+		}
 		size32 := binary.LittleEndian.Uint32(ch[4:])
 		size := uint64(size32)
 		body := pos + chunkHeaderSize

@@ -65,6 +65,7 @@ func New(src decode.Source, size int64) (decode.Decoder, error) {
 		SampleFormat:  decode.Int,
 		Frames:        h.frames(),
 		Bext:          h.bext,
+		Undeclared:    h.undeclared,
 	}
 	if l.float {
 		d.info.Codec, d.info.SampleFormat = "ieee-float", decode.Float

@@ -7,7 +7,7 @@ import (
 )
 
 func init() {
-	decode.Register(decode.Format{Name: "wav", Match: Match, New: func(src decode.Source, size int64, _ decode.Options) (decode.Decoder, error) { return New(src, size) }})
+	decode.Register(decode.Format{Name: "wav", Extensions: []string{"wav", "bwf", "rf64", "bw64", "w64"}, Match: Match, New: func(src decode.Source, size int64, _ decode.Options) (decode.Decoder, error) { return New(src, size) }})
 }
 
 // riffMagics are the first FourCCs of the containers this package reads (and

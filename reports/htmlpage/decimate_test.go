@@ -66,7 +66,7 @@ func TestDecimateNonFinite(t *testing.T) {
 		}
 	}
 	// Column [2, 4) holds the windows ending at 0.3 and 0.4 s: drawn at 0.35 s.
-	if path := seriesPath(cols, scale{0, 1.2, 0, 120}, scale{-60, 0, 300, 0}); path != "M35 100 h0.5 M75 120 h0.5 M115 150 h0.5" {
+	if path := seriesPath(cols, seriesStepS, scale{0, 1.2, 0, 120}, scale{-60, 0, 300, 0}); path != "M35 100 h0.5 M75 120 h0.5 M115 150 h0.5" {
 		t.Errorf("path through gaps = %q, want three separate dots", path)
 	}
 }

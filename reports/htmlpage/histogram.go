@@ -5,6 +5,7 @@ import (
 	"sort"
 	"strconv"
 
+	"github.com/kweigh/kweigh/loudness"
 	"github.com/kweigh/kweigh/reports"
 )
 
@@ -26,33 +27,74 @@ type rangeRegion struct {
 	ok        bool
 }
 
+// level is a short-term loudness value and how many 100 ms steps have it.
+type level struct {
+	lufs  float64
+	count int64
+}
+
+// shortTermLevels returns the short-term loudness values of a series: each
+// element once while the series is not decimated; for a decimated series
+// (Step > 1, whose elements are only the extremes of their stretch) the
+// engine's undecimated level distribution, each 0.1 LU bin at its centre.
+func shortTermLevels(s *loudness.Series) []level {
+	if s == nil {
+		return nil
+	}
+	var out []level
+	if s.Step > 1 && s.ShortTermLevels != nil {
+		for i, n := range s.ShortTermLevels {
+			if n > 0 {
+				out = append(out, level{-70 + (float64(i)+0.5)*loudness.LevelStep, n})
+			}
+		}
+		return out
+	}
+	for _, v := range s.ShortTerm {
+		out = append(out, level{float64(v), 1})
+	}
+	return out
+}
+
 // loudnessRangeRegion computes the region the histogram marks. Percentiles
 // are nearest-rank on the gated values (EBU Tech 3342 leaves the
 // interpolation open).
-func loudnessRangeRegion(shortTerm []float32) rangeRegion {
-	const absoluteGate, relativeGate = -70.0, -20.0 // EBU Tech 3342 (STANDARDS.md §3)
-	var kept []float64
-	power := 0.0
+func loudnessRangeRegion(shortTerm []level) rangeRegion {
+	const absoluteGate, relativeGate = -70.0, -20.0 // EBU Tech 3342
+	var kept []level
+	power, n := 0.0, int64(0)
 	for _, v := range shortTerm {
-		f := float64(v)
+		f := v.lufs
 		if math.IsNaN(f) || math.IsInf(f, 0) || f <= absoluteGate {
 			continue
 		}
-		kept = append(kept, f)
-		power += math.Pow(10, f/10)
+		kept = append(kept, v)
+		power += float64(v.count) * math.Pow(10, f/10)
+		n += v.count
 	}
-	if len(kept) == 0 {
+	if n == 0 {
 		return rangeRegion{}
 	}
-	gate := 10*math.Log10(power/float64(len(kept))) + relativeGate
+	gate := 10*math.Log10(power/float64(n)) + relativeGate
 	gated := kept[:0]
-	for _, f := range kept {
-		if f > gate {
-			gated = append(gated, f)
+	var total int64
+	for _, v := range kept {
+		if v.lufs > gate {
+			gated = append(gated, v)
+			total += v.count
 		}
 	}
-	sort.Float64s(gated)
-	at := func(p float64) float64 { return gated[int(math.Round(p*float64(len(gated)-1)))] }
+	sort.Slice(gated, func(i, j int) bool { return gated[i].lufs < gated[j].lufs })
+	at := func(p float64) float64 {
+		rank := int64(math.Round(p * float64(total-1)))
+		for _, v := range gated {
+			if rank < v.count {
+				return v.lufs
+			}
+			rank -= v.count
+		}
+		return gated[len(gated)-1].lufs
+	}
 	return rangeRegion{low: at(0.10), high: at(0.95), ok: true}
 }
 
@@ -64,19 +106,16 @@ func shortTermHistogram(e Entry, id string) string {
 	lo, hi := histogramRange(e)
 	bins := make([]int, int(hi-lo))
 	total := 0
-	var shortTerm []float32
-	if r.Series != nil {
-		shortTerm = r.Series.ShortTerm
-	}
+	shortTerm := shortTermLevels(r.Series)
 	for _, v := range shortTerm {
-		f := float64(v)
+		f := v.lufs
 		if math.IsNaN(f) || math.IsInf(f, 0) || f <= -70 {
 			continue // not full yet, digital silence, or below the absolute gate
 		}
 		b := int(math.Floor(f - lo))
 		b = max(0, min(b, len(bins)-1))
-		bins[b]++
-		total++
+		bins[b] += int(v.count)
+		total += int(v.count)
 	}
 	region := loudnessRangeRegion(shortTerm)
 

@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/kweigh/kweigh/loudness"
 	"github.com/kweigh/kweigh/reports"
 )
 
@@ -73,7 +74,8 @@ func tolerance(t Target) float64 {
 func seriesDuration(e Entry) float64 {
 	d := e.Result.DurationS
 	if s := e.Result.Series; s != nil {
-		d = max(d, float64(len(s.ShortTerm))*seriesStepS, float64(len(s.Momentary))*seriesStepS)
+		step := elementSeconds(s)
+		d = max(d, float64(len(s.ShortTerm))*step, float64(len(s.Momentary))*step)
 	}
 	if !(d > 0) {
 		d = 1
@@ -81,16 +83,24 @@ func seriesDuration(e Entry) float64 {
 	return d
 }
 
-// columnTime is the time at the middle of a column: series element i
-// describes the window ending at (i+1)·100 ms.
-func columnTime(c Column) float64 {
-	return (float64(c.Start+c.End)/2 + 0.5) * seriesStepS
+// elementSeconds is the time one series element stands for: 100 ms, or
+// Step × 100 ms for a series the engine decimated (streams longer than
+// 1 h 49 min).
+func elementSeconds(s *loudness.Series) float64 {
+	return seriesStepS * float64(max(1, s.Step))
+}
+
+// columnTime is the time at the middle of a column of elements stepS
+// seconds apart: series element i describes the window ending at
+// (i+1)·stepS.
+func columnTime(c Column, stepS float64) float64 {
+	return (float64(c.Start+c.End)/2 + 0.5) * stepS
 }
 
 // seriesPath draws decimated columns as one path: each column is a vertical
 // stroke from its minimum to its maximum in time order, joined to the next;
 // a column that is not Valid breaks the line (a gap, never a zero).
-func seriesPath(cols []Column, x, y scale) string {
+func seriesPath(cols []Column, stepS float64, x, y scale) string {
 	var b strings.Builder
 	pen := false // a subpath is open
 	points := 0  // points in the open subpath
@@ -118,7 +128,7 @@ func seriesPath(cols []Column, x, y scale) string {
 			endSubpath()
 			continue
 		}
-		px := x.at(columnTime(c))
+		px := x.at(columnTime(c, stepS))
 		first, second := c.Min, c.Max
 		if !c.MinFirst {
 			first, second = c.Max, c.Min
@@ -139,7 +149,7 @@ type overRun struct {
 	peak     float32 // dBTP
 }
 
-func overRuns(truePeak []float32, ceiling float64, columns int) []overRun {
+func overRuns(truePeak []float32, stepS, ceiling float64, columns int) []overRun {
 	var runs []overRun
 	open := false
 	for _, c := range Decimate(truePeak, columns) {
@@ -147,10 +157,10 @@ func overRuns(truePeak []float32, ceiling float64, columns int) []overRun {
 		switch {
 		case over && open:
 			r := &runs[len(runs)-1]
-			r.to = float64(c.End) * seriesStepS
+			r.to = float64(c.End) * stepS
 			r.peak = max(r.peak, c.Max)
 		case over:
-			runs = append(runs, overRun{from: float64(c.Start) * seriesStepS, to: float64(c.End) * seriesStepS, peak: c.Max})
+			runs = append(runs, overRun{from: float64(c.Start) * stepS, to: float64(c.End) * stepS, peak: c.Max})
 			open = true
 		default:
 			open = false
@@ -159,15 +169,39 @@ func overRuns(truePeak []float32, ceiling float64, columns int) []overRun {
 	return runs
 }
 
-// countOvers counts the 100 ms blocks whose true peak exceeds ceiling.
-func countOvers(truePeak []float32, ceiling float64) int {
+// countOvers counts the 100 ms blocks whose true peak exceeds ceiling; in
+// a decimated series (Step > 1), the stretches of 2·Step blocks (pairs of
+// elements) holding at least one such block.
+func countOvers(s *loudness.Series, ceiling float64) int {
 	n := 0
-	for _, v := range truePeak {
-		if float64(v) > ceiling && !math.IsNaN(float64(v)) {
+	over := func(v float32) bool { return float64(v) > ceiling && !math.IsNaN(float64(v)) }
+	if s.Step <= 1 {
+		for _, v := range s.TruePeak {
+			if over(v) {
+				n++
+			}
+		}
+		return n
+	}
+	for i := 0; i < len(s.TruePeak); i += 2 {
+		if over(s.TruePeak[i]) || i+1 < len(s.TruePeak) && over(s.TruePeak[i+1]) {
 			n++
 		}
 	}
 	return n
+}
+
+// oversText says how much of the file is over the ceiling: "12 × 100 ms",
+// or for a decimated series "in 3 stretches of 3.2 s".
+func oversText(s *loudness.Series, overs int) string {
+	if s == nil || s.Step <= 1 {
+		return fmt.Sprintf("%d × 100 ms", overs)
+	}
+	noun := "stretches"
+	if overs == 1 {
+		noun = "stretch"
+	}
+	return fmt.Sprintf("in %d %s of %s s", overs, noun, strconv.FormatFloat(2*elementSeconds(s), 'f', -1, 64))
 }
 
 // loudnessPlot draws the loudness-over-time plot of one entry.
@@ -237,11 +271,11 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 	// Curves: momentary below, short-term above it.
 	drawn := false
 	if series != nil {
-		if p := seriesPath(Decimate(series.Momentary, PlotColumns), x, y); p != "" {
+		if p := seriesPath(Decimate(series.Momentary, PlotColumns), elementSeconds(series), x, y); p != "" {
 			s.printf(`<path d="%s" fill="none" stroke="%s" stroke-width="0.9" stroke-linejoin="round" stroke-linecap="round"/>`+"\n", p, inkOrange)
 			drawn = true
 		}
-		if p := seriesPath(Decimate(series.ShortTerm, PlotColumns), x, y); p != "" {
+		if p := seriesPath(Decimate(series.ShortTerm, PlotColumns), elementSeconds(series), x, y); p != "" {
 			s.printf(`<path d="%s" fill="none" stroke="%s" stroke-width="2.2" stroke-linejoin="round" stroke-linecap="round"/>`+"\n", p, inkBlue)
 			drawn = true
 		}
@@ -272,11 +306,11 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 		s.text(plotLeft-6, laneTop+laneHeight-3, "end", ` fill="`+inkAxis+`" font-size="11"`, "TP over")
 		s.rect(plotLeft, laneTop, plotRight-plotLeft, laneHeight, `fill="none" stroke="`+inkGrid+`" stroke-width="1"`)
 		if series != nil {
-			overs = countOvers(series.TruePeak, ceiling)
+			overs = countOvers(series, ceiling)
 			if overs == 0 {
 				s.text(plotLeft+6, laneTop+laneHeight-3, "start", ` fill="`+inkAxis+`" font-size="11"`, "no true-peak overs")
 			}
-			for _, run := range overRuns(series.TruePeak, ceiling, PlotColumns) {
+			for _, run := range overRuns(series.TruePeak, elementSeconds(series), ceiling, PlotColumns) {
 				x0, x1 := x.at(run.from), x.at(run.to)
 				peak := float64(run.peak)
 				tip := fmt.Sprintf("true peak over the ceiling %s – %s, highest %s dBTP", reports.Clock(run.from), reports.Clock(run.to), reports.Peak(&peak))
@@ -313,7 +347,11 @@ func plotDescription(e Entry) string {
 		parts = append(parts, "target "+reports.Loudness(t)+" LUFS ±"+reports.Loudness(&tol)+" LU")
 	}
 	if c := e.Target.TruePeakCeilingDBTP; c != nil && r.Series != nil {
-		parts = append(parts, fmt.Sprintf("%d blocks of 100 ms above the %s dBTP ceiling", countOvers(r.Series.TruePeak, *c), reports.Peak(c)))
+		if n := countOvers(r.Series, *c); r.Series.Step <= 1 {
+			parts = append(parts, fmt.Sprintf("%d blocks of 100 ms above the %s dBTP ceiling", n, reports.Peak(c)))
+		} else {
+			parts = append(parts, fmt.Sprintf("%s above the %s dBTP ceiling", oversText(r.Series, n), reports.Peak(c)))
+		}
 	}
 	return strings.Join(parts, "; ") + "."
 }
@@ -383,7 +421,7 @@ func legend(s *svgDoc, e Entry, overs int) {
 		item(lineSample(inkVermillion, 1.5, "7 3 1.5 3"), "true-peak ceiling "+reports.Peak(c)+" dBTP")
 		item(func(x, y float64) {
 			s.rect(x+8, y-6, 12, 12, `fill="`+inkVermillion+`" stroke="`+inkBlack+`" stroke-width="0.5"`)
-		}, fmt.Sprintf("over the ceiling: %d × 100 ms", overs))
+		}, "over the ceiling: "+oversText(e.Result.Series, overs))
 	}
 	if e.Result.Signal.LeadingSilenceS > 0 || e.Result.Signal.TrailingSilenceS > 0 {
 		item(func(x, y float64) {

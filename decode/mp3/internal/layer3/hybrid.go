@@ -1,0 +1,110 @@
+package layer3
+
+import "math"
+
+// The stages between requantisation and the polyphase synthesis
+// (ISO/IEC 11172-3 §2.4.3.4.8–§2.4.3.4.10): M/S stereo, reordering of
+// short blocks, alias reduction, and the hybrid filter bank's IMDCT with
+// overlap-add and frequency inversion, producing 18 samples for each of
+// the 32 subbands per granule.
+
+// aliasC are the coefficients c_i of the alias-reduction butterflies
+// (ISO/IEC 11172-3 Table 3-B.9) [memory]; cs = 1/√(1+c²), ca = c/√(1+c²).
+var aliasC = [8]float64{-0.6, -0.535, -0.33, -0.185, -0.095, -0.041, -0.0142, -0.0037}
+
+var aliasCS, aliasCA [8]float64
+
+func init() {
+	for i, c := range aliasC {
+		d := math.Sqrt(1 + c*c)
+		aliasCS[i], aliasCA[i] = 1/d, c/d
+	}
+}
+
+// midSide turns the mid and side lines m and s (the first n of them)
+// into left and right in place: L = (M + S)/√2, R = (M − S)/√2
+// (§2.4.3.4.9.2).
+func midSide(m, s *[576]float64, n int) {
+	for i := range n {
+		a, b := m[i], s[i]
+		m[i], s[i] = (a+b)*math.Sqrt2/2, (a-b)*math.Sqrt2/2
+	}
+}
+
+// reorder rearranges the short-block lines of xr, coded band by band and
+// window by window, so that each subband's 18 values hold line i of
+// window w at 3i + w, the order hybridBlock reads (§2.4.3.4.8). The long
+// part of a mixed block (the first 36 lines) stays.
+func reorder(xr *[576]float64, g *granule, rateIndex int) {
+	if !g.windowSwitching || g.blockType != 2 {
+		return
+	}
+	short := &shortBands[rateIndex]
+	var out [576]float64
+	pos, sfb := 0, 0
+	if g.mixed {
+		copy(out[:36], xr[:36])
+		pos, sfb = 36, 3
+	}
+	for ; sfb < 13; sfb++ {
+		for w := range 3 {
+			for f := short[sfb]; f < short[sfb+1]; f++ {
+				out[18*(f/6)+3*(f%6)+w] = xr[pos]
+				pos++
+			}
+		}
+	}
+	*xr = out
+}
+
+// aliasReduce applies the butterflies between neighbouring subbands
+// (§2.4.3.4.10, Figure A.5): for long blocks between all 32 subbands, for
+// mixed blocks between subbands 0 and 1 only, for short blocks not at
+// all.
+func aliasReduce(xr *[576]float64, g *granule) {
+	bands := 32
+	if g.windowSwitching && g.blockType == 2 {
+		if !g.mixed {
+			return
+		}
+		bands = 2
+	}
+	for sb := 1; sb < bands; sb++ {
+		for i := range 8 {
+			lo, hi := 18*sb-1-i, 18*sb+i
+			a, b := xr[lo], xr[hi]
+			xr[lo] = a*aliasCS[i] - b*aliasCA[i]
+			xr[hi] = b*aliasCS[i] + a*aliasCA[i]
+		}
+	}
+}
+
+// hybrid runs the IMDCT of each subband of xr with its block type (the
+// first two subbands of a mixed block are long, type 0), adds the second
+// half of the previous granule's blocks kept in overlap, keeps this
+// granule's second halves there, and inverts the frequency of odd
+// subbands (every odd sample negated, §2.4.3.4.10.4). out[t][sb] is time
+// sample t of subband sb, the order the synthesis takes them in.
+func hybrid(xr *[576]float64, g *granule, overlap *[32][18]float64, out *[18][32]float64) {
+	var in [18]float64
+	var block [36]float64
+	for sb := range 32 {
+		bt := g.blockType
+		if !g.windowSwitching {
+			bt = 0
+		}
+		if g.windowSwitching && g.mixed && sb < 2 {
+			bt = 0
+		}
+		copy(in[:], xr[18*sb:18*sb+18])
+		hybridBlock(&in, bt, &block)
+		for t := range 18 {
+			v := block[t] + overlap[sb][t]
+			overlap[sb][t] = block[18+t]
+			if sb&1 == 1 && t&1 == 1 {
+				v = -v
+			}
+			out[t][sb] = v
+		}
+	}
+}
