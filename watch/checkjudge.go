@@ -5,7 +5,6 @@ import (
 	"context"
 	"fmt"
 	"path/filepath"
-	"strings"
 	"time"
 
 	"github.com/kweigh/kweigh/engine"
@@ -33,13 +32,6 @@ type JudgeOptions struct {
 	Caution string
 }
 
-// audioExtensions are the names that make a file a delivery even when it
-// cannot be read: an unreadable .wav is an error, not a file to skip.
-var audioExtensions = map[string]bool{
-	".wav": true, ".bwf": true, ".rf64": true, ".w64": true, ".bw64": true, ".flac": true,
-	".mp3": true, ".aif": true, ".aiff": true, ".aifc": true,
-}
-
 // CheckJudge returns the JudgeFunc of `kweigh check`: engine.JudgeTarget
 // (measure the file, judge it against its spec), then the check record
 // (JSON) and the HTML QC page rendered from the result.
@@ -47,9 +39,9 @@ func CheckJudge(o JudgeOptions) JudgeFunc {
 	o.Measure.KeepSeries = true
 	opt := engine.Options{Spec: o.Spec, Measure: o.Measure}
 	return func(ctx context.Context, path, root string) (Judgement, error) {
-		// A file named as audio is a delivery (explicit), so an unreadable
-		// one is an error; any other file that is not audio is skipped.
-		t := engine.Target{Path: path, Root: root, Explicit: audioExtensions[strings.ToLower(filepath.Ext(path))]}
+		// Found in a folder: the engine skips a file that is not audio unless
+		// its name says it is (then it is a damaged delivery, an error).
+		t := engine.Target{Path: path, Root: root}
 		rec := engine.JudgeTarget(ctx, t, opt)
 		if rec.Interrupted() {
 			return Judgement{}, ctx.Err()

@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"strings"
 	"time"
+
+	"github.com/kweigh/kweigh/reports"
 )
 
 // placedRecord is the check record with placed_at (when the file was
@@ -62,24 +64,14 @@ func (w *watcher) emit(e Entry, line []byte) {
 		}
 		where := "stays in the inbox"
 		if e.Dest != "" {
-			where = "→ " + printable(e.Dest)
+			where = "→ " + reports.Printable(e.Dest)
 		}
-		text := fmt.Sprintf("%s  %s  %s", word, printable(e.Path()), where)
+		text := fmt.Sprintf("%s  %s  %s", word, reports.Printable(e.Path()), where)
 		if e.Error != "" {
-			text += "  (" + printable(e.Error) + ")"
+			text += "  (" + reports.Printable(e.Error) + ")"
 		}
 		fmt.Fprintln(w.o.Output, text)
 		return
 	}
 	w.o.Output.Write(append(line, '\n'))
-}
-
-// printable escapes control characters, so a file name cannot drive the
-// terminal.
-func printable(s string) string {
-	if !strings.ContainsFunc(s, func(r rune) bool { return r < 0x20 || r == 0x7f }) {
-		return s
-	}
-	q := fmt.Sprintf("%q", s)
-	return q[1 : len(q)-1]
 }

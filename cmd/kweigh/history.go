@@ -14,6 +14,7 @@ import (
 
 	"github.com/urfave/cli/v3"
 
+	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/watch"
 )
 
@@ -194,20 +195,10 @@ func runHistory(ctx context.Context, state string, since time.Time, format strin
 		if verdict == "" {
 			verdict = "-"
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", r.When, verdict, r.State, escapeControl(r.File), escapeControl(where))
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\n", r.When, verdict, r.State, reports.Printable(r.File), reports.Printable(where))
 	}
 	if len(rows) == 0 {
 		fmt.Fprintln(tw, "(nothing in the ledger for that time)")
 	}
 	return tw.Flush()
-}
-
-// escapeControl keeps control characters in names from reaching the
-// terminal raw.
-func escapeControl(s string) string {
-	if !strings.ContainsFunc(s, func(r rune) bool { return r < 0x20 || r == 0x7f }) {
-		return s
-	}
-	q := strconv.Quote(s)
-	return q[1 : len(q)-1]
 }

@@ -2,13 +2,9 @@ package main
 
 import (
 	"context"
-	"fmt"
 	"io"
 	"log/slog"
-	"os"
-	"os/signal"
 	"runtime"
-	"syscall"
 	"time"
 
 	"github.com/urfave/cli/v3"
@@ -35,8 +31,10 @@ func watchCommand() *cli.Command {
 			"A pass is not a broadcaster's or regulator's acceptance; local regulation and the receiving\n" +
 			"party's own QC decide.\n\n" +
 			"EXIT STATUS:\n" +
-			"   without --once: 0 after SIGINT or SIGTERM (work in progress is finished or redone on restart)\n" +
-			"   with --once: 0 every file passed (or warned), 1 a file failed, 2 a file could not be judged\n" +
+			"   without --once: 0 after SIGINT or SIGTERM (moves in progress finish; judgements in progress\n" +
+			"      are redone on the next start); a second signal ends it at once\n" +
+			"   with --once: 0 every file passed (or warned), 1 a file failed, 2 a file could not be judged,\n" +
+			"      130 interrupted by SIGINT, 143 by SIGTERM (unfinished files are done by the next run)\n" +
 			"   2  the watcher could not start (bad options, no inbox, state folder in use)\n",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` for every file (built-in id or TOML file); without it each file's nearest kweigh.toml up to its inbox"},
@@ -113,15 +111,10 @@ func readWatchOptions(cmd *cli.Command) (watch.Options, error) {
 	}, nil
 }
 
-// runWatch runs the watcher until SIGINT/SIGTERM (or, with --once, until the
-// files present are placed).
+// runWatch runs the watcher until SIGINT/SIGTERM cancel ctx (main's signal
+// handling; a second signal ends the process at once) or, with --once,
+// until the files present are placed.
 func runWatch(ctx context.Context, o watch.Options, stderr io.Writer) error {
-	ctx, stop := signal.NotifyContext(ctx, os.Interrupt, syscall.SIGTERM)
-	defer stop()
-	go func() {
-		<-ctx.Done()
-		stop() // a second signal ends the process at once
-	}()
 	o.Log = slog.New(slog.NewTextHandler(stderr, nil))
 	sum, err := watch.Run(ctx, o)
 	if err != nil {
@@ -134,7 +127,7 @@ func runWatch(ctx context.Context, o watch.Options, stderr io.Writer) error {
 		"errors", sum.Errors, "skipped", sum.Skipped, "gone", sum.Gone)
 	switch {
 	case ctx.Err() != nil:
-		return fmt.Errorf("interrupted: %w", ctx.Err())
+		return interruption(ctx, 0)
 	case sum.Errors > 0:
 		return troubleError{sum.Errors}
 	case sum.Failed > 0:
