@@ -31,6 +31,7 @@ func kweighBinary(t *testing.T) string {
 			binaryErr = err
 			return
 		}
+		os.Chmod(dir, 0o755) // TestPermissionDenied runs it as another user
 		binaryPath = filepath.Join(dir, "kweigh")
 		cmd := exec.Command(filepath.Join(runtime.GOROOT(), "bin", "go"), "build", "-o", binaryPath, "github.com/kweigh/kweigh/cmd/kweigh")
 		if out, err := cmd.CombinedOutput(); err != nil {
@@ -209,4 +210,13 @@ func sameDevice(a, b string) bool {
 		return true
 	}
 	return sa.Dev == sb.Dev
+}
+
+// TestMain removes the binary the tests built.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if binaryPath != "" {
+		os.RemoveAll(filepath.Dir(binaryPath))
+	}
+	os.Exit(code)
 }

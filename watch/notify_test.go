@@ -150,3 +150,31 @@ func TestBackoff(t *testing.T) {
 		}
 	}
 }
+
+// TestNotifyOnce: with --once every pending notification gets one attempt
+// at the end; one the receiver refuses stays in the outbox for the next
+// run, which delivers it.
+func TestNotifyOnce(t *testing.T) {
+	recv := &receiver{refuse: 1, accepted: map[string]int{}, ids: map[string]bool{}}
+	srv := httptest.NewServer(recv)
+	defer srv.Close()
+	inbox := t.TempDir()
+	writeWAV(t, filepath.Join(inbox, "ep1.wav"), 1, passDBFS)
+	o := Options{Inboxes: []string{inbox}, Settle: 50 * time.Millisecond, Once: true, Judge: testJudge(t), Notify: srv.URL}
+	if sum, err := Run(context.Background(), o); err != nil || sum.Passed != 1 {
+		t.Fatalf("first run: %+v %v", sum, err)
+	}
+	state := filepath.Join(inbox, ".kweigh")
+	if n := pending(t, state); n != 1 {
+		t.Fatalf("after a refused attempt %d pending, want 1", n)
+	}
+	if sum, err := Run(context.Background(), o); err != nil || sum.Files != 0 {
+		t.Fatalf("second run: %+v %v", sum, err)
+	}
+	if n := pending(t, state); n != 0 {
+		t.Errorf("after the second run %d pending", n)
+	}
+	if _, acc := recv.snapshot(); acc[filepath.Join(inbox, "ep1.wav")] != 1 {
+		t.Errorf("accepted: %v", acc)
+	}
+}
