@@ -14,10 +14,24 @@ import (
 
 // scanAll walks every inbox: the source of truth, whatever the events said.
 func (w *watcher) scanAll(ctx context.Context) {
+	w.present = map[string]bool{}
 	for _, in := range w.inboxes {
 		w.scanDir(ctx, in, in)
 	}
 	w.commit(ctx)
+	// Forget finished versions no longer in the inboxes (moved away, or
+	// deleted), so a watcher that runs for months keeps only what is there.
+	for path := range w.finished {
+		if !w.present[path] {
+			delete(w.finished, path)
+		}
+	}
+	for path := range w.complain {
+		if !w.present[path] {
+			delete(w.complain, path)
+		}
+	}
+	w.present = nil
 }
 
 // scanDir walks dir (inside inbox), observing every delivery and, with
@@ -53,6 +67,9 @@ func (w *watcher) scanDir(ctx context.Context, inbox, dir string) {
 		rel = filepath.ToSlash(rel)
 		if w.names.Temporary(rel) {
 			return nil
+		}
+		if w.present != nil {
+			w.present[path] = true
 		}
 		st, err := os.Stat(path) // follows symlinks to files
 		if err != nil {

@@ -90,6 +90,7 @@ type watcher struct {
 	events   *events
 	complain map[string]bool     // paths whose non-regular type was logged
 	dirty    map[*candidate]bool // changes not yet committed
+	present  map[string]bool     // paths found by the full scan in progress
 	summary  Summary
 	outMu    sync.Mutex
 }
@@ -370,6 +371,10 @@ func (w *watcher) settleTick(ctx context.Context) {
 				w.log.Error("cannot look at file", "file", path, "err", err)
 				w.led.Problem(ctx, c.id, err.Error(), now)
 				c.complained = true
+			}
+			if w.o.Once { // no later look in this run: an error, left for the next
+				delete(w.cands, path)
+				w.summary.Errors++
 			}
 			continue
 		case !st.Mode().IsRegular():
