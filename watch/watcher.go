@@ -187,6 +187,7 @@ func (w *watcher) run(ctx context.Context) (Summary, error) {
 	if w.events != nil {
 		hints = w.events.hints
 	}
+loop:
 	for {
 		if w.o.Once && len(w.cands) == 0 && len(w.busy) == 0 && len(w.queue) == 0 {
 			break
@@ -198,7 +199,7 @@ func (w *watcher) run(ctx context.Context) (Summary, error) {
 		}
 		select {
 		case <-ctx.Done():
-			goto stop
+			break loop
 		case send <- next:
 			w.queue = w.queue[1:]
 		case r := <-w.results:
@@ -214,7 +215,6 @@ func (w *watcher) run(ctx context.Context) (Summary, error) {
 			w.settleTick(bg)
 		}
 	}
-stop:
 	close(w.work)
 	// Drain the workers: moves finish, judgements stop at cancellation.
 	go func() { workers.Wait(); close(w.results) }()
