@@ -37,7 +37,7 @@ func watchCommand() *cli.Command {
 			"      130 interrupted by SIGINT, 143 by SIGTERM (unfinished files are done by the next run)\n" +
 			"   2  the watcher could not start (bad options, no inbox, state folder in use)\n",
 		Flags: []cli.Flag{
-			&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` for every file (built-in id or TOML file); without it each file's nearest kweigh.toml up to its inbox"},
+			&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` for every file (built-in id or TOML file); without it each file's nearest kweigh.toml, as for check"},
 			&cli.BoolFlag{Name: "strict", Usage: "treat warnings as failures (the file goes to --failed)"},
 			&cli.StringFlag{Name: "passed", Usage: "move files that pass (or warn) into `DIR`"},
 			&cli.StringFlag{Name: "failed", Usage: "move files that fail or cannot be judged into `DIR`"},
