@@ -132,7 +132,7 @@ func TestFindSpecRelativeDot(t *testing.T) {
 // decoder and layout options at the same time (run with -race): each must
 // see its own options only.
 func TestConcurrentJudgementsOwnOptions(t *testing.T) {
-	flac := filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac")
+	flac := filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep03.flac")
 	mono := writeFile(t, t.TempDir(), "mono.wav", audiotest.PCMWAV(48000, 1, 16, audiotest.Sine(48000, 1, 997, 0.1)))
 	var wg sync.WaitGroup
 	for i := 0; i < 2; i++ {

@@ -188,6 +188,7 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 		Commands: []*cli.Command{
 			measureCommand(),
 			checkCommand(),
+			fixCommand(),
 			specsCommand(),
 			watchCommand(),
 			historyCommand(),
