@@ -150,7 +150,7 @@ func TestWatchOnceExitStatus(t *testing.T) {
 		folder string
 		want   int
 	}{
-		{"cobalt-stream", exitOK},          // one pass, one warning (demo README)
+		{"quillbrook-stream", exitOK},      // one pass, one warning (demo README)
 		{"northgate-podcasts", exitFailed}, // one pass, two failures
 	} {
 		inbox := t.TempDir()
