@@ -194,9 +194,21 @@ func TestRunOrderAndCancel(t *testing.T) {
 		t.Fatalf("%d emitted, want %d", len(got), len(targets))
 	}
 
+	// The first target waits until another one has finished, so it cannot
+	// be emitted first however the machine schedules the goroutines.
+	otherDone := make(chan struct{})
+	var once sync.Once
+	firstWaits := func(ctx context.Context, tg engine.Target) engine.Record {
+		if tg.Path == targets[0].Path {
+			<-otherDone
+		} else {
+			defer once.Do(func() { close(otherDone) })
+		}
+		return engine.Record{Target: tg}
+	}
 	seen := map[int]int{}
 	var order []int
-	engine.Run(context.Background(), targets, 4, slowFirst, func(i int, _ engine.Record) {
+	engine.Run(context.Background(), targets, 4, firstWaits, func(i int, _ engine.Record) {
 		seen[i]++
 		order = append(order, i)
 	}, false)

@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/loudness/limiter"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/rules"
@@ -103,8 +104,12 @@ func kindOf(container string) (kind, bool) {
 // returns nil; a file it cannot handle gets Action Failed with Err set.
 func File(ctx context.Context, path string, o Options) *Record {
 	rec := &Record{Path: path, Notes: []string{}}
-	m := measure.File(ctx, path, o.Measure)
-	before := rules.Evaluate(o.Spec, m)
+	if o.Spec == nil {
+		return Unjudged(path, errors.New("no delivery spec to bring the file to"))
+	}
+	// The input is judged by the engine every front end uses.
+	j := engine.Judge(ctx, path, engine.Options{Spec: o.Spec, Measure: o.Measure})
+	m, before := j.Measurement, *j.Result
 	rec.Before = &before
 	if m.Error != "" {
 		return rec.fail(m.Err, m.Error)
@@ -173,6 +178,13 @@ func needsFix(r *rules.Result) bool {
 		}
 	}
 	return false
+}
+
+// Unjudged is the record of a file that could not be given a spec (none
+// found, or a broken kweigh.toml): an error, nothing measured or written.
+func Unjudged(path string, err error) *Record {
+	r := &Record{Path: path, Notes: []string{}}
+	return r.fail(err, fmt.Sprintf("%s: %v", path, err))
 }
 
 func (r *Record) fail(err error, msg string) *Record {

@@ -370,7 +370,7 @@ func (w *work) write(ctx context.Context) (*rules.Result, string, error) {
 		}
 	}
 	am.Path = w.dest
-	after := rules.Evaluate(w.o.Spec, am)
+	after := rules.Evaluate(w.o.Spec, am) // the same judgement engine.Judge makes, of the patched output
 	ok = true
 	return &after, name, nil
 }

@@ -6,14 +6,14 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"io/fs"
-	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 
 	"github.com/urfave/cli/v3"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/fix"
 	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/rules"
@@ -47,7 +47,8 @@ func fixCommand() *cli.Command {
 			"   1  a file was refused or still fails its spec\n" +
 			"   2  a file could not be read or written, no audio file was found, or the command line is wrong\n",
 		Flags: []cli.Flag{
-			&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` (a built-in id, see 'kweigh specs') or a TOML file (required)"},
+			&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` (a built-in id, see 'kweigh specs') or a TOML file, for every file; without it each file's nearest kweigh.toml decides, as for check"},
+			&cli.IntFlag{Name: "jobs", Aliases: []string{"j"}, Value: runtime.NumCPU(), Usage: "files corrected at once"},
 			&cli.StringFlag{Name: "out", Usage: "write outputs into `DIR`, keeping their names"},
 			&cli.BoolFlag{Name: "in-place", Usage: "replace each input with its corrected version (atomically: temporary file, fsync, rename)"},
 			&cli.BoolFlag{Name: "force", Usage: "replace outputs that already exist"},
@@ -73,17 +74,20 @@ func fixCommand() *cli.Command {
 type fixOptions struct {
 	fix.Options
 	json bool
+	jobs int
 }
 
 func readFixOptions(cmd *cli.Command) (fixOptions, error) {
 	var o fixOptions
-	name := cmd.String("spec")
-	if name == "" {
-		return o, usagef("fix needs --spec NAME (see 'kweigh specs') or --spec FILE")
+	if name := cmd.String("spec"); name != "" {
+		s, err := engine.LoadSpec(name)
+		if err != nil {
+			return o, usageError{err}
+		}
+		o.Spec = s
 	}
-	s, err := fixSpec(name)
-	if err != nil {
-		return o, err
+	if o.jobs = cmd.Int("jobs"); o.jobs < 1 {
+		return o, usagef("--jobs must be at least 1")
 	}
 	switch f := cmd.String("format"); f {
 	case "text":
@@ -92,7 +96,6 @@ func readFixOptions(cmd *cli.Command) (fixOptions, error) {
 	default:
 		return o, usagef("--format %s is not available for fix (text, json)", f)
 	}
-	o.Spec = s
 	o.OutDir = cmd.String("out")
 	o.InPlace = cmd.Bool("in-place")
 	o.Force = cmd.Bool("force")
@@ -117,71 +120,49 @@ func readFixOptions(cmd *cli.Command) (fixOptions, error) {
 	return o, nil
 }
 
-// fixSpec resolves --spec: a built-in id, else a TOML file.
-func fixSpec(name string) (*rules.Spec, error) {
-	s, err := rules.Lookup(name)
-	if err == nil {
-		return s, nil
-	}
-	if st, serr := os.Stat(name); serr != nil || st.IsDir() {
-		return nil, usageError{err}
-	}
-	s, err = rules.LoadFile(name)
+// fixTargets collects the files to correct the way check does
+// (engine.Collect), leaving out outputs of earlier runs (NAME.fixed.EXT)
+// found in folders.
+func fixTargets(args []string) ([]engine.Target, error) {
+	all, err := engine.Collect(args)
 	if err != nil {
-		return nil, usageError{err}
+		return nil, err
 	}
-	return s, nil
-}
-
-// fixTarget is one file to fix and where under --out it goes.
-type fixTarget struct {
-	path     string
-	sub      string // folder below the argument it was found under
-	explicit bool
-}
-
-// fixTargets expands the arguments: files as named, folders walked in
-// lexical order, passing over hidden entries (fix's own temporary files
-// among them), folder spec files and earlier outputs (NAME.fixed.EXT).
-func fixTargets(args []string) ([]fixTarget, error) {
-	var out []fixTarget
-	seen := map[string]bool{}
-	for _, arg := range args {
-		st, err := os.Stat(arg)
-		if err != nil {
-			return nil, fmt.Errorf("%s: no such file or folder", arg)
-		}
-		if !st.IsDir() {
-			if !seen[arg] {
-				seen[arg] = true
-				out = append(out, fixTarget{path: arg, explicit: true})
-			}
-			continue
-		}
-		err = filepath.WalkDir(arg, func(p string, d fs.DirEntry, err error) error {
-			if err != nil {
-				return err
-			}
-			name := d.Name()
-			if p != arg && strings.HasPrefix(name, ".") {
-				if d.IsDir() {
-					return fs.SkipDir
-				}
-				return nil
-			}
-			if d.IsDir() || !d.Type().IsRegular() || name == "kweigh.toml" || isFixOutput(name) || seen[p] {
-				return nil
-			}
-			seen[p] = true
-			rel, _ := filepath.Rel(arg, filepath.Dir(p))
-			out = append(out, fixTarget{path: p, sub: rel})
-			return nil
-		})
-		if err != nil {
-			return nil, err
+	out := all[:0]
+	for _, t := range all {
+		if t.Explicit || !isFixOutput(filepath.Base(t.Path)) {
+			out = append(out, t)
 		}
 	}
 	return out, nil
+}
+
+// subFolder is the folder of a found file below the argument it was found
+// under: where its output goes under --out.
+func subFolder(t engine.Target) string {
+	if t.Explicit {
+		return ""
+	}
+	rel, err := filepath.Rel(t.Root, filepath.Dir(t.Path))
+	if err != nil {
+		return ""
+	}
+	return rel
+}
+
+// sharesOutputName reports whether two targets would get the same output
+// name under --out (files named on the command line from different
+// folders).
+func sharesOutputName(ts []engine.Target) bool {
+	seen := map[string]bool{}
+	for _, t := range ts {
+		k := filepath.Join(subFolder(t), filepath.Base(t.Path))
+		if seen[k] {
+			return true
+		}
+		seen[k] = true
+	}
+	return false
 }
 
 // isFixOutput reports whether a name is one fix writes beside inputs.
@@ -208,24 +189,33 @@ func runFix(ctx context.Context, o fixOptions, args []string, stdout, stderr io.
 	worst := fix.OK
 	raised := false
 	dests := map[string]string{}
-	for _, t := range targets {
-		if ctx.Err() != nil {
-			break
-		}
+	specs := engine.NewSpecs()
+	work := func(ctx context.Context, i int) *fix.Record {
+		t := targets[i]
 		opt := o.Options
 		if opt.OutDir != "" {
-			opt.OutDir = filepath.Join(opt.OutDir, t.sub)
+			opt.OutDir = filepath.Join(opt.OutDir, subFolder(t))
 		}
-		r := fix.File(ctx, t.path, opt)
-		if !t.explicit && r.Action == fix.Failed && errors.Is(r.Err, decode.ErrUnknownFormat) {
-			fmt.Fprintf(stderr, "kweigh: %s: not audio, skipped\n", t.path)
-			continue
+		if opt.Spec == nil {
+			s, _, err := specs.Find(t.Path)
+			if err != nil {
+				return fix.Unjudged(t.Path, err)
+			}
+			opt.Spec = s
+		}
+		return fix.File(ctx, t.Path, opt)
+	}
+	emit := func(i int, r *fix.Record) {
+		t := targets[i]
+		if !t.Explicit && r.Action == fix.Failed && errors.Is(r.Err, decode.ErrUnknownFormat) && !decode.HasAudioExtension(t.Path) {
+			fmt.Fprintf(stderr, "kweigh: %s: not audio, skipped\n", reports.Printable(t.Path))
+			return
 		}
 		if r.Output != nil && !o.InPlace {
 			if prev, ok := dests[*r.Output]; ok {
 				r.Notes = append(r.Notes, fmt.Sprintf("this output replaced the one written for %s in this run (same name under --out)", prev))
 			}
-			dests[*r.Output] = t.path
+			dests[*r.Output] = t.Path
 		}
 		raised = raised || (r.GainDB != nil && *r.GainDB > 0 && r.Action != fix.Refused && r.Action != fix.Failed)
 		worst = max(worst, r.Outcome())
@@ -234,6 +224,13 @@ func runFix(ctx context.Context, o fixOptions, args []string, stdout, stderr io.
 			writeFixText(stdout, r, o.DryRun)
 		}
 	}
+	// Two files may not write the same output at once: with --out, files of
+	// the same name from different folders are corrected one at a time.
+	jobs := o.jobs
+	if o.OutDir != "" && sharesOutputName(targets) {
+		jobs = 1
+	}
+	engine.RunEach(ctx, len(targets), jobs, work, emit, true)
 	if len(doc.Files) == 0 {
 		return errNoAudio(args)
 	}

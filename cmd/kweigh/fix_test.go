@@ -37,6 +37,7 @@ type fixJSON struct {
 		GainDB     *float64 `json:"gain_db"`
 		LimitingDB *float64 `json:"limiting_db"`
 		Before     *struct {
+			Spec           string   `json:"spec"`
 			Verdict        string   `json:"verdict"`
 			IntegratedLUFS *float64 `json:"integrated_lufs"`
 		} `json:"before"`
@@ -131,8 +132,47 @@ func TestFixRefusedAndDryRun(t *testing.T) {
 	if code != exitOK || !strings.Contains(out, "audition corrected files at a safe monitoring level") || !strings.Contains(out, "not the receiving party's acceptance") {
 		t.Errorf("cautions: exit %d\n%s", code, out)
 	}
-	if code, _, stderr := kweigh(t, "fix", dir); code != exitTrouble || !strings.Contains(stderr, "--spec") {
-		t.Errorf("no spec: exit %d %s", code, stderr)
+	// Without --spec and without a kweigh.toml there is nothing to aim for:
+	// the file is an error naming the way out (exit 2).
+	if code, out, _ := kweigh(t, "fix", dir); code != exitTrouble || !strings.Contains(out, "no spec: give --spec") {
+		t.Errorf("no spec: exit %d %s", code, out)
+	}
+}
+
+// TestFixFindsFolderSpec: without --spec, fix judges and corrects each
+// file against its nearest kweigh.toml, as check does (engine's spec
+// search), here the outlet's spec one folder up; --jobs 2 corrects two
+// files at once and the report keeps the files' order.
+func TestFixFindsFolderSpec(t *testing.T) {
+	top := copyDemo(t, "harbourlight-radio/kweigh.toml")
+	week := filepath.Join(top, "week1")
+	if err := os.Mkdir(week, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	for _, n := range []string{"harbour-lights-promo.wav", "tidewater-evenings-ep08.wav"} {
+		b, err := os.ReadFile(filepath.Join(demoDir, "harbourlight-radio", n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(week, n), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	code, out, _ := kweigh(t, "fix", "--format", "json", "--jobs", "2", week)
+	if code != exitOK {
+		t.Fatalf("exit %d\n%s", code, out)
+	}
+	var doc fixJSON
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Files) != 2 || !strings.HasSuffix(doc.Files[0].Path, "harbour-lights-promo.wav") || !strings.HasSuffix(doc.Files[1].Path, "tidewater-evenings-ep08.wav") {
+		t.Fatalf("files %+v", doc.Files)
+	}
+	for _, f := range doc.Files {
+		if f.Before == nil || f.Before.Spec != "harbourlight-radio" || f.After == nil || f.After.Verdict != "pass" {
+			t.Errorf("%s: before %+v after %+v", f.Path, f.Before, f.After)
+		}
 	}
 }
 

@@ -192,6 +192,7 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 			specsCommand(),
 			watchCommand(),
 			historyCommand(),
+			serveCommand(),
 			versionCommand(),
 		},
 	}
