@@ -30,7 +30,7 @@ func testInbox(t *testing.T, mode string) {
 			t.Fatal(err)
 		}
 	}
-	const settle = 400 * time.Millisecond
+	const settle = 600 * time.Millisecond
 	writeWAV(t, filepath.Join(inbox, "early.wav"), 1, passDBFS)
 	out := &lines{}
 	o := Options{
@@ -70,8 +70,9 @@ func testInbox(t *testing.T, mode string) {
 		os.Chmod(filepath.Join(inbox, "locked.wav"), 0)
 	}
 
-	// A slow writer: 2.4 s of audio in 12 chunks, 150 ms apart (each gap
-	// well under the settle time), header first as a copy tool writes it.
+	// A slow writer: 2.4 s of audio in 24 chunks, 100 ms apart (each gap a
+	// sixth of the settle time, margin for a loaded CI machine), header
+	// first as a copy tool writes it.
 	slowData := wavBytes(2.4, passDBFS)
 	slowDone := make(chan error, 1)
 	go func() {
@@ -80,13 +81,13 @@ func testInbox(t *testing.T, mode string) {
 			slowDone <- err
 			return
 		}
-		chunk := (len(slowData) + 11) / 12
+		chunk := (len(slowData) + 23) / 24
 		for off := 0; off < len(slowData); off += chunk {
 			if _, err := f.Write(slowData[off:min(off+chunk, len(slowData))]); err != nil {
 				slowDone <- err
 				return
 			}
-			time.Sleep(150 * time.Millisecond)
+			time.Sleep(100 * time.Millisecond)
 		}
 		slowDone <- f.Close()
 	}()
