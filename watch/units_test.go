@@ -212,16 +212,16 @@ func TestReplacedInPlace(t *testing.T) {
 	p := filepath.Join(inbox, "ep1.wav")
 	writeWAV(t, p, 1, passDBFS)
 	out := &lines{}
-	w := start(t, Options{Inboxes: []string{inbox}, Settle: 200 * time.Millisecond, Rescan: 100 * time.Millisecond,
+	w := start(t, Options{Inboxes: []string{inbox}, Settle: 500 * time.Millisecond, Rescan: 100 * time.Millisecond,
 		Judge: testJudge(t), Output: out, Poll: 100 * time.Millisecond})
 	waitFor(t, "first version judged", 10*time.Second, func() bool { return len(out.records(t)) == 1 })
-	time.Sleep(300 * time.Millisecond) // rescans see it again: not judged twice
+	time.Sleep(700 * time.Millisecond) // rescans see it again: not judged twice
 	writeWAV(t, p, 1.2, failDBFS)
 	waitFor(t, "second version judged", 10*time.Second, func() bool { return len(out.records(t)) == 2 })
 	writeWAV(t, filepath.Join(inbox, "brief.wav"), 1, passDBFS)
-	time.Sleep(120 * time.Millisecond)
+	time.Sleep(100 * time.Millisecond) // seen by a rescan, far from settled
 	os.Remove(filepath.Join(inbox, "brief.wav"))
-	time.Sleep(600 * time.Millisecond)
+	time.Sleep(time.Second)
 	w.stop(t)
 
 	recs := out.records(t)
