@@ -219,7 +219,7 @@ func TestReplacedInPlace(t *testing.T) {
 	writeWAV(t, p, 1.2, failDBFS)
 	waitFor(t, "second version judged", 10*time.Second, func() bool { return len(out.records(t)) == 2 })
 	writeWAV(t, filepath.Join(inbox, "brief.wav"), 1, passDBFS)
-	time.Sleep(100 * time.Millisecond) // seen by a rescan, far from settled
+	time.Sleep(250 * time.Millisecond) // seen by a rescan (every 100 ms), far from settled (500 ms)
 	os.Remove(filepath.Join(inbox, "brief.wav"))
 	time.Sleep(time.Second)
 	w.stop(t)
