@@ -125,7 +125,6 @@ func (w *watcher) hint(ctx context.Context, h hint) {
 	if st.IsDir() {
 		if h.created {
 			w.scanDir(ctx, inbox, h.path) // watch it, and find what was made before the watch
-			w.commit(ctx)
 		}
 		return
 	}
@@ -141,8 +140,9 @@ func (w *watcher) hint(ctx context.Context, h hint) {
 	if err != nil || !st.Mode().IsRegular() {
 		return
 	}
+	// No commit here: a file being copied sends an event per write, and the
+	// next settle tick commits whatever changed, before anything acts on it.
 	w.observe(ctx, inbox, rel, st, time.Now())
-	w.commit(ctx)
 }
 
 // hiddenOrOwn reports whether path lies in one of the watcher's own folders.
