@@ -190,6 +190,8 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 			checkCommand(),
 			fixCommand(),
 			specsCommand(),
+			watchCommand(),
+			historyCommand(),
 			serveCommand(),
 			versionCommand(),
 		},
