@@ -38,7 +38,7 @@ func (s *Server) getPage(w http.ResponseWriter, r *http.Request, rec *requestLog
 		v.Version = "devel"
 	}
 	for _, sp := range s.cfg.Catalogue.Specs() {
-		v.Specs = append(v.Specs, SpecSummary{ID: sp.ID, Title: sp.Title, Default: sp.ID == s.cfg.Catalogue.Default()})
+		v.Specs = append(v.Specs, SpecSummary{SpecListing: sp.Listing(), Default: sp.ID == s.cfg.Catalogue.Default()})
 	}
 	var b bytes.Buffer
 	if err := pageTemplate.Execute(&b, v); err != nil {

@@ -16,7 +16,6 @@ import (
 	"sync/atomic"
 	"time"
 
-	"github.com/kweigh/kweigh/rules"
 )
 
 // Defaults for Config fields left zero.
@@ -68,9 +67,6 @@ type Config struct {
 	Logger *slog.Logger
 	// Version is recorded in the JSON objects and on the upload page.
 	Version string
-	// DescribeSpec gives a spec's JSON for GET /v1/specs/{id}; nil means
-	// DescribeSpec from this package.
-	DescribeSpec func(*rules.Spec) any
 	// Clock stamps reports; nil means time.Now.
 	Clock func() time.Time
 }
@@ -122,9 +118,6 @@ func New(cfg Config) (*Server, error) {
 	setDefault(&cfg.Grace, DefaultGrace)
 	if cfg.Logger == nil {
 		cfg.Logger = slog.Default()
-	}
-	if cfg.DescribeSpec == nil {
-		cfg.DescribeSpec = DescribeSpec
 	}
 	if cfg.Clock == nil {
 		cfg.Clock = time.Now

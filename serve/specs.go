@@ -8,44 +8,24 @@ import (
 	"github.com/kweigh/kweigh/rules"
 )
 
-// SpecSummary is one row of GET /v1/specs, the same row `kweigh specs
-// --format json` gives.
+// SpecSummary is one row of GET /v1/specs: the row `kweigh specs --format
+// json` gives, and whether it is the default.
 type SpecSummary struct {
-	ID      string `json:"id"`
-	Title   string `json:"title"`
-	Summary string `json:"summary"`
-	Source  string `json:"source"`
-	Marker  string `json:"marker"`
+	rules.SpecListing
 	// Default marks the spec used when a request names none.
 	Default bool `json:"default"`
 }
 
-// SpecDescription is the default answer of GET /v1/specs/{id}, in the
-// shape of `kweigh specs show --format json`: the spec's identity and
-// source and every limit with where it comes from. File is the spec file's
-// name only: the server's folders are nobody's business.
-type SpecDescription struct {
-	ID          string        `json:"id"`
-	Title       string        `json:"title"`
-	Description string        `json:"description"`
-	Source      string        `json:"source"`
-	Marker      string        `json:"marker"`
-	Extends     string        `json:"extends,omitempty"`
-	File        string        `json:"file,omitempty"`
-	Root        bool          `json:"root,omitempty"`
-	Limits      []rules.Limit `json:"limits"`
-	Notes       []string      `json:"notes"`
-}
+// SpecDescription is the answer of GET /v1/specs/{id}: exactly what
+// `kweigh specs show --format json` prints (rules.SpecDocument), except
+// that File is the spec file's name only: the server's folders are
+// nobody's business.
+type SpecDescription = rules.SpecDocument
 
 // DescribeSpec returns a spec's SpecDescription.
-func DescribeSpec(s *rules.Spec) any {
-	d := SpecDescription{
-		ID: s.ID, Title: s.Title, Description: s.Description, Source: s.Source.String(), Marker: s.Source.Marker,
-		Extends: s.Extends, File: SpecFileName(s), Root: s.Root, Limits: s.Limits(), Notes: append([]string{}, s.Notes...),
-	}
-	if d.Limits == nil {
-		d.Limits = []rules.Limit{}
-	}
+func DescribeSpec(s *rules.Spec) SpecDescription {
+	d := s.Document()
+	d.File = SpecFileName(s)
 	return d
 }
 
@@ -62,7 +42,7 @@ func (s *Server) getSpecs(w http.ResponseWriter, r *http.Request, rec *requestLo
 	specs := s.cfg.Catalogue.Specs()
 	rows := make([]SpecSummary, 0, len(specs))
 	for _, sp := range specs {
-		rows = append(rows, SpecSummary{sp.ID, sp.Title, sp.Summary(), sp.Source.String(), sp.Source.Marker, sp.ID == s.cfg.Catalogue.Default()})
+		rows = append(rows, SpecSummary{sp.Listing(), sp.ID == s.cfg.Catalogue.Default()})
 	}
 	writeJSON(w, http.StatusOK, map[string]any{"default": s.cfg.Catalogue.Default(), "specs": rows})
 }
@@ -75,7 +55,7 @@ func (s *Server) getSpec(w http.ResponseWriter, r *http.Request, rec *requestLog
 		writeError(w, http.StatusNotFound, s.unknownSpec(id))
 		return
 	}
-	writeJSON(w, http.StatusOK, s.cfg.DescribeSpec(sp))
+	writeJSON(w, http.StatusOK, DescribeSpec(sp))
 }
 
 func (s *Server) getHealth(w http.ResponseWriter, r *http.Request, rec *requestLog) {

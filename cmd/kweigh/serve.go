@@ -1,9 +1,7 @@
 package main
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"log/slog"
@@ -112,7 +110,6 @@ func runServe(ctx context.Context, cmd *cli.Command, stderr io.Writer) error {
 		HeaderTimeout: cmd.Duration("header-timeout"), ReadTimeout: cmd.Duration("read-timeout"),
 		StallTimeout: cmd.Duration("stall-timeout"), IdleTimeout: cmd.Duration("idle-timeout"),
 		Grace: positive(cmd.Duration("grace")), Logger: logger, Version: versionString(),
-		DescribeSpec: specShowJSON,
 	})
 	if err != nil {
 		return usageError{err}
@@ -133,18 +130,4 @@ func positive(d time.Duration) time.Duration {
 		return time.Nanosecond
 	}
 	return d
-}
-
-// specShowJSON is GET /v1/specs/{id}: exactly what `kweigh specs show
-// --format json` prints, with the spec file named by its base name only.
-func specShowJSON(spec *rules.Spec) any {
-	if spec.File != "" {
-		spec = spec.Clone()
-		spec.File = serve.SpecFileName(spec)
-	}
-	var b bytes.Buffer
-	if err := runSpecsShow(spec, "json", &b); err != nil {
-		return serve.DescribeSpec(spec)
-	}
-	return json.RawMessage(bytes.TrimSpace(b.Bytes()))
 }

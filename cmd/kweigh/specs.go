@@ -119,34 +119,13 @@ func runSpecsList(format string, stdout io.Writer) error {
 		_, err := fmt.Fprintln(stdout, "\nShow one with: kweigh specs show NAME. A pass is not a broadcaster's or regulator's acceptance.")
 		return err
 	case "json":
-		type row struct {
-			ID      string `json:"id"`
-			Title   string `json:"title"`
-			Summary string `json:"summary"`
-			Source  string `json:"source"`
-			Marker  string `json:"marker"`
-		}
-		rows := make([]row, 0, len(specs))
+		rows := make([]rules.SpecListing, 0, len(specs))
 		for _, s := range specs {
-			rows = append(rows, row{s.ID, s.Title, s.Summary(), s.Source.String(), s.Source.Marker})
+			rows = append(rows, s.Listing())
 		}
 		return writeJSON(stdout, map[string]any{"specs": rows})
 	}
 	return badSpecsFormat(format)
-}
-
-// specJSON is `specs show --format json`.
-type specJSON struct {
-	ID          string        `json:"id"`
-	Title       string        `json:"title"`
-	Description string        `json:"description"`
-	Source      string        `json:"source"`
-	Marker      string        `json:"marker"`
-	Extends     string        `json:"extends,omitempty"`
-	File        string        `json:"file,omitempty"`
-	Root        bool          `json:"root,omitempty"`
-	Limits      []rules.Limit `json:"limits"`
-	Notes       []string      `json:"notes"`
 }
 
 // runSpecsShow prints one spec with every limit and its source.
@@ -159,12 +138,7 @@ func runSpecsShow(spec *rules.Spec, format string, stdout io.Writer) error {
 		_, err := fmt.Fprint(stdout, "\n"+markerLegend)
 		return err
 	case "json":
-		notes := append([]string{}, spec.Notes...)
-		return writeJSON(stdout, specJSON{
-			ID: spec.ID, Title: spec.Title, Description: spec.Description, Source: spec.Source.String(),
-			Marker: spec.Source.Marker, Extends: spec.Extends, File: spec.File, Root: spec.Root,
-			Limits: spec.Limits(), Notes: notes,
-		})
+		return writeJSON(stdout, spec.Document())
 	}
 	return badSpecsFormat(format)
 }
