@@ -1,7 +1,6 @@
 package mp3
 
 import (
-	"errors"
 	"fmt"
 	"io"
 
@@ -256,9 +255,9 @@ func (d *Decoder) refill() bool {
 		return false
 	}
 	n, err := d.mp3.Frame(d.feed.frame, d.pcm)
-	var damage *layer3.Damage
+	damage, isDamage := err.(*layer3.Damage)
 	switch {
-	case errors.As(err, &damage):
+	case isDamage:
 		if d.damaged == 0 {
 			d.firstDamage, d.damageReason = d.feed.frameStart, damage.Problem
 		}

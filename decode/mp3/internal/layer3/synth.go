@@ -26,17 +26,17 @@ type synthesis struct {
 func (f *synthesis) run(s *[32]float64, d *[512]float64, out []float64) {
 	f.newest = (f.newest + 15) & 15 // one block back: the ring's "shift by 64"
 	matrix(s, &f.v[f.newest])
-	_ = out[31]
-	for j := range 32 {
-		sum := 0.0
-		for i := range 8 {
-			// U[64i + j] is V[128i + j]: block 2i after the newest,
-			// value j; U[64i + 32 + j] is V[128i + 96 + j]: block 2i + 1,
-			// value 32 + j.
-			a := &f.v[(f.newest+2*i)&15]
-			b := &f.v[(f.newest+2*i+1)&15]
-			sum += a[j]*d[64*i+j] + b[32+j]*d[64*i+32+j]
+	o := (*[32]float64)(out[:32])
+	*o = [32]float64{}
+	for i := range 8 {
+		// U[64i + j] is V[128i + j]: block 2i after the newest, value j;
+		// U[64i + 32 + j] is V[128i + 96 + j]: block 2i + 1, value 32 + j.
+		a := (*[32]float64)(f.v[(f.newest+2*i)&15][:32])
+		b := (*[32]float64)(f.v[(f.newest+2*i+1)&15][32:])
+		da := (*[32]float64)(d[64*i : 64*i+32])
+		db := (*[32]float64)(d[64*i+32 : 64*i+64])
+		for j := range 32 {
+			o[j] += a[j]*da[j] + b[j]*db[j]
 		}
-		out[j] = sum
 	}
 }
