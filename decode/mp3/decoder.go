@@ -1,13 +1,11 @@
 package mp3
 
 import (
-	"errors"
 	"fmt"
 	"io"
 
-	gomp3 "github.com/hajimehoshi/go-mp3"
-
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/decode/mp3/internal/layer3"
 )
 
 func init() {
@@ -26,35 +24,30 @@ func init() {
 // was given comes out of the decoder this many samples (plus the encoder
 // delay) after the start of the first audio frame. 529 is the figure gapless
 // players use (common practice, no published source); TestSynthesisDelay
-// measures it on go-mp3 against the source of every fixture.
+// measures it against the source of every fixture.
 const SynthesisDelay = 529
 
-// decoderFullScale is the value go-mp3 multiplies its float output by
-// before converting to int16; it also clamps to ±decoderFullScale, so a
-// sample at that value reached or exceeded full scale.
-const decoderFullScale = 32767
-
-// bytesPerDecodedFrame is go-mp3's output: 16-bit little-endian stereo,
-// mono duplicated into both channels.
-const bytesPerDecodedFrame = 4
-
-// Decoder decodes one MPEG-1 or MPEG-2 Layer III stream. It implements
+// Decoder decodes one MPEG-1, MPEG-2 or MPEG-2.5 Layer III stream with
+// kweigh's own Layer III decoder (package layer3). It implements
 // decode.Decoder and decode.Noter.
 type Decoder struct {
 	info decode.Info
 	feed *frameFeed
-	mp3  *gomp3.Decoder
+	mp3  *layer3.Decoder
 
-	pcm       []byte // decoded bytes, 4 per frame
-	pcmOff    int
-	skip      int64 // decoded frames still to drop at the start
-	remaining int64 // frames still to deliver; -1 when the end is unknown
+	pcm       []float64 // decoded samples of the current frame, interleaved
+	pcmOff    int       // samples of pcm already delivered or dropped
+	skip      int64     // decoded frames still to drop at the start
+	remaining int64     // frames still to deliver; -1 when the end is unknown
 	delivered int64
 
-	clipped int64
-	notes   []string
-	err     error // damage to report once after the last frame
-	done    bool
+	damaged      int   // frames whose data was damaged (decoded as silence or in part)
+	firstDamage  int64 // file offset of the first of them
+	damageReason string
+
+	notes []string
+	err   error // damage to report once after the last frame
+	done  bool
 }
 
 // New reads the first frame header, the Xing/Info header and the encoder
@@ -62,7 +55,7 @@ type Decoder struct {
 // stream once (the stream, not the Xing/Info header, decides what is
 // audio), and returns a Decoder ready for ReadFrames. It returns a
 // *decode.FormatError when src holds no MPEG audio frame, and a
-// *decode.UnsupportedError for MPEG-2.5, free format and layers I/II.
+// *decode.UnsupportedError for free format and layers I/II.
 func New(src decode.Source, size int64) (*Decoder, error) {
 	start, end, tags := taggedBounds(src, size)
 	off, ok := firstFrame(src, start, end)
@@ -98,13 +91,14 @@ func New(src decode.Source, size int64) (*Decoder, error) {
 			// A lossy stream has no bit depth: the decoder's output
 			// resolution is not a property of the file.
 			BitsPerSample: 0,
-			SampleFormat:  decode.Int,
+			SampleFormat:  decode.Float,
 			Frames:        -1,
 			BitRate:       h.bitRate,
 			Mode:          h.mode.String(),
 			Tags:          tags,
 		},
-		pcm:       make([]byte, 0, h.samplesPerFrame()*bytesPerDecodedFrame),
+		pcm:       make([]float64, 0, h.samplesPerFrame()*h.channels()),
+		mp3:       layer3.NewDecoder(&layer3.Window),
 		remaining: -1,
 	}
 	audioStart, declared := off, int64(-1)
@@ -193,14 +187,13 @@ func (d *Decoder) applyXing(x xingHeader, h frameHeader, counted int64) {
 	}
 }
 
-// Info returns the stream description. Channels is 1 for a mono stream
-// even though go-mp3 decodes every stream to two channels.
+// Info returns the stream description.
 func (d *Decoder) Info() decode.Info { return d.info }
 
 // ReadFrames decodes up to len(dst)/Channels frames into dst, scaled so that
-// the decoder's full scale is ±1. It returns 0, io.EOF at the end; a
-// damaged stream yields its decodable frames, then one
-// *decode.IntegrityError, then io.EOF.
+// the decoder's full scale is ±1 and never clamped (decoded overs are kept).
+// It returns 0, io.EOF at the end; a damaged stream yields its decodable
+// frames, then one *decode.IntegrityError, then io.EOF.
 func (d *Decoder) ReadFrames(dst []float64) (int, error) {
 	ch := d.info.Channels
 	if len(dst)%ch != 0 {
@@ -212,7 +205,7 @@ func (d *Decoder) ReadFrames(dst []float64) (int, error) {
 		if d.pcmOff == len(d.pcm) && !d.refill() {
 			break
 		}
-		n += d.convert(dst[n*ch:want*ch], ch)
+		n += d.take(dst[n*ch:want*ch], ch)
 	}
 	if n > 0 {
 		return n, nil
@@ -225,85 +218,60 @@ func (d *Decoder) ReadFrames(dst []float64) (int, error) {
 	return 0, io.EOF
 }
 
-// convert turns buffered PCM into dst after dropping the leading delay and
+// take copies decoded samples into dst after dropping the leading delay and
 // stopping at the declared end; it returns the frames written.
-func (d *Decoder) convert(dst []float64, ch int) int {
-	avail := int64(len(d.pcm)-d.pcmOff) / bytesPerDecodedFrame
+func (d *Decoder) take(dst []float64, ch int) int {
+	avail := int64(len(d.pcm)-d.pcmOff) / int64(ch)
 	if d.skip > 0 {
 		drop := min(d.skip, avail)
 		d.skip -= drop
-		d.pcmOff += int(drop) * bytesPerDecodedFrame
+		d.pcmOff += int(drop) * ch
 		avail -= drop
 	}
-	take := min(avail, int64(len(dst)/ch))
+	n := min(avail, int64(len(dst)/ch))
 	if d.remaining >= 0 {
-		take = min(take, d.remaining)
-		d.remaining -= take
+		n = min(n, d.remaining)
+		d.remaining -= n
 	}
-	p := d.pcm[d.pcmOff:]
-	for i := range int(take) {
-		for c := range ch {
-			b := p[i*bytesPerDecodedFrame+2*c:]
-			s := int16(uint16(b[0]) | uint16(b[1])<<8)
-			if s >= decoderFullScale || s <= -decoderFullScale {
-				d.clipped++
-			}
-			dst[i*ch+c] = float64(s) / decoderFullScale
-		}
-	}
-	d.pcmOff += int(take) * bytesPerDecodedFrame
-	d.delivered += take
+	copy(dst, d.pcm[d.pcmOff:d.pcmOff+int(n)*ch])
+	d.pcmOff += int(n) * ch
+	d.delivered += n
 	if d.remaining == 0 {
 		d.finish()
 	}
-	return int(take)
+	return int(n)
 }
 
 // refill decodes the next frame into pcm and reports whether it got any.
+// A frame whose data is damaged (CRC mismatch, main data that is not at
+// hand, a granule longer than its data) still yields its frame of samples
+// (silence where the data was bad), so the timing of what follows holds;
+// it is counted and reported after the last frame.
 func (d *Decoder) refill() bool {
 	d.pcm, d.pcmOff = d.pcm[:cap(d.pcm)], 0
-	n, err := d.decode(d.pcm)
-	d.pcm = d.pcm[:n]
-	if err != nil {
-		if !errors.Is(err, io.EOF) {
-			d.err = err
-		}
+	if !d.feed.next() {
+		d.pcm = d.pcm[:0]
 		d.finish()
+		return false
 	}
-	return n > 0
-}
-
-// decode reads decoded bytes from go-mp3, creating it on first use, and
-// turns its errors and panics into *decode.IntegrityError naming the frame.
-func (d *Decoder) decode(p []byte) (n int, err error) {
-	defer func() {
-		if r := recover(); r != nil {
-			n, err = 0, d.damage(fmt.Sprintf("the MP3 decoder failed on this frame (%v)", r))
-		}
-	}()
-	if d.mp3 == nil {
-		m, err := gomp3.NewDecoder(d.feed)
-		if err != nil {
-			if errors.Is(err, io.EOF) {
-				return 0, io.EOF
-			}
-			return 0, d.damage(fmt.Sprintf("the MP3 decoder rejected the first frame (%v)", err))
-		}
-		d.mp3 = m
-	}
-	n, err = io.ReadFull(d.mp3, p)
+	n, err := d.mp3.Frame(d.feed.frame, d.pcm)
+	damage, isDamage := err.(*layer3.Damage)
 	switch {
-	case err == nil:
-		return n, nil
-	case errors.Is(err, io.EOF), errors.Is(err, io.ErrUnexpectedEOF):
-		return n, io.EOF
+	case isDamage:
+		if d.damaged == 0 {
+			d.firstDamage, d.damageReason = d.feed.frameStart, damage.Problem
+		}
+		d.damaged++
+	case err != nil:
+		// The feed hands out only frames whose headers belong to the
+		// stream, so this is a decoder limit, not the file's damage.
+		d.err = &decode.IntegrityError{Format: "mp3", Offset: d.feed.frameStart, Problem: err.Error()}
+		d.pcm = d.pcm[:0]
+		d.finish()
+		return false
 	}
-	return n, d.damage(fmt.Sprintf("the MP3 decoder rejected this frame (%v)", err))
-}
-
-// damage returns an integrity error at the frame being decoded.
-func (d *Decoder) damage(problem string) error {
-	return &decode.IntegrityError{Format: "mp3", Offset: d.feed.frameStart, Problem: problem}
+	d.pcm = d.pcm[:n*d.info.Channels]
+	return n > 0
 }
 
 // finish runs once at the end of the delivered audio: it walks the frames
@@ -319,6 +287,10 @@ func (d *Decoder) finish() {
 			d.err = d.feed.stop
 		}
 	}
+	if d.err == nil && d.damaged > 0 {
+		d.err = &decode.IntegrityError{Format: "mp3", Offset: d.firstDamage,
+			Problem: fmt.Sprintf("%d of %d audio frames are damaged and were decoded as silence where their data was bad (first: %s)", d.damaged, d.feed.frames, d.damageReason)}
+	}
 	if d.feed.note != "" {
 		d.notes = append(d.notes, d.feed.note)
 	}
@@ -327,13 +299,9 @@ func (d *Decoder) finish() {
 	}
 }
 
-// Notes returns what decoding found that the user must be told: samples
-// the decoder clipped at full scale, missing gapless information and
-// ignored trailing bytes. Call it after ReadFrames returned io.EOF.
+// Notes returns what decoding found that the user must be told: missing
+// gapless information and ignored trailing bytes. Call it after ReadFrames
+// returned io.EOF.
 func (d *Decoder) Notes() []string {
-	notes := append([]string(nil), d.notes...)
-	if d.clipped > 0 {
-		notes = append(notes, fmt.Sprintf("decoder clipped %d samples; true peak is at least 0.0 dBTP (the decoded signal reached or exceeded full scale, where the decoder limits it)", d.clipped))
-	}
-	return notes
+	return append([]string(nil), d.notes...)
 }

@@ -1,16 +1,16 @@
-// Package mp3 decodes MPEG-1 and MPEG-2 Audio Layer III (ISO/IEC 11172-3,
-// ISO/IEC 13818-3) files for kweigh's loudness measurement. Importing it
-// registers the "mp3" format with package decode.
+// Package mp3 decodes MPEG-1, MPEG-2 and MPEG-2.5 Audio Layer III
+// (ISO/IEC 11172-3, ISO/IEC 13818-3) files for kweigh's loudness
+// measurement. Importing it registers the "mp3" format with package
+// decode.
 //
-// The Layer III decoding itself is done by github.com/hajimehoshi/go-mp3;
-// this package wraps it so that the engine is handed the audio the file
-// really holds:
-//
-//   - Channels. go-mp3 always outputs 16-bit stereo and copies a mono stream
-//     into both channels. Measured as stereo, such a file would read
-//     10·log10(2) = 3.01 LU too loud (BS.1770 sums the channel powers). The
-//     channel mode is read from the frame header and a mono stream is
-//     delivered as one channel.
+// The Layer III decoding itself is kweigh's own (package
+// internal/layer3), written from the standards: float64 output that is
+// never clamped (decoded overs above full scale are kept, so true peaks
+// are true), a mono stream as one channel (measured as stereo it would
+// read 10·log10(2) = 3.01 LU too loud), no allocation per frame. It
+// replaced github.com/hajimehoshi/go-mp3 (16-bit, clamped, mono doubled),
+// which stays as a test oracle. Around it this package makes sure the
+// engine is handed the audio the file really holds:
 //
 //   - Gapless trimming. An encoder delays the signal (lame 3.100: 576
 //     samples) and pads the last frame; the decoder's synthesis filter banks
@@ -30,25 +30,24 @@
 //     frames than the stream holds would otherwise hide the rest of the
 //     programme; every frame is measured and a note gives both counts.
 //
-//   - Clipping. go-mp3 limits its output to ±32767. Samples at that limit
-//     reached or exceeded full scale; they are counted and reported through
-//     Notes, because the true peak of such a file is above what is measured.
-//     Samples are scaled by 1/32767, the inverse of go-mp3's own scaling,
-//     so the limit maps to exactly ±1.
-//
 //   - Framing. Tags (ID3v2 at the start; APEv2, Lyrics3v2, ID3v1 at the end)
-//     are skipped, and go-mp3 is fed only whole frames that belong to the
-//     stream, walked by this package. Bytes that are not frames, a cut-short
-//     last frame, fewer frames than the Xing header declares, or a decoder
-//     failure (including a panic inside go-mp3) end the stream with a
-//     *decode.IntegrityError naming the byte offset, after every frame that
-//     decoded has been delivered.
+//     are skipped, and the decoder is given only whole frames that belong
+//     to the stream, walked by this package. Bytes that are not frames, a
+//     cut-short last frame or fewer frames than the Xing header declares
+//     end the stream with a *decode.IntegrityError naming the byte offset,
+//     after every frame before them has been delivered.
 //
-//   - Scope. MPEG-2.5 (8, 11.025, 12 kHz), free-format streams (bit-rate
-//     index 0) and layers I and II are recognised by Match but rejected by
-//     New with a *decode.UnsupportedError.
+//   - Damaged frames. A frame whose CRC (when present) fails, whose main
+//     data lies in frames that are not there (bit reservoir) or whose
+//     granules overrun their data is decoded as silence where its data was
+//     bad, so the timing of the rest holds; decoding goes on, and after
+//     the last frame one *decode.IntegrityError counts the damaged frames
+//     and names the first.
+//
+//   - Scope. Free-format streams (bit-rate index 0) and layers I and II
+//     are recognised by Match but rejected by New with a
+//     *decode.UnsupportedError.
 //
 // Decoding streams frame by frame: memory does not grow with the length of
-// the file. (go-mp3 is given a plain io.Reader, not a Seeker, so that it
-// does not build its own table of every frame's offset.)
+// the file.
 package mp3

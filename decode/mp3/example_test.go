@@ -45,10 +45,10 @@ func Example() {
 	// notes: 0
 }
 
-// Example_unsupported shows the message for an MPEG-2.5 file.
+// Example_unsupported shows the message for a free-format file.
 func Example_unsupported() {
-	_, err := decode.Open("testdata/mpeg25-8k.mp3")
+	_, err := decode.Open("testdata/free-format.mp3")
 	fmt.Println(err)
 	// Output:
-	// testdata/mpeg25-8k.mp3: unsupported mp3: MPEG-2.5 audio (8000 Hz); only MPEG-1 and MPEG-2 layer 3 are decoded
+	// testdata/free-format.mp3: unsupported mp3: free-format bit rate (bit-rate index 0); the frame length cannot be read from the header
 }

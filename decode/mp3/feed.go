@@ -9,11 +9,11 @@ import (
 	"github.com/kweigh/kweigh/decode"
 )
 
-// frameFeed hands the MPEG decoder whole, validated frames and nothing else.
-// go-mp3 silently skips bytes until it finds something that looks like a
-// frame header, and reads trailing tags as audio; frameFeed walks the frames
-// itself, so it knows where every frame starts and stops cleanly at the first
-// byte that is not a frame of the stream. Why it stopped is kept in stop
+// frameFeed hands the Layer III decoder whole, validated frames and nothing
+// else: it walks the frames itself, so it knows where every frame starts
+// and stops cleanly at the first byte that is not a frame of the stream
+// (decoders that skip bytes until something looks like a header read
+// damage and trailing tags as audio). Why it stopped is kept in stop
 // (damage) or note (harmless trailing bytes).
 type frameFeed struct {
 	src   io.ReaderAt
@@ -67,8 +67,8 @@ func newFrameFeed(src io.ReaderAt, off, end int64, first frameHeader, declared i
 	}
 }
 
-// Read implements io.Reader for go-mp3. It returns io.EOF after the last
-// whole frame of the stream.
+// Read implements io.Reader over the frames (the test oracle go-mp3 reads
+// the stream this way). It returns io.EOF after the last whole frame.
 func (f *frameFeed) Read(p []byte) (int, error) {
 	if f.served == len(f.frame) {
 		if !f.next() {

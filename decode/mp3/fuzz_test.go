@@ -4,7 +4,10 @@ import (
 	"bytes"
 	"errors"
 	"io"
+	"math"
 	"testing"
+
+	gomp3 "github.com/hajimehoshi/go-mp3"
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/internal/audiotest"
@@ -119,5 +122,68 @@ func FuzzDecode(f *testing.F) {
 			}
 		}
 		_ = d.Notes()
+	})
+}
+
+// FuzzAgainstGoMP3 feeds the same bytes to this package's decoder and to
+// go-mp3 (the decoder it replaced, kept as a test oracle). Ours must never
+// panic, must refuse what is plainly broken (bytes without a single frame
+// sync cannot be an MP3 stream), and must deliver whole frames with finite
+// samples; a go-mp3 panic is the oracle's own failure and only logged.
+// Where both decode the whole input without complaint, the two lengths
+// may differ by go-mp3's habits (mono doubled to stereo, the Info frame
+// and delays kept), so only ours is held to its contract.
+func FuzzAgainstGoMP3(f *testing.F) {
+	for _, name := range []string{"speech-m44-128.mp3", "mpeg25-8k.mp3", "hot-s44-128.mp3"} {
+		b := audiotest.Fixture(f, name)
+		f.Add(b[:min(len(b), 2500)])
+	}
+	f.Fuzz(func(t *testing.T, b []byte) {
+		func() {
+			defer func() {
+				if r := recover(); r != nil {
+					t.Logf("go-mp3 panicked (oracle failure, not ours): %v", r)
+				}
+			}()
+			if g, err := gomp3.NewDecoder(bytes.NewReader(b)); err == nil {
+				_, _ = io.Copy(io.Discard, io.LimitReader(g, 1<<22))
+			}
+		}()
+		d, err := New(bytes.NewReader(b), int64(len(b)))
+		hasSync := false
+		for i := 0; i+1 < len(b); i++ {
+			if b[i] == 0xFF && b[i+1]&0xE0 == 0xE0 {
+				hasSync = true
+				break
+			}
+		}
+		if err != nil {
+			return
+		}
+		if !hasSync {
+			t.Fatal("accepted bytes without a single frame sync")
+		}
+		ch := d.Info().Channels
+		buf := make([]float64, 1000*ch)
+		total := 0
+		for range 100000 {
+			n, err := d.ReadFrames(buf)
+			for _, v := range buf[:n*ch] {
+				if math.IsNaN(v) || math.IsInf(v, 0) {
+					t.Fatalf("non-finite sample %v", v)
+				}
+			}
+			total += n
+			if errors.Is(err, io.EOF) {
+				return
+			}
+			if err != nil {
+				var ie *decode.IntegrityError
+				if !errors.As(err, &ie) {
+					t.Fatalf("ReadFrames: untyped error %v", err)
+				}
+			}
+		}
+		t.Fatalf("no end after %d frames", total)
 	})
 }

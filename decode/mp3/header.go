@@ -10,7 +10,7 @@ import (
 type mpegVersion uint8
 
 const (
-	mpeg25 mpegVersion = 0 // the unofficial low-rate extension, rejected
+	mpeg25 mpegVersion = 0 // the unofficial low-rate extension (8, 11.025, 12 kHz)
 	mpeg2  mpegVersion = 2 // ISO/IEC 13818-3 low sampling frequencies
 	mpeg1  mpegVersion = 3 // ISO/IEC 11172-3
 )
@@ -209,8 +209,6 @@ func (h frameHeader) sameStream(next frameHeader) bool {
 // index (not free format).
 func (h frameHeader) unsupported() string {
 	switch {
-	case h.version == mpeg25:
-		return fmt.Sprintf("MPEG-2.5 audio (%d Hz); only MPEG-1 and MPEG-2 layer 3 are decoded", h.sampleRate)
 	case h.layer != 3:
 		return fmt.Sprintf("%s layer %d audio; only layer 3 (MP3) is decoded", h.version, h.layer)
 	case h.freeFormat():

@@ -109,7 +109,7 @@ func TestUnsupported(t *testing.T) {
 	}{
 		{"mpeg-1 layer 3", header(mpeg1, 3, 9, 0, false, modeStereo), false},
 		{"mpeg-2 layer 3", header(mpeg2, 3, 8, 0, false, modeStereo), false},
-		{"mpeg-2.5", header(mpeg25, 3, 2, 2, false, modeMono), true},
+		{"mpeg-2.5", header(mpeg25, 3, 2, 2, false, modeMono), false},
 		{"layer 2", header(mpeg1, 2, 10, 1, false, modeStereo), true},
 		{"layer 1", header(mpeg1, 1, 10, 1, false, modeStereo), true},
 		{"free format", header(mpeg1, 3, 0, 1, false, modeStereo), true},

@@ -32,41 +32,71 @@ func init() {
 }
 
 // dct32 replaces x with its unnormalised DCT-II: x[m] = Σ x[k]
-// cos(πm(2k + 1)/64).
+// cos(πm(2k + 1)/64). Each level of Lee's recursion has its own function
+// on fixed-size arrays, so that the compiler drops the bounds checks.
 func dct32(x *[32]float64) {
-	var scratch [32]float64
-	dctLee(x[:], scratch[:], 0)
-}
-
-// dctLee is one level of Lee's recursion on x (len n, a power of two),
-// with scratch of the same length.
-func dctLee(x, scratch []float64, level int) {
-	n := len(x)
-	if n == 1 {
-		return
-	}
-	if n == 2 {
-		a, b := x[0], x[1]
-		x[0] = a + b
-		x[1] = (a - b) * dctScale[level][0]
-		return
-	}
-	half := n / 2
-	a, b := scratch[:half], scratch[half:n]
-	sc := &dctScale[level]
-	for k := range half {
-		u, v := x[k], x[n-1-k]
+	var a, b [16]float64
+	sc := &dctScale[0]
+	for k := range 16 {
+		u, v := x[k], x[31-k]
 		a[k] = u + v
 		b[k] = (u - v) * sc[k]
 	}
-	dctLee(a, x[:half], level+1)
-	dctLee(b, x[half:], level+1)
-	for m := range half - 1 {
+	dct16(&a, 1)
+	dct16(&b, 1)
+	for m := range 15 {
 		x[2*m] = a[m]
 		x[2*m+1] = b[m] + b[m+1]
 	}
-	x[n-2] = a[half-1]
-	x[n-1] = b[half-1]
+	x[30], x[31] = a[15], b[15]
+}
+
+func dct16(x *[16]float64, level int) {
+	var a, b [8]float64
+	sc := &dctScale[level]
+	for k := range 8 {
+		u, v := x[k], x[15-k]
+		a[k] = u + v
+		b[k] = (u - v) * sc[k]
+	}
+	dct8(&a, level+1)
+	dct8(&b, level+1)
+	for m := range 7 {
+		x[2*m] = a[m]
+		x[2*m+1] = b[m] + b[m+1]
+	}
+	x[14], x[15] = a[7], b[7]
+}
+
+func dct8(x *[8]float64, level int) {
+	var a, b [4]float64
+	sc := &dctScale[level]
+	for k := range 4 {
+		u, v := x[k], x[7-k]
+		a[k] = u + v
+		b[k] = (u - v) * sc[k]
+	}
+	dct4(&a, level+1)
+	dct4(&b, level+1)
+	for m := range 3 {
+		x[2*m] = a[m]
+		x[2*m+1] = b[m] + b[m+1]
+	}
+	x[6], x[7] = a[3], b[3]
+}
+
+func dct4(x *[4]float64, level int) {
+	sc := &dctScale[level]
+	a0, a1 := x[0]+x[3], x[1]+x[2]
+	b0, b1 := (x[0]-x[3])*sc[0], (x[1]-x[2])*sc[1]
+	s2 := dctScale[level+1][0]
+	// the two 2-point DCTs
+	a0, a1 = a0+a1, (a0-a1)*s2
+	b0, b1 = b0+b1, (b0-b1)*s2
+	x[0] = a0
+	x[1] = b0 + b1
+	x[2] = a1
+	x[3] = b1
 }
 
 // matrix computes the 64 values V of the synthesis matrixing from the 32

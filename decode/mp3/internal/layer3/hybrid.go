@@ -88,7 +88,27 @@ func aliasReduce(xr *[576]float64, g *granule) {
 func hybrid(xr *[576]float64, g *granule, overlap *[32][18]float64, out *[18][32]float64) {
 	var in [18]float64
 	var block [36]float64
-	for sb := range 32 {
+	// Subbands above the last non-zero line have nothing to transform:
+	// their output is what the previous granule left in overlap.
+	last := 575
+	for last >= 0 && xr[last] == 0 {
+		last--
+	}
+	limit := last/18 + 1
+	if last < 0 {
+		limit = 0
+	}
+	for sb := limit; sb < 32; sb++ {
+		for t := range 18 {
+			v := overlap[sb][t]
+			overlap[sb][t] = 0
+			if sb&1 == 1 && t&1 == 1 {
+				v = -v
+			}
+			out[t][sb] = v
+		}
+	}
+	for sb := range limit {
 		bt := g.blockType
 		if !g.windowSwitching {
 			bt = 0

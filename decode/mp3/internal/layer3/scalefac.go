@@ -29,6 +29,12 @@ var lsfBandCounts = [6][3][4]int{
 type scaleFactors struct {
 	long  [22]int
 	short [13][3]int
+	// maxLong and maxShort are the largest value each scale factor's slen
+	// can code, set by readLSF: at the lower sampling frequencies that
+	// value in the right channel of an intensity-stereo band means "not
+	// intensity coded" (ISO/IEC 13818-3 §2.4.3.2).
+	maxLong  [22]int
+	maxShort [13][3]int
 }
 
 // readMPEG1 reads the MPEG-1 scale factors of granule gr into sf (which
@@ -118,7 +124,7 @@ func readLSF(r *bitReader, g *granule, intensityRight bool, sf *scaleFactors) (i
 		}
 	}
 	counts := lsfBandCounts[table][kind]
-	var values [39]int
+	var values, maxes [39]int
 	n := 0
 	for i := range 4 {
 		if slen[i] > 15 {
@@ -126,6 +132,7 @@ func readLSF(r *bitReader, g *granule, intensityRight bool, sf *scaleFactors) (i
 		}
 		for range counts[i] {
 			values[n] = int(r.read(uint(slen[i])))
+			maxes[n] = 1<<slen[i] - 1
 			n++
 		}
 	}
@@ -133,15 +140,19 @@ func readLSF(r *bitReader, g *granule, intensityRight bool, sf *scaleFactors) (i
 	switch kind {
 	case 0:
 		copy(sf.long[:21], values[:21])
+		copy(sf.maxLong[:21], maxes[:21])
 	case 1:
 		for i := range min(n, 36) {
 			sf.short[i/3][i%3] = values[i]
+			sf.maxShort[i/3][i%3] = maxes[i]
 		}
 	case 2:
 		copy(sf.long[:6], values[:6])
+		copy(sf.maxLong[:6], maxes[:6])
 		for i := 6; i < min(n, 33); i++ {
 			v := i - 6
 			sf.short[3+v/3][v%3] = values[i]
+			sf.maxShort[3+v/3][v%3] = maxes[i]
 		}
 	}
 	return r.bitPos() - start, nil

@@ -26,17 +26,18 @@ type synthesis struct {
 func (f *synthesis) run(s *[32]float64, d *[512]float64, out []float64) {
 	f.newest = (f.newest + 15) & 15 // one block back: the ring's "shift by 64"
 	matrix(s, &f.v[f.newest])
-	_ = out[31]
+	o := (*[32]float64)(out[:32])
+	// U[64i + j] is V[128i + j]: block 2i after the newest, value j;
+	// U[64i + 32 + j] is V[128i + 96 + j]: block 2i + 1, value 32 + j.
+	var u [16]*[32]float64
+	for i := range 8 {
+		u[2*i] = (*[32]float64)(f.v[(f.newest+2*i)&15][:32])
+		u[2*i+1] = (*[32]float64)(f.v[(f.newest+2*i+1)&15][32:])
+	}
 	for j := range 32 {
-		sum := 0.0
-		for i := range 8 {
-			// U[64i + j] is V[128i + j]: block 2i after the newest,
-			// value j; U[64i + 32 + j] is V[128i + 96 + j]: block 2i + 1,
-			// value 32 + j.
-			a := &f.v[(f.newest+2*i)&15]
-			b := &f.v[(f.newest+2*i+1)&15]
-			sum += a[j]*d[64*i+j] + b[32+j]*d[64*i+32+j]
-		}
-		out[j] = sum
+		o[j] = u[0][j]*d[j] + u[1][j]*d[32+j] + u[2][j]*d[64+j] + u[3][j]*d[96+j] +
+			u[4][j]*d[128+j] + u[5][j]*d[160+j] + u[6][j]*d[192+j] + u[7][j]*d[224+j] +
+			u[8][j]*d[256+j] + u[9][j]*d[288+j] + u[10][j]*d[320+j] + u[11][j]*d[352+j] +
+			u[12][j]*d[384+j] + u[13][j]*d[416+j] + u[14][j]*d[448+j] + u[15][j]*d[480+j]
 	}
 }
