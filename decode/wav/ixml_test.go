@@ -1,4 +1,4 @@
-package wav
+package wav_test
 
 import (
 	"slices"
@@ -36,10 +36,15 @@ func TestIXMLTimecode(t *testing.T) {
 	}
 
 	deep := strings.Repeat("<A>", 100) + "<TIMECODE_RATE>25/1</TIMECODE_RATE>"
-	if x, err := parseIXML([]byte(deep)); err == nil || x != nil {
-		t.Errorf("100 levels deep: %+v, %v", x, err)
+	d = open(t, wavFile("RIFF", fmt16, chunk("iXML", []byte(deep)), chunk("data", data)))
+	if got := d.Info().IXML; got != nil {
+		t.Errorf("100 levels deep: IXML = %+v", got)
 	}
-	if x, err := parseIXML([]byte("<BWFXML><PROJECT>x</PROJECT></BWFXML>")); err != nil || x != nil {
-		t.Errorf("no timecode fields: %+v, %v", x, err)
+	if notes := d.(decode.Noter).Notes(); !slices.ContainsFunc(notes, func(n string) bool { return strings.Contains(n, "nested too deeply") }) {
+		t.Errorf("notes = %q, want one about the nesting", notes)
+	}
+	d = open(t, wavFile("RIFF", fmt16, chunk("iXML", []byte("<BWFXML><PROJECT>x</PROJECT></BWFXML>")), chunk("data", data)))
+	if got := d.Info().IXML; got != nil {
+		t.Errorf("no timecode fields: IXML = %+v", got)
 	}
 }
