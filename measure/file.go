@@ -11,6 +11,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/loudness"
+	"github.com/kweigh/kweigh/timecode"
 )
 
 // Options tune a measurement. The zero value measures with the file's own
@@ -30,6 +31,15 @@ type Options struct {
 	// plots). Their size is bounded: past 1 h 49 min the engine decimates
 	// them (see loudness.Series).
 	KeepSeries bool
+	// StartTimecode is the timecode of the file's first sample
+	// (HH:MM:SS:FF), overriding the bext TimeReference; empty means the
+	// file's own, if any.
+	StartTimecode string
+	// FPS is the timecode frame rate, overriding the file's iXML; nil
+	// means the file's, else timecode.Default.
+	FPS *timecode.Rate
+	// Events set the limits where events begin (see EventLimits).
+	Events EventLimits
 	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
 	// passed to this file's decoder only.
 	Decode decode.Options
@@ -132,8 +142,18 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 	if clipRun <= 0 {
 		clipRun = DefaultClipRunMinSamples
 	}
+	start, rate, tcNote, err := startOf(info, opt)
+	if err != nil {
+		return fail(err)
+	}
+	if tcNote != "" {
+		m.Notes = append(m.Notes, tcNote)
+	}
 	fold := newDownmixer(layout, info.SampleRate)
 	hyg := newHygiene(info.Channels, info.SampleRate, info.BitsPerSample, info.SampleFormat == decode.Float, layout, silence, clipRun)
+	ev := newEvents(opt.Events)
+	pair := "L/R"
+	hyg.onWindow = func(k int64, c float64) { ev.phaseWindow(k, c, &pair) }
 
 	buf := make([]float64, blockFrames*info.Channels)
 	var frames int64
@@ -154,7 +174,9 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 				at := frames + int64(i/info.Channels)
 				return fail(unmeasurable(at, layout[i%info.Channels], info.SampleRate, block[i]))
 			}
+			clips := ev.markClips(hyg)
 			hyg.write(block)
+			ev.afterBlock(hyg, clips, frames, n, info.SampleRate)
 			if fold != nil {
 				if f := fold.write(block); f >= 0 {
 					at := frames + int64(f)
@@ -197,6 +219,9 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		m.StereoDownmix = fold.result()
 	}
 	m.Signal = hyg.finish(info.SampleRate, layout, r.SamplePeak, silence)
+	ev.fromSeries(&r.Series, m.DurationS, m.Signal.SilenceThresholdDBFS)
+	m.Events, m.EventsOmitted = ev.finish(start)
+	m.setTimecode(start, rate)
 	if opt.KeepSeries {
 		s := r.Series
 		m.Series = &s
