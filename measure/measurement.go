@@ -72,7 +72,7 @@ type Measurement struct {
 	// file (see DownmixMethod); absent for mono and stereo files.
 	StereoDownmix *Downmix `json:"stereo_downmix,omitempty"`
 
-	Signal Signal       `json:"signal"`
+	Signal Signal `json:"signal"`
 	// StartTimecode is the timecode of the first sample (from
 	// --start-timecode or the bext TimeReference), null when unknown;
 	// FPS is the frame rate timecodes count in.
@@ -86,7 +86,7 @@ type Measurement struct {
 	// record.
 	Start timecode.Start `json:"-"`
 
-	Bext   *decode.Bext `json:"bext,omitempty"`
+	Bext *decode.Bext `json:"bext,omitempty"`
 
 	// Damaged is set when decoding found the audio damaged (truncated data,
 	// CRC or MD5 mismatch): the figures describe only what could be decoded.
