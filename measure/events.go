@@ -174,8 +174,11 @@ func (e *events) fromSeries(s *loudness.Series, durationS float64, silenceDBFS f
 	clip := func(a, b float64) (float64, float64) { return a, math.Min(b, durationS) }
 	over := func(kind string, v []float32, limit float64, windowS float64) {
 		l := e.lists[kind]
+		// Compared as the checks compare (rules/compare.go): both rounded to
+		// 0.01, so an event marks exactly what fails.
+		limit = math.Round(limit*100) / 100
 		for i, x := range v {
-			if float64(x) > limit+1e-9 && !math.IsInf(float64(x), 0) {
+			if math.Round(float64(x)*100)/100 > limit && !math.IsInf(float64(x), 0) {
 				a, b := spanOf(i, step)
 				if windowS > 0 {
 					// A window value belongs to the window ending at the
