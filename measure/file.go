@@ -38,6 +38,12 @@ type Options struct {
 	// FPS is the timecode frame rate, overriding the file's iXML; nil
 	// means the file's, else timecode.Default.
 	FPS *timecode.Rate
+	// Groups are the programmes carried on parts of the file's channels,
+	// each measured on its own in the same pass (see Group); EachChannel
+	// makes every channel a mono group. A file without them has no
+	// Measurement.Groups.
+	Groups      []Group
+	EachChannel bool
 	// Events set the limits where events begin (see EventLimits).
 	Events EventLimits
 	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
@@ -154,6 +160,18 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 	ev := newEvents(opt.Events)
 	pair := "L/R"
 	hyg.onWindow = func(k int64, c float64) { ev.phaseWindow(k, c, &pair) }
+	groups, err := groupsFor(opt, info, layout)
+	if err != nil {
+		return fail(err)
+	}
+	var progs []*programme
+	for _, g := range groups {
+		p, err := newProgramme(g, info, silence, clipRun, opt.Events)
+		if err != nil {
+			return fail(err)
+		}
+		progs = append(progs, p)
+	}
 
 	buf := make([]float64, blockFrames*info.Channels)
 	var frames int64
@@ -182,6 +200,11 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 					at := frames + int64(f)
 					return fail(fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
 						at, float64(at)/float64(info.SampleRate), sci(loudness.MaxMagnitude)))
+				}
+			}
+			for _, p := range progs {
+				if err := p.write(block, info.Channels, frames); err != nil {
+					return fail(err)
 				}
 			}
 			frames += int64(n)
@@ -222,6 +245,9 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 	ev.fromSeries(&r.Series, m.DurationS, m.Signal.SilenceThresholdDBFS)
 	m.Events, m.EventsOmitted = ev.finish(start)
 	m.setTimecode(start, rate)
+	for _, p := range progs {
+		m.Groups = append(m.Groups, p.finish(m, frames, info.SampleRate, silence, start, rate, opt.KeepSeries))
+	}
 	if opt.KeepSeries {
 		s := r.Series
 		m.Series = &s
