@@ -1,6 +1,8 @@
 package engine
 
 import (
+	"path/filepath"
+
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/rules"
 )
@@ -29,4 +31,29 @@ func withSpecEvents(o measure.Options, spec *rules.Spec) measure.Options {
 		ev.PhaseLimit = spec.Signal.MinWindowCorrelation
 	}
 	return o
+}
+
+// withSpecGroups returns the measurement options with the spec's
+// programme groups, unless the options already name groups (--groups).
+func withSpecGroups(o measure.Options, spec *rules.Spec) measure.Options {
+	if spec == nil || len(o.Groups) > 0 || o.EachChannel {
+		return o
+	}
+	o.Groups = spec.MeasureGroups()
+	return o
+}
+
+// groupSpecs resolves a group's own spec name: a built-in ID, or a spec
+// file path taken relative to the folder of the spec file that declares
+// the group.
+func groupSpecs(spec *rules.Spec) func(name string) (*rules.Spec, error) {
+	return func(name string) (*rules.Spec, error) {
+		if s, err := rules.Lookup(name); err == nil {
+			return s, nil
+		}
+		if spec.File != "" && !filepath.IsAbs(name) {
+			name = filepath.Join(filepath.Dir(spec.File), name)
+		}
+		return LoadSpec(name)
+	}
 }

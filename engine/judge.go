@@ -134,7 +134,7 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func(measure.Op
 		rec.Result = errorResult(rec.Measurement)
 		return rec
 	}
-	rec.Measurement = measureIt(withSpecEvents(opt.Measure, spec))
+	rec.Measurement = measureIt(withSpecGroups(withSpecEvents(opt.Measure, spec), spec))
 	if rec.Skipped = skip(t, rec.Measurement); rec.Skipped {
 		return rec
 	}
@@ -146,7 +146,7 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func(measure.Op
 		rec.Result = errorResult(rec.Measurement)
 		return rec
 	}
-	r := rules.Evaluate(spec, rec.Measurement)
+	r := rules.EvaluateGroups(spec, rec.Measurement, groupSpecs(spec))
 	rec.Result = &r
 	return rec
 }
