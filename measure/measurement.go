@@ -77,7 +77,7 @@ type Measurement struct {
 	// --start-timecode or the bext TimeReference), null when unknown;
 	// FPS is the frame rate timecodes count in.
 	StartTimecode *string `json:"start_timecode"`
-	FPS           string  `json:"fps"`
+	FPS           string  `json:"fps,omitempty"`
 	// Events are the stretches where a limit is broken, in time order (see
 	// Event); EventsOmitted counts per kind those beyond the cap.
 	Events        []Event        `json:"events"`
