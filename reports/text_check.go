@@ -70,7 +70,7 @@ func (t *checkText) Write(r *rules.Result) error {
 			t.detail("timecode " + tc)
 		}
 		for _, e := range eventLines(m, m.Events, m.EventsOmitted) {
-			t.detail("event " + e)
+			t.detail(e)
 		}
 		for _, g := range r.Groups {
 			t.print("\n" + detailIndent + t.verdictCell(g.Verdict) + "  " + groupHead(g.Name, g.Channels, g.ChannelLayout))
@@ -84,7 +84,7 @@ func (t *checkText) Write(r *rules.Result) error {
 			t.detail("  " + figuresText(&g.Result))
 			t.checks(g.Checks)
 			for _, e := range eventLines(g.Measurement, g.Events, g.EventsOmitted) {
-				t.detail("  event " + e)
+				t.detail("  " + e)
 			}
 		}
 	}

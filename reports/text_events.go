@@ -14,14 +14,14 @@ import (
 const TextEvents = 5
 
 // eventLines are the text lines for a file's events: the first
-// TextEvents, then a count of the rest.
+// TextEvents, each starting "event ", then a count of the rest.
 func eventLines(m *measure.Measurement, evs []measure.Event, omitted map[string]int) []string {
 	var out []string
 	for i, e := range evs {
 		if i == TextEvents {
 			break
 		}
-		out = append(out, fmt.Sprintf("%s–%s  %s: %s", e.StartTimecode, e.EndTimecode, MarkerName(e), EventText(e)))
+		out = append(out, fmt.Sprintf("event %s–%s  %s: %s", e.StartTimecode, e.EndTimecode, MarkerName(e), EventText(e)))
 	}
 	rest := len(evs) - min(len(evs), TextEvents)
 	for _, n := range omitted {

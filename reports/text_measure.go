@@ -78,13 +78,17 @@ func (t *measureText) Write(m *measure.Measurement) error {
 		t.line("timecode", tc)
 	}
 	for _, e := range eventLines(m, m.Events, m.EventsOmitted) {
-		t.line("event", e)
+		label, text, _ := strings.Cut(e, " ")
+		if label != "event" {
+			label, text = "", e
+		}
+		t.line(label, text)
 	}
 	for _, g := range m.Groups {
 		t.line("group", groupHead(g.Name, g.Channels, g.ChannelLayout)[len("group "):])
 		t.line("", groupFigures(&g.Measurement, "LUFS"))
 		for _, e := range eventLines(&g.Measurement, g.Events, g.EventsOmitted) {
-			t.line("", "event "+e)
+			t.line("", e)
 		}
 	}
 	if m.Bext != nil {
