@@ -2,6 +2,8 @@ package measure_test
 
 import (
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/binary"
 	"math"
 	"testing"
@@ -212,5 +214,22 @@ func TestEventsCapped(t *testing.T) {
 		measure.Options{Events: measure.EventLimits{MaxPerKind: 5}})
 	if got := len(eventsOf(m, measure.EventTruePeakOver)); got != 5 || m.EventsOmitted[measure.EventTruePeakOver] != 24 {
 		t.Errorf("kept %d, omitted %v", got, m.EventsOmitted)
+	}
+}
+
+// TestDigest: the SHA-256 of the streaming pass is that of the bytes
+// (crypto/sha256 over the whole file in memory, the reference here), and
+// the size is the file's.
+func TestDigest(t *testing.T) {
+	data := wavBytes(1, 16, false, 0, make([]float64, 3*rate/2+7))
+	data = append(data, make([]byte, 3<<20)...) // beyond several digest chunks (a trailing pad the reader ignores)
+	path := writeTemp(t, "digest.wav", data)
+	m := measure.File(context.Background(), path, measure.Options{Digest: true})
+	want := sha256.Sum256(data)
+	if m.File == nil || m.File.SizeBytes != int64(len(data)) || m.File.SHA256 != hex.EncodeToString(want[:]) {
+		t.Errorf("file facts %+v, error %q", m.File, m.Error)
+	}
+	if m := measure.File(context.Background(), path, measure.Options{}); m.File != nil {
+		t.Error("digest without Options.Digest")
 	}
 }

@@ -44,6 +44,9 @@ type Options struct {
 	// Measurement.Groups.
 	Groups      []Group
 	EachChannel bool
+	// Digest adds the file's size and SHA-256 (Measurement.File), read in
+	// a streaming pass after the measurement.
+	Digest bool
 	// Events set the limits where events begin (see EventLimits).
 	Events EventLimits
 	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
@@ -66,7 +69,16 @@ func File(ctx context.Context, path string, opt Options) *Measurement {
 		return &Measurement{Path: path, Error: errorText(path, err), Err: err, Notes: []string{}}
 	}
 	defer f.Close()
-	return Stream(ctx, path, f, opt)
+	m := Stream(ctx, path, f, opt)
+	if opt.Digest && m.Error == "" {
+		facts, err := Digest(ctx, path)
+		if err != nil {
+			m.Error, m.Err = errorText(path, err), err
+			return m
+		}
+		m.File = facts
+	}
+	return m
 }
 
 // errorText makes sure an error message names the file once.

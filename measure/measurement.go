@@ -82,6 +82,9 @@ type Measurement struct {
 	// Event); EventsOmitted counts per kind those beyond the cap.
 	Events        []Event        `json:"events"`
 	EventsOmitted map[string]int `json:"events_omitted,omitempty"`
+	// File is the file's size and SHA-256, with Options.Digest; absent
+	// otherwise.
+	File *FileFacts `json:"file,omitempty"`
 	// Groups are the file's programme groups, each measured on its own
 	// (see Group); absent when none were declared.
 	Groups []*GroupMeasurement `json:"groups,omitempty"`
