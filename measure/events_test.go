@@ -3,8 +3,8 @@ package measure_test
 import (
 	"context"
 	"crypto/sha256"
-	"encoding/hex"
 	"encoding/binary"
+	"encoding/hex"
 	"math"
 	"testing"
 

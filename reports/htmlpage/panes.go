@@ -14,11 +14,11 @@ import (
 // axis, so a peak level is never read off the loudness scale) and the
 // events lane on the time axis.
 const (
-	peakPaneTop     = 262.0
-	peakPaneBottom  = 334.0
-	eventTop    = 340.0
-	eventHeight = 12.0
-	timeAxisY   = eventTop + eventHeight // the time axis' baseline
+	peakPaneTop    = 262.0
+	peakPaneBottom = 334.0
+	eventTop       = 340.0
+	eventHeight    = 12.0
+	timeAxisY      = eventTop + eventHeight // the time axis' baseline
 )
 
 // bandColumnsPerElement is how many series elements a drawn column may

@@ -23,7 +23,7 @@ func recordPage(paper string) Page {
 		ChannelLayout: []string{"L", "R", "C", "LFE", "Lb", "Rb", "Ls", "Rs"}, LayoutSource: "file",
 		IntegratedLUFS: f64(-21), TruePeakDBTP: f64(-0.4), LoudnessRangeLU: f64(6),
 		StartTimecode: &start, FPS: "25",
-		File:          &measure.FileFacts{SizeBytes: 138240044, SHA256: strings.Repeat("0123456789abcdef", 4)},
+		File: &measure.FileFacts{SizeBytes: 138240044, SHA256: strings.Repeat("0123456789abcdef", 4)},
 		Bext: &decode.Bext{Description: "Harbour Lights 104 printmaster", Originator: "Tidewater Sound", OriginatorReference: "TWS-104",
 			OriginationDate: "2026-11-30", OriginationTime: "18:04:11", CodingHistory: "A=PCM,F=48000,W=24,M=multi,T=Tidewater desk B"},
 		Events: []measure.Event{{Kind: measure.EventTruePeakOver, StartS: 12.3, EndS: 12.4, StartTimecode: "10:00:12:07", EndTimecode: "10:00:12:10", Value: f64(-0.4), Unit: "dBTP"}},
