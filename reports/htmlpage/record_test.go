@@ -30,7 +30,8 @@ func recordPage(paper string) Page {
 		Notes:  []string{},
 	}
 	main := &measure.GroupMeasurement{Name: "main", Channels: []int{1, 2, 3, 4, 5, 6}, Measurement: measure.Measurement{ChannelLayout: []string{"L", "R", "C", "LFE", "Ls", "Rs"}, IntegratedLUFS: f64(-23.0), TruePeakDBTP: f64(-2)}}
-	stereo := &measure.GroupMeasurement{Name: "stereo", Channels: []int{7, 8}, Measurement: measure.Measurement{ChannelLayout: []string{"L", "R"}, IntegratedLUFS: f64(-19.5), TruePeakDBTP: f64(-0.4)}}
+	stereo := &measure.GroupMeasurement{Name: "stereo", Channels: []int{7, 8}, Measurement: measure.Measurement{ChannelLayout: []string{"L", "R"}, IntegratedLUFS: f64(-19.5), TruePeakDBTP: f64(-0.4),
+		Events: []measure.Event{{Kind: measure.EventLoudSection, StartS: 0, EndS: 25, StartTimecode: "10:00:00:00", EndTimecode: "10:00:25:00", Value: f64(4.5), Unit: "LU"}}}}
 	m.Groups = []*measure.GroupMeasurement{main, stereo}
 	r := &rules.Result{Measurement: m, Spec: "ebu-r128", Verdict: rules.Fail, Checks: []rules.Check{}, Groups: []rules.GroupResult{
 		{Name: "main", Channels: main.Channels, Result: rules.Result{Measurement: &main.Measurement, Spec: "ebu-r128", Verdict: rules.Pass, Checks: []rules.Check{}}},
@@ -54,7 +55,7 @@ func TestQCRecord(t *testing.T) {
 		"138240044 bytes", "0123456789abcdef<wbr>0123456789abcdef", "Harbour Lights 104 printmaster", "Tidewater Sound TWS-104",
 		"2026-11-30 18:04:11", "A=PCM,F=48000,W=24,M=multi,T=Tidewater desk B", "10:00:00:00 at 25 fps",
 		`<td class="tc">10:00:12:07</td><td class="tc">10:00:12:10</td><td><strong>true-peak over</strong>: true peak up to -0.40 dBTP</td>`,
-		"<strong>stereo</strong>", "7-8", "integrated -19.5 LUFS is 3.5 LU above the -23.0 LUFS target",
+		"<strong>stereo</strong>", "7-8", "<strong>group stereo: loud section</strong>: 4.5 LU above the rest of the programme", "integrated -19.5 LUFS is 3.5 LU above the -23.0 LUFS target",
 		"size: letter;", "deliveries/<wbr>tidewater/<wbr>harbour-lights/<wbr>HL_S01E04_printmaster_8ch.wav",
 		`class="event true_peak_over"`, "timecode (HH:MM:SS:FF at 25 fps, from 10:00:00:00)",
 	} {

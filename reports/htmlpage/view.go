@@ -184,6 +184,13 @@ func buildFile(i int, e Entry) fileView {
 	f.Facts = fileFacts(r)
 	f.Events = eventRows(r.Measurement, r.Events)
 	f.EventsOmitted = omittedEvents(r.Measurement)
+	for _, g := range r.Measurement.Groups {
+		for _, ev := range eventRows(&g.Measurement, g.Events) {
+			ev.Kind = "group " + g.Name + ": " + ev.Kind
+			f.Events = append(f.Events, ev)
+		}
+		f.EventsOmitted += omittedEvents(&g.Measurement)
+	}
 	f.Groups = groupRows(r)
 	lead, trail := r.Signal.LeadingSilenceS, r.Signal.TrailingSilenceS
 	f.Figures = []figureView{
