@@ -74,6 +74,43 @@ func pdfText(t *testing.T, pdf string) string {
 	return string(out)
 }
 
+// vermillionPixels rasterises a PDF at 40 dpi and counts the pixels near
+// the plots' vermillion (#D55E00).
+func vermillionPixels(t *testing.T, pdf string) (red int) {
+	t.Helper()
+	bin, err := exec.LookPath("pdftoppm")
+	if err != nil {
+		t.Fatal("pdftoppm not found: install poppler-utils (.ci/setup does this)")
+	}
+	prefix := filepath.Join(t.TempDir(), "page")
+	if out, err := exec.Command(bin, "-r", "40", "-png", pdf, prefix).CombinedOutput(); err != nil {
+		t.Fatalf("pdftoppm: %v\n%s", err, out)
+	}
+	pngs, _ := filepath.Glob(prefix + "*.png")
+	for _, name := range pngs {
+		f, err := os.Open(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		img, err := png.Decode(f)
+		f.Close()
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		b := img.Bounds()
+		for y := b.Min.Y; y < b.Max.Y; y++ {
+			for x := b.Min.X; x < b.Max.X; x++ {
+				r, g, bl, _ := img.At(x, y).RGBA()
+				r, g, bl = r>>8, g>>8, bl>>8
+				if r > 180 && g > 60 && g < 130 && bl < 50 {
+					red++
+				}
+			}
+		}
+	}
+	return red
+}
+
 func tail(s string, n int) string {
 	if len(s) > n {
 		return "…" + s[len(s)-n:]
@@ -201,6 +238,14 @@ func TestBrowserRendersReport(t *testing.T) {
 			t.Errorf("printed report lacks %q", want)
 		}
 	}
+	// The red marks print red: the pages rasterised (pdftoppm, poppler-utils)
+	// hold pixels of the vermillion the plots draw the ceiling and overs in
+	// (#D55E00), which print-color-adjust keeps from being dropped.
+	red := vermillionPixels(t, pdf)
+	if red == 0 {
+		t.Error("the printed report has no vermillion pixels: the red marks did not print in colour")
+	}
+	t.Logf("printed colours: %d vermillion pixels at 40 dpi", red)
 	// Every file's heading is printed on each of its pages: on a page
 	// holding the file's sheet, the running heading names its path.
 	for _, e := range page.Entries {
