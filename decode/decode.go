@@ -78,6 +78,9 @@ type Info struct {
 	Tags []string
 	// Bext holds the Broadcast Wave extension chunk when the file has one.
 	Bext *Bext
+	// IXML holds the timecode fields of an iXML chunk when the file has
+	// one (WAVE only); nil otherwise.
+	IXML *IXML
 	// Undeclared is set when the file holds data after the audio its
 	// header declares that is neither a chunk nor a tag (see Undeclared);
 	// nil otherwise. ReadFrames delivers only the declared audio.

@@ -84,8 +84,8 @@ func (r Record) Passed(strict bool) bool {
 // cancelled, measuring stops between two blocks and Record.Interrupted is
 // true.
 func Judge(ctx context.Context, path string, opt Options) Record {
-	return judge(ctx, Target{Path: path, Root: path, Explicit: true}, opt, func() *measure.Measurement {
-		return measure.File(ctx, path, opt.Measure)
+	return judge(ctx, Target{Path: path, Root: path, Explicit: true}, opt, func(mo measure.Options) *measure.Measurement {
+		return measure.File(ctx, path, mo)
 	})
 }
 
@@ -93,8 +93,8 @@ func Judge(ctx context.Context, path string, opt Options) Record {
 // decoded elsewhere); name is the record's path and, without Options.Spec,
 // where the folder spec is looked for.
 func JudgeStream(ctx context.Context, name string, d decode.Decoder, opt Options) Record {
-	return judge(ctx, Target{Path: name, Root: name, Explicit: true}, opt, func() *measure.Measurement {
-		return measure.Stream(ctx, name, d, opt.Measure)
+	return judge(ctx, Target{Path: name, Root: name, Explicit: true}, opt, func(mo measure.Options) *measure.Measurement {
+		return measure.Stream(ctx, name, d, mo)
 	})
 }
 
@@ -102,18 +102,18 @@ func JudgeStream(ctx context.Context, name string, d decode.Decoder, opt Options
 // listed carries its error, and a file found in a folder that is not audio
 // is Skipped.
 func JudgeTarget(ctx context.Context, t Target, opt Options) Record {
-	return judge(ctx, t, opt, func() *measure.Measurement {
+	return judge(ctx, t, opt, func(mo measure.Options) *measure.Measurement {
 		if t.Err != nil {
 			return &measure.Measurement{Path: t.Path, Error: fmt.Sprintf("%s: %v", t.Path, t.Err), Err: t.Err, Notes: []string{}}
 		}
-		return measure.File(ctx, t.Path, opt.Measure)
+		return measure.File(ctx, t.Path, mo)
 	})
 }
 
-func judge(ctx context.Context, t Target, opt Options, measureIt func() *measure.Measurement) Record {
+func judge(ctx context.Context, t Target, opt Options, measureIt func(measure.Options) *measure.Measurement) Record {
 	rec := Record{Target: t}
 	if opt.MeasureOnly {
-		rec.Measurement = measureIt()
+		rec.Measurement = measureIt(opt.Measure)
 		rec.Skipped = skip(t, rec.Measurement)
 		namedLikeAudio(t.Path, rec.Measurement)
 		return rec
@@ -134,7 +134,7 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func() *measure
 		rec.Result = errorResult(rec.Measurement)
 		return rec
 	}
-	rec.Measurement = measureIt()
+	rec.Measurement = measureIt(withSpecGroups(withSpecEvents(opt.Measure, spec), spec))
 	if rec.Skipped = skip(t, rec.Measurement); rec.Skipped {
 		return rec
 	}
@@ -146,7 +146,7 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func() *measure
 		rec.Result = errorResult(rec.Measurement)
 		return rec
 	}
-	r := rules.Evaluate(spec, rec.Measurement)
+	r := rules.EvaluateGroups(spec, rec.Measurement, groupSpecs(spec))
 	rec.Result = &r
 	return rec
 }

@@ -44,3 +44,19 @@ func ExampleUndeclaredText() {
 	// Output:
 	// the header declares 10.0 s but 10.0 s more audio-like data follows (960000 bytes from byte 960044 that are neither chunks nor tags)
 }
+
+// ExampleParseGroups reads the --groups syntax of an 8-channel delivery
+// carrying a 5.1 mix and a stereo mix.
+func ExampleParseGroups() {
+	groups, _, err := measure.ParseGroups("main=1-6:5.1,stereo=7-8:stereo")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, g := range groups {
+		fmt.Println(g.Name, g.Channels, g.Layout)
+	}
+	// Output:
+	// main [1 2 3 4 5 6] [L R C LFE Ls Rs]
+	// stereo [7 8] [L R]
+}

@@ -11,6 +11,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/loudness"
+	"github.com/kweigh/kweigh/timecode"
 )
 
 // Options tune a measurement. The zero value measures with the file's own
@@ -30,6 +31,24 @@ type Options struct {
 	// plots). Their size is bounded: past 1 h 49 min the engine decimates
 	// them (see loudness.Series).
 	KeepSeries bool
+	// StartTimecode is the timecode of the file's first sample
+	// (HH:MM:SS:FF), overriding the bext TimeReference; empty means the
+	// file's own, if any.
+	StartTimecode string
+	// FPS is the timecode frame rate, overriding the file's iXML; nil
+	// means the file's, else timecode.Default.
+	FPS *timecode.Rate
+	// Groups are the programmes carried on parts of the file's channels,
+	// each measured on its own in the same pass (see Group); EachChannel
+	// makes every channel a mono group. A file without them has no
+	// Measurement.Groups.
+	Groups      []Group
+	EachChannel bool
+	// Digest adds the file's size and SHA-256 (Measurement.File), read in
+	// a streaming pass after the measurement.
+	Digest bool
+	// Events set the limits where events begin (see EventLimits).
+	Events EventLimits
 	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
 	// passed to this file's decoder only.
 	Decode decode.Options
@@ -50,7 +69,16 @@ func File(ctx context.Context, path string, opt Options) *Measurement {
 		return &Measurement{Path: path, Error: errorText(path, err), Err: err, Notes: []string{}}
 	}
 	defer f.Close()
-	return Stream(ctx, path, f, opt)
+	m := Stream(ctx, path, f, opt)
+	if opt.Digest && m.Error == "" {
+		facts, err := Digest(ctx, path)
+		if err != nil {
+			m.Error, m.Err = errorText(path, err), err
+			return m
+		}
+		m.File = facts
+	}
+	return m
 }
 
 // errorText makes sure an error message names the file once.
@@ -132,8 +160,30 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 	if clipRun <= 0 {
 		clipRun = DefaultClipRunMinSamples
 	}
+	start, rate, tcNote, err := startOf(info, opt)
+	if err != nil {
+		return fail(err)
+	}
+	if tcNote != "" {
+		m.Notes = append(m.Notes, tcNote)
+	}
 	fold := newDownmixer(layout, info.SampleRate)
 	hyg := newHygiene(info.Channels, info.SampleRate, info.BitsPerSample, info.SampleFormat == decode.Float, layout, silence, clipRun)
+	ev := newEvents(opt.Events)
+	pair := "L/R"
+	hyg.onWindow = func(k int64, c float64) { ev.phaseWindow(k, c, &pair) }
+	groups, err := groupsFor(opt, info, layout)
+	if err != nil {
+		return fail(err)
+	}
+	var progs []*programme
+	for _, g := range groups {
+		p, err := newProgramme(g, info, silence, clipRun, opt.Events)
+		if err != nil {
+			return fail(err)
+		}
+		progs = append(progs, p)
+	}
 
 	buf := make([]float64, blockFrames*info.Channels)
 	var frames int64
@@ -154,12 +204,19 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 				at := frames + int64(i/info.Channels)
 				return fail(unmeasurable(at, layout[i%info.Channels], info.SampleRate, block[i]))
 			}
+			clips := ev.markClips(hyg)
 			hyg.write(block)
+			ev.afterBlock(hyg, clips, frames, n, info.SampleRate)
 			if fold != nil {
 				if f := fold.write(block); f >= 0 {
 					at := frames + int64(f)
 					return fail(fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
 						at, float64(at)/float64(info.SampleRate), sci(loudness.MaxMagnitude)))
+				}
+			}
+			for _, p := range progs {
+				if err := p.write(block, info.Channels, frames); err != nil {
+					return fail(err)
 				}
 			}
 			frames += int64(n)
@@ -197,6 +254,12 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		m.StereoDownmix = fold.result()
 	}
 	m.Signal = hyg.finish(info.SampleRate, layout, r.SamplePeak, silence)
+	ev.fromSeries(&r.Series, m.DurationS, m.Signal.SilenceThresholdDBFS)
+	m.Events, m.EventsOmitted = ev.finish(start)
+	m.setTimecode(start, rate)
+	for _, p := range progs {
+		m.Groups = append(m.Groups, p.finish(m, frames, info.SampleRate, silence, start, rate, opt.KeepSeries))
+	}
 	if opt.KeepSeries {
 		s := r.Series
 		m.Series = &s

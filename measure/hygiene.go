@@ -55,6 +55,10 @@ type hygiene struct {
 	minWindow    float64
 	haveWindow   bool
 	maxDiff      float64
+	// windows counts the closed 3 s windows; onWindow, when set, hears
+	// the correlation of each one with signal (for phase events).
+	windows  int64
+	onWindow func(k int64, c float64)
 }
 
 // pairStats holds the running sums for a Pearson correlation of two
@@ -293,8 +297,12 @@ func (h *hygiene) closeWindow() {
 				h.minWindow = c
 			}
 			h.haveWindow = true
+			if h.onWindow != nil {
+				h.onWindow(h.windows, c)
+			}
 		}
 	}
+	h.windows++
 	*w = pairStats{}
 }
 

@@ -13,7 +13,22 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/loudness"
+	"github.com/kweigh/kweigh/timecode"
 )
+
+// setTimecode records the file's start and rate.
+func (m *Measurement) setTimecode(start timecode.Start, rate timecode.Rate) {
+	m.Start = start
+	m.FPS = rate.String()
+	if start.Known {
+		s := start.At.String()
+		m.StartTimecode = &s
+	}
+}
+
+// TimeLabel shows an instant t seconds into the file: as timecode when a
+// start is known, as h:mm:ss.s from zero otherwise.
+func (m *Measurement) TimeLabel(t float64) string { return m.Start.Label(t) }
 
 // Measurement is the record of one file. Its JSON form is kweigh's stable
 // machine output (documented in README.md); a figure the standard leaves
@@ -57,8 +72,27 @@ type Measurement struct {
 	// file (see DownmixMethod); absent for mono and stereo files.
 	StereoDownmix *Downmix `json:"stereo_downmix,omitempty"`
 
-	Signal Signal       `json:"signal"`
-	Bext   *decode.Bext `json:"bext,omitempty"`
+	Signal Signal `json:"signal"`
+	// StartTimecode is the timecode of the first sample (from
+	// --start-timecode or the bext TimeReference), null when unknown;
+	// FPS is the frame rate timecodes count in.
+	StartTimecode *string `json:"start_timecode"`
+	FPS           string  `json:"fps,omitempty"`
+	// Events are the stretches where a limit is broken, in time order (see
+	// Event); EventsOmitted counts per kind those beyond the cap.
+	Events        []Event        `json:"events"`
+	EventsOmitted map[string]int `json:"events_omitted,omitempty"`
+	// File is the file's size and SHA-256, with Options.Digest; absent
+	// otherwise.
+	File *FileFacts `json:"file,omitempty"`
+	// Groups are the file's programme groups, each measured on its own
+	// (see Group); absent when none were declared.
+	Groups []*GroupMeasurement `json:"groups,omitempty"`
+	// Start labels times in this file (Start.Label); not part of the JSON
+	// record.
+	Start timecode.Start `json:"-"`
+
+	Bext *decode.Bext `json:"bext,omitempty"`
 
 	// Damaged is set when decoding found the audio damaged (truncated data,
 	// CRC or MD5 mismatch): the figures describe only what could be decoded.

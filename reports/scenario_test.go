@@ -67,9 +67,23 @@ func surroundTooLoud() *measure.Measurement {
 			ClippedSamples: 14, ClipRuns: 2, ClipRunMinSamples: 3, LongestClipRun: 5,
 			DCOffset: []float64{0, 0, 0, 0, 0, 0}, Correlation: num(0.64), MinWindowCorrelation: num(-0.12),
 		},
+		// A programme starting at 10:00:00:00 (bext TimeReference) with a
+		// hot cold open and a few overs; more than the text report shows.
+		StartTimecode: ptrString("10:00:00:00"), FPS: "25",
+		Events: []measure.Event{
+			{Kind: "loud_section", StartS: 0, EndS: 25.4, StartTimecode: "10:00:00:00", EndTimecode: "10:00:25:10", Value: num(4.12), Unit: "LU"},
+			{Kind: "true_peak_over", StartS: 12.3, EndS: 12.4, StartTimecode: "10:00:12:07", EndTimecode: "10:00:12:10", Value: num(-0.38), Unit: "dBTP"},
+			{Kind: "clipping", StartS: 12.33, EndS: 12.42, StartTimecode: "10:00:12:08", EndTimecode: "10:00:12:10", Value: num(9), Unit: "samples"},
+			{Kind: "true_peak_over", StartS: 301.1, EndS: 301.3, StartTimecode: "10:05:01:02", EndTimecode: "10:05:01:07", Value: num(-0.52), Unit: "dBTP"},
+			{Kind: "clipping", StartS: 301.15, EndS: 301.24, StartTimecode: "10:05:01:03", EndTimecode: "10:05:01:06", Value: num(5), Unit: "samples"},
+			{Kind: "phase", StartS: 840, EndS: 843, StartTimecode: "10:14:00:00", EndTimecode: "10:14:03:00", Value: num(-0.61), Unit: "correlation", Channel: ptrString("L/R")},
+		},
+		EventsOmitted: map[string]int{"true_peak_over": 3},
 		// Notes left nil on purpose: JSON must still write [].
 	}
 }
+
+func ptrString(s string) *string { return &s }
 
 func monoTrailer() *measure.Measurement {
 	return &measure.Measurement{

@@ -59,11 +59,34 @@ func (t *checkText) Write(r *rules.Result) error {
 		// The rules' checks for such a file only repeat the message.
 		t.detail("could not be checked: " + Printable(m.Error))
 	default:
-		t.detail(figuresText(r))
+		if len(r.Groups) == 0 {
+			t.detail(figuresText(r))
+		}
 		if m.Damaged != "" && !damageExplained(r.Checks, m.Damaged) {
 			t.detail("DAMAGED: " + m.Damaged + "; the figures cover only the audio that could be decoded")
 		}
 		t.checks(r.Checks)
+		if tc := timecodeText(m); tc != "" {
+			t.detail("timecode " + tc)
+		}
+		for _, e := range eventLines(m, m.Events, m.EventsOmitted) {
+			t.detail(e)
+		}
+		for _, g := range r.Groups {
+			t.print("\n" + detailIndent + t.verdictCell(g.Verdict) + "  " + groupHead(g.Name, g.Channels, g.ChannelLayout))
+			if g.Spec != r.Spec && g.Spec != "" {
+				t.print("  (spec " + g.Spec + ")")
+			}
+			if g.MeasureOnly {
+				t.print("  (measured only)")
+			}
+			t.print("\n")
+			t.detail("  " + figuresText(&g.Result))
+			t.checks(g.Checks)
+			for _, e := range eventLines(g.Measurement, g.Events, g.EventsOmitted) {
+				t.detail("  " + e)
+			}
+		}
 	}
 	if m != nil {
 		// Notes carry what the figures alone do not say (a decoder that

@@ -74,6 +74,23 @@ func (t *measureText) Write(m *measure.Measurement) error {
 		t.line("stereo downmix", fmt.Sprintf("integrated %s LUFS, true peak %s dBTP (Lo/Ro fold-down)", Loudness(d.IntegratedLUFS), Peak(d.TruePeakDBTP)))
 	}
 	t.signal(m.Signal, m.ChannelLayout)
+	if tc := timecodeText(m); tc != "" {
+		t.line("timecode", tc)
+	}
+	for _, e := range eventLines(m, m.Events, m.EventsOmitted) {
+		label, text, _ := strings.Cut(e, " ")
+		if label != "event" {
+			label, text = "", e
+		}
+		t.line(label, text)
+	}
+	for _, g := range m.Groups {
+		t.line("group", groupHead(g.Name, g.Channels, g.ChannelLayout)[len("group "):])
+		t.line("", groupFigures(&g.Measurement, "LUFS"))
+		for _, e := range eventLines(&g.Measurement, g.Events, g.EventsOmitted) {
+			t.line("", e)
+		}
+	}
 	if m.Bext != nil {
 		t.line(fmt.Sprintf("bext v%d", m.Bext.Version), bextOrigin(m.Bext))
 		t.line("bext declares", bextLoudness(m.Bext))

@@ -48,6 +48,7 @@ func advise(s *Spec, m *measure.Measurement) (gain, limiter *float64, advice str
 	a.loudness()
 	a.downmix()
 	a.say(a.gainSentence())
+	a.say(sectionAdvice(m, a.gain))
 	if a.gain != 0 || a.gainSet {
 		gain = ptr(float64(a.gain) / 100)
 	}

@@ -31,6 +31,8 @@ func FuzzParse(f *testing.F) {
 	f.Add([]byte(""))
 	f.Add([]byte("name = \"x\"\n"))
 	f.Add([]byte("extends = \"podcast\"\n[loudness]\ntarget_lufs = -14\n[format]\nmin_bit_rate_kbps = 96\nbit_rate_modes = [\"cbr\"]\n"))
+	f.Add([]byte(groupSpec))
+	f.Add([]byte("extends = \"ebu-r128\"\ngroup = [{name = \"a\", channels = [1, \"2-3\"]}, {name = 1}]\n[record]\njob = 3\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		s, err := Parse("fuzz.toml", data)
 		if err != nil {

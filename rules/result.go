@@ -63,4 +63,7 @@ type Result struct {
 	LimiterReductionDB *float64 `json:"limiter_reduction_db"`
 	// Advice is the fix in one or two plain sentences.
 	Advice string `json:"advice,omitempty"`
+	// Groups are the file's programme groups judged (EvaluateGroups);
+	// absent for a file without groups.
+	Groups []GroupResult `json:"groups,omitempty"`
 }

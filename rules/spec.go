@@ -39,6 +39,12 @@ type Spec struct {
 	Signal   SignalLimits
 	Bext     BextLimits
 
+	// Groups are the programme groups a file delivered under this spec
+	// carries ([[group]]): each is measured and judged on its own.
+	Groups []SpecGroup
+	// Record holds the QC record's header fields ([record]).
+	Record RecordFields
+
 	// LimitSources maps a check ID (e.g. "integrated", "true_peak") to where
 	// that limit comes from, with its marker: [doc] read in the document,
 	// [desc] read in a neutral description, [memory] recalled, not yet read
@@ -244,6 +250,15 @@ func (s *Spec) Clone() *Spec {
 		c.LimitSources[k] = v
 	}
 	c.Notes = append([]string(nil), s.Notes...)
+	c.Groups = nil
+	for _, g := range s.Groups {
+		g.Channels = append([]int(nil), g.Channels...)
+		g.Layout = append([]string(nil), g.Layout...)
+		if len(g.Layout) == 0 {
+			g.Layout = nil
+		}
+		c.Groups = append(c.Groups, g)
+	}
 	// Pointer limits are never written through, only replaced, so sharing
 	// them is safe; copy them anyway so the clone is fully independent.
 	c.Loudness.TargetLUFS = clonePtr(s.Loudness.TargetLUFS)

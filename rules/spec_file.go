@@ -57,6 +57,9 @@ func LoadFile(path string) (*Spec, error) {
 //	            min_window_correlation, dual_mono, silent_channels
 //	[bext]      required, loudness_tolerance_lu, true_peak_tolerance_db,
 //	            lra_tolerance_lu, mismatch
+//	[record]    job, client, operator, notes (the QC record's header)
+//	[[group]]   name, channels ("1-6" or [7, 8]), layout, spec, measure_only
+//	            (one table per programme group; see SpecGroup)
 //
 // Every key overrides the same limit of the base spec. Setting target_lufs
 // replaces an inherited min/max window and the other way round; a file may
@@ -81,6 +84,12 @@ func Parse(file string, data []byte) (*Spec, error) {
 	for _, key := range sortedKeys(raw) {
 		switch key {
 		case "name", "title", "description", "source", "extends", "root":
+			continue
+		case "group":
+			p.parseGroups(spec, raw[key])
+			continue
+		case "record":
+			p.parseRecord(spec, raw[key])
 			continue
 		}
 		keys, ok := specTables[key]

@@ -27,6 +27,7 @@ type batchOptions struct {
 	plots  string // folder for standalone SVG plots
 	colour bool
 	decode decode.Options
+	qc     qcOptions
 }
 
 func batchFlags(formats []reports.Format) []cli.Flag {
@@ -34,7 +35,7 @@ func batchFlags(formats []reports.Format) []cli.Flag {
 	for i, f := range formats {
 		names[i] = string(f)
 	}
-	return []cli.Flag{
+	return append([]cli.Flag{
 		&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "text", Usage: "output format: " + strings.Join(names, ", ")},
 		&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the chosen format to `FILE`; the terminal still gets the text report"},
 		&cli.IntFlag{Name: "jobs", Aliases: []string{"j"}, Value: runtime.NumCPU(), Usage: "files measured at once"},
@@ -42,7 +43,7 @@ func batchFlags(formats []reports.Format) []cli.Flag {
 		&cli.StringFlag{Name: "report", Usage: "also write a self-contained HTML QC page to `FILE`"},
 		&cli.StringFlag{Name: "plots", Usage: "also write each file's loudness plot as an SVG into `DIR`"},
 		&cli.BoolFlag{Name: "skip-flac-md5", Usage: "do not verify FLAC audio against its MD5 signature (faster; frame CRCs are still checked)"},
-	}
+	}, qcFlags()...)
 }
 
 func readBatchOptions(cmd *cli.Command, formats []reports.Format) (batchOptions, error) {
@@ -73,6 +74,9 @@ func readBatchOptions(cmd *cli.Command, formats []reports.Format) (batchOptions,
 	o.report = cmd.String("report")
 	o.plots = cmd.String("plots")
 	o.colour = isTerminal(cmd.Root().Writer) && os.Getenv("NO_COLOR") == ""
+	if o.qc, err = readQCOptions(cmd); err != nil {
+		return o, err
+	}
 	if cmd.Args().Len() == 0 {
 		return o, usagef("name at least one file or folder")
 	}
@@ -81,7 +85,7 @@ func readBatchOptions(cmd *cli.Command, formats []reports.Format) (batchOptions,
 
 // measureOptions turns batch options into the measurement's.
 func (o batchOptions) measureOptions() measure.Options {
-	return measure.Options{Layout: o.layout, KeepSeries: o.report != "" || o.plots != "", Decode: o.decode}
+	return o.qc.apply(measure.Options{Layout: o.layout, KeepSeries: o.report != "" || o.plots != "", Decode: o.decode, Digest: o.report != ""})
 }
 
 // recordWriter is what package reports gives for either command: a

@@ -112,7 +112,7 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 			r := rec.Result
 			summary.Add(r)
 			out.write(r)
-			if o.report != "" || o.plots != "" {
+			if o.report != "" || o.plots != "" || o.qc.markers != "" {
 				kept = append(kept, r)
 				keptSpecs = append(keptSpecs, rec.Spec)
 			}
@@ -124,13 +124,13 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 		return err
 	}
 	if summary.Interrupted {
-		writeVisuals(files, true, stderr, nil, nil, nil)
+		writeVisuals(files, o.qc, true, stderr, nil, nil, nil)
 		return interruption(ctx, unfinished)
 	}
 	if summary.Files == 0 {
 		return errNoAudio(args)
 	}
-	if err := writeVisuals(files, false, stderr, nil, kept, keptSpecs); err != nil {
+	if err := writeVisuals(files, o.qc, false, stderr, nil, kept, keptSpecs); err != nil {
 		return err
 	}
 	switch {

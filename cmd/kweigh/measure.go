@@ -64,7 +64,7 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 			m := r.Measurement
 			summary.AddMeasurement(m)
 			out.write(m)
-			if o.report != "" || o.plots != "" {
+			if o.report != "" || o.plots != "" || o.qc.markers != "" {
 				kept = append(kept, m)
 			}
 		})
@@ -75,13 +75,13 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 		return err
 	}
 	if summary.Interrupted {
-		writeVisuals(files, true, stderr, nil, nil, nil)
+		writeVisuals(files, o.qc, true, stderr, nil, nil, nil)
 		return interruption(ctx, unfinished)
 	}
 	if summary.Files == 0 {
 		return errNoAudio(args)
 	}
-	if err := writeVisuals(files, false, stderr, kept, nil, nil); err != nil {
+	if err := writeVisuals(files, o.qc, false, stderr, kept, nil, nil); err != nil {
 		return err
 	}
 	// A damaged file is not a complete measurement: exit 2 as for errors.

@@ -17,12 +17,14 @@ type runFiles struct {
 	output *pendingFile // --output, nil without it
 	report *pendingFile // --report, nil without it
 	plots  string       // --plots folder, made and known writable
+	// markers is the --markers CSV, nil without it.
+	markers *pendingFile
 }
 
 // prepareOutputs checks the output options against the targets and
 // creates the pending output files.
 func prepareOutputs(o batchOptions, targets []engine.Target) (*runFiles, error) {
-	named := []struct{ flag, path string }{{"--output", o.output}, {"--report", o.report}}
+	named := []struct{ flag, path string }{{"--output", o.output}, {"--report", o.report}, {"--markers", o.qc.markers}}
 	for i, a := range named {
 		if a.path == "" {
 			continue
@@ -49,6 +51,12 @@ func prepareOutputs(o batchOptions, targets []engine.Target) (*runFiles, error) 
 			return nil, usagef("--report: %v", err)
 		}
 	}
+	if o.qc.markers != "" {
+		if files.markers, err = createPending(o.qc.markers); err != nil {
+			files.abort()
+			return nil, usagef("--markers: %v", err)
+		}
+	}
 	if o.plots != "" {
 		if err := writableDir(o.plots); err != nil {
 			files.abort()
@@ -63,6 +71,7 @@ func prepareOutputs(o batchOptions, targets []engine.Target) (*runFiles, error) 
 func (f *runFiles) abort() {
 	f.output.abort()
 	f.report.abort()
+	f.markers.abort()
 }
 
 // notAnInput refuses an output path that is one of the input files (the

@@ -12,6 +12,7 @@ import (
 	"unicode"
 
 	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/reports"
 	"github.com/kweigh/kweigh/reports/htmlpage"
 	"github.com/kweigh/kweigh/rules"
 )
@@ -26,14 +27,32 @@ const cautionText = "Full-scale test signals and gain increases can damage heari
 // file is renamed into place only when complete. An interrupted run writes
 // neither: a page or plots of a partial run must not replace a complete
 // one.
-func writeVisuals(files *runFiles, interrupted bool, stderr io.Writer, ms []*measure.Measurement, rs []*rules.Result, specs []*rules.Spec) error {
-	if files.report == nil && files.plots == "" {
+func writeVisuals(files *runFiles, q qcOptions, interrupted bool, stderr io.Writer, ms []*measure.Measurement, rs []*rules.Result, specs []*rules.Spec) error {
+	if files.report == nil && files.plots == "" && files.markers == nil {
 		return nil
 	}
 	if interrupted {
 		files.report.abort()
-		fmt.Fprintln(stderr, "kweigh: interrupted: --report and --plots not written (previous files are kept)")
+		files.markers.abort()
+		fmt.Fprintln(stderr, "kweigh: interrupted: --report, --plots and --markers not written (previous files are kept)")
 		return nil
+	}
+	if files.markers != nil {
+		all := ms
+		for _, r := range rs {
+			all = append(all, r.Measurement)
+		}
+		if err := writePending(files.markers, func(w *bufio.Writer) error {
+			mw := reports.NewMarkerWriter(w)
+			for _, m := range all {
+				if err := mw.Write(m); err != nil {
+					return err
+				}
+			}
+			return mw.Close()
+		}); err != nil {
+			return fmt.Errorf("--markers: %w", err)
+		}
 	}
 	var entries []htmlpage.Entry
 	specNames := []string{}
@@ -53,7 +72,18 @@ func writeVisuals(files *runFiles, interrupted bool, stderr io.Writer, ms []*mea
 		if rs != nil {
 			title = "kweigh delivery check"
 		}
-		page := htmlpage.Page{Title: title, Generated: time.Now(), Specs: specNames, Entries: entries, Caution: cautionText}
+		// The record's fields: the first spec's [record], overridden by
+		// the command line's --job, --client, --operator, --notes.
+		var record rules.RecordFields
+		for _, sp := range specs {
+			if sp != nil && sp.Record != (rules.RecordFields{}) {
+				record = sp.Record
+				break
+			}
+		}
+		record = record.Merge(q.record)
+		page := htmlpage.Page{Title: title, Generated: time.Now(), Specs: specNames, Entries: entries, Caution: cautionText,
+			Record: htmlpage.RecordFrom(record), Paper: q.paper}
 		if err := writePending(files.report, func(w *bufio.Writer) error { return htmlpage.Write(w, page) }); err != nil {
 			return fmt.Errorf("--report: %w", err)
 		}

@@ -33,6 +33,8 @@ func fuzzSeeds() map[string][]byte {
 		"data-before-fmt": wavFile("RIFF", chunk("data", data), chunk("JUNK", []byte{1, 2, 3}), fmt16),
 		"truncated":       wavFile("RIFF", fmt16, chunk("data", data))[:50],
 		"unsupported":     wavFile("RIFF", fmtChunk(7, 1, 8000, 8), chunk("data", []byte{1})),
+		"ixml-timecode":   wavFile("RIFF", fmt16, chunk("iXML", []byte(ixmlSample)), chunk("data", data)),
+		"ixml-broken":     wavFile("RIFF", fmt16, chunk("iXML", []byte("<BWFXML><SPEED><TIMECODE_RATE>25/1</TIME")), chunk("data", data)),
 		"undeclared":      wavFile("RIFF", fmt16, chunk("data", data).declaring(8)),
 		"trailing-tags": append(wavFile("RIFF", fmt16, chunk("data", data[:8]), chunk("LIST", []byte("INFO")), chunk("id3 ", make([]byte, 3))),
 			"ID3\x04\x00\x00\x00\x00\x00\x02\x00\x00TAG"...),

@@ -33,6 +33,7 @@ type header struct {
 	dataSizeKnown bool   // false for a RIFF data chunk of size 0xFFFFFFFF
 
 	bext  *decode.Bext
+	ixml  *decode.IXML
 	notes []string
 
 	// trailer is where the chunk walk stopped at bytes that may not be
@@ -210,6 +211,16 @@ func (h *header) walk(r io.ReaderAt, e chunkErrors) error {
 				h.note("bext coding history longer than %d bytes; the rest is ignored", maxCodingHistory)
 			}
 			h.bext = parseBext(buf)
+		case id == "iXML" && h.ixml == nil:
+			buf := make([]byte, min(size, maxIXML))
+			if err := readFull(r, buf, body); err != nil {
+				return ce.wrap(0, err, "reading iXML chunk")
+			}
+			x, err := parseIXML(buf)
+			if err != nil {
+				h.note("iXML chunk at byte %d: %v; its timecode fields are ignored", pos, err)
+			}
+			h.ixml = x
 		}
 
 		if !fits {

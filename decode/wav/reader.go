@@ -65,6 +65,7 @@ func New(src decode.Source, size int64) (decode.Decoder, error) {
 		SampleFormat:  decode.Int,
 		Frames:        h.frames(),
 		Bext:          h.bext,
+		IXML:          h.ixml,
 		Undeclared:    h.undeclared,
 	}
 	if l.float {

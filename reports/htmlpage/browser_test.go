@@ -3,6 +3,7 @@ package htmlpage
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"image/png"
 	"os"
 	"os/exec"
@@ -56,6 +57,58 @@ func runChromium(t *testing.T, bin string, args ...string) []byte {
 		t.Fatalf("chromium %s: %v (timeout: %v)\n%s", strings.Join(args, " "), err, ctx.Err(), tail(stderr.String(), 2000))
 	}
 	return stdout.Bytes()
+}
+
+// pdfText is the text of a PDF by pdftotext (poppler-utils, installed by
+// .ci/setup), pages separated by form feeds.
+func pdfText(t *testing.T, pdf string) string {
+	t.Helper()
+	bin, err := exec.LookPath("pdftotext")
+	if err != nil {
+		t.Fatal("pdftotext not found: install poppler-utils (.ci/setup does this)")
+	}
+	out, err := exec.Command(bin, "-layout", pdf, "-").Output()
+	if err != nil {
+		t.Fatalf("pdftotext: %v", err)
+	}
+	return string(out)
+}
+
+// vermillionPixels rasterises a PDF at 40 dpi and counts the pixels near
+// the plots' vermillion (#D55E00).
+func vermillionPixels(t *testing.T, pdf string) (red int) {
+	t.Helper()
+	bin, err := exec.LookPath("pdftoppm")
+	if err != nil {
+		t.Fatal("pdftoppm not found: install poppler-utils (.ci/setup does this)")
+	}
+	prefix := filepath.Join(t.TempDir(), "page")
+	if out, err := exec.Command(bin, "-r", "40", "-png", pdf, prefix).CombinedOutput(); err != nil {
+		t.Fatalf("pdftoppm: %v\n%s", err, out)
+	}
+	pngs, _ := filepath.Glob(prefix + "*.png")
+	for _, name := range pngs {
+		f, err := os.Open(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		img, err := png.Decode(f)
+		f.Close()
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		b := img.Bounds()
+		for y := b.Min.Y; y < b.Max.Y; y++ {
+			for x := b.Min.X; x < b.Max.X; x++ {
+				r, g, bl, _ := img.At(x, y).RGBA()
+				r, g, bl = r>>8, g>>8, bl>>8
+				if r > 180 && g > 60 && g < 130 && bl < 50 {
+					red++
+				}
+			}
+		}
+	}
+	return red
 }
 
 func tail(s string, n int) string {
@@ -146,8 +199,14 @@ func TestBrowserRendersReport(t *testing.T) {
 		t.Error("dumped DOM has no loudness plot <svg>")
 	}
 
-	// Print: every file starts a new page, so the PDF has at least one page
-	// for the summary and one per file.
+	// Print (Chromium's own print to PDF, its header and footer off): the
+	// page's @page rules number every page ("page N of M") and each file
+	// after the first starts a page, so there is at least one page per
+	// file; pdftotext (poppler-utils) reads the printed text back.
+	page.Record = Record{Job: "TW-2291", Client: "Harbourlight Television", Operator: "Mara Quillfeather"}
+	if err := os.WriteFile(report, render(t, page), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	pdf := filepath.Join(dir, "report.pdf")
 	runChromium(t, bin, "--print-to-pdf="+pdf, "--no-pdf-header-footer", url)
 	raw, err := os.ReadFile(pdf)
@@ -155,8 +214,44 @@ func TestBrowserRendersReport(t *testing.T) {
 		t.Fatalf("print to PDF failed: %v", err)
 	}
 	pages := len(regexp.MustCompile(`/Type\s*/Page[^s]`).FindAll(raw, -1))
-	if pages < 1+len(page.Entries) {
-		t.Errorf("printed report has %d pages, want at least %d (summary, then one page or more per file)", pages, 1+len(page.Entries))
+	if pages < len(page.Entries) {
+		t.Errorf("printed report has %d pages, want at least %d (one page or more per file)", pages, len(page.Entries))
+	}
+	text := pdfText(t, pdf)
+	perPage := strings.Split(text, "\f")
+	numbered := 0
+	for i, pg := range perPage {
+		if strings.TrimSpace(pg) == "" {
+			continue
+		}
+		if !strings.Contains(pg, fmt.Sprintf("page %d of %d", i+1, pages)) {
+			t.Errorf("printed page %d has no page number %q", i+1, fmt.Sprintf("page %d of %d", i+1, pages))
+			continue
+		}
+		numbered++
+	}
+	if numbered != pages {
+		t.Errorf("%d of %d printed pages carry their number", numbered, pages)
+	}
+	for _, want := range []string{"TW-2291", "Harbourlight Television", "Approval", "Signature"} {
+		if !strings.Contains(text, want) {
+			t.Errorf("printed report lacks %q", want)
+		}
+	}
+	// The red marks print red: the pages rasterised (pdftoppm, poppler-utils)
+	// hold pixels of the vermillion the plots draw the ceiling and overs in
+	// (#D55E00), which print-color-adjust keeps from being dropped.
+	red := vermillionPixels(t, pdf)
+	if red == 0 {
+		t.Error("the printed report has no vermillion pixels: the red marks did not print in colour")
+	}
+	t.Logf("printed colours: %d vermillion pixels at 40 dpi", red)
+	// Every file's heading is printed on each of its pages: on a page
+	// holding the file's sheet, the running heading names its path.
+	for _, e := range page.Entries {
+		if !strings.Contains(text, filepath.Base(e.Result.Path)) {
+			t.Errorf("printed report lacks %s", e.Result.Path)
+		}
 	}
 	t.Logf("screenshot: %d colours, %.1f %% inked; PDF: %d pages", len(colours), 100*share, pages)
 

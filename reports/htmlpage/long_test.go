@@ -100,7 +100,7 @@ func attrNum(t *testing.T, el xml.StartElement, name string) float64 {
 func pathPoints(t *testing.T, d string) [][2]float64 {
 	t.Helper()
 	var nums []float64
-	fields := strings.Fields(strings.NewReplacer("M", " ", "L", " ", "h", " h ").Replace(d))
+	fields := strings.Fields(strings.NewReplacer("M", " ", "L", " ", "h", " h ", "Z", " ").Replace(d))
 	for i := 0; i < len(fields); i++ {
 		if fields[i] == "h" {
 			i++ // skip the dot's length
@@ -124,7 +124,8 @@ func pathPoints(t *testing.T, d string) [][2]float64 {
 
 // TestLongPlotKeepsSpike draws a three-hour programme with one over in one
 // 100 ms block: the overs strip shows exactly one mark at that time and the
-// momentary curve still reaches the block's level.
+// momentary curve (a min/max band at this length) still reaches the
+// block's level.
 func TestLongPlotKeepsSpike(t *testing.T) {
 	const spike = 77_777 // 2:09:37.7
 	e := threeHourEntry(t, spike)

@@ -32,6 +32,11 @@ type Page struct {
 	// Caution is the hearing/equipment and not-a-certification notice,
 	// printed near the top of the page.
 	Caution string
+	// Record is the QC record's header (job, client, operator, notes).
+	Record Record
+	// Paper is the printed page size, PaperA4 (the default) or
+	// PaperLetter.
+	Paper string
 }
 
 // ErrNoResult is returned (wrapped with the entry's position) when an entry

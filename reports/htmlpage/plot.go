@@ -20,10 +20,10 @@ const (
 	laneTop     = 6.0   // the true-peak overs lane
 	laneHeight  = 14.0
 	areaTop     = 30.0
-	areaBottom  = 310.0
-	legendTop   = 362.0
+	areaBottom  = 250.0
+	legendTop   = timeAxisY + 52
 	legendRow   = 20.0
-	plotHeight  = legendTop + 2*legendRow
+	plotHeight  = legendTop + 3*legendRow
 	seriesStepS = 0.1 // the engine's series step (10 Hz)
 )
 
@@ -254,27 +254,30 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 		s.line(plotLeft, py, plotRight, py, inkGrid, 1, "")
 		s.text(plotLeft-6, py+4, "end", ` fill="`+inkAxis+`"`, strconv.FormatFloat(v, 'f', -1, 64))
 	}
-	for _, sec := range TimeTicks(dur, 10) {
+	peakPane(s, e, x)
+	events := eventLane(s, r.Measurement, x)
+	for _, sec := range TimeTicks(dur, 8) {
 		px := x.at(sec)
 		s.line(px, areaTop, px, areaBottom, inkGrid, 1, "")
-		s.line(px, areaBottom, px, areaBottom+5, inkAxis, 1, "")
+		s.line(px, timeAxisY, px, timeAxisY+5, inkAxis, 1, "")
 		anchor := "middle"
 		if sec == 0 {
 			anchor = "start"
 		}
-		s.text(px, areaBottom+19, anchor, ` fill="`+inkAxis+`"`, reports.Clock(sec))
+		s.text(px, timeAxisY+19, anchor, ` fill="`+inkAxis+`"`, r.TimeLabel(sec))
 	}
-	s.text(plotLeft, areaBottom+38, "start", ` fill="`+inkAxis+`" font-size="11"`, "time (h:mm:ss)")
+	axisName := "time (h:mm:ss.s from the start)"
+	if r.StartTimecode != nil {
+		axisName = "timecode (HH:MM:SS:FF at " + r.FPS + " fps, from " + *r.StartTimecode + ")"
+	}
+	s.text(plotLeft, timeAxisY+38, "start", ` fill="`+inkAxis+`" font-size="11"`, axisName)
 	s.printf(`<text x="16" y="%s" text-anchor="middle" transform="rotate(-90 16 %s)" fill="%s" font-size="11">%s</text>`+"\n",
 		num((areaTop+areaBottom)/2), num((areaTop+areaBottom)/2), inkAxis, levelAxisLabel(t, e.Result.Unit()))
 
 	// Curves: momentary below, short-term above it.
 	drawn := false
 	if series != nil {
-		if p := seriesPath(Decimate(series.Momentary, PlotColumns), elementSeconds(series), x, y); p != "" {
-			s.printf(`<path d="%s" fill="none" stroke="%s" stroke-width="0.9" stroke-linejoin="round" stroke-linecap="round"/>`+"\n", p, inkOrange)
-			drawn = true
-		}
+		drawn = momentaryPath(s, series, x, y)
 		if p := seriesPath(Decimate(series.ShortTerm, PlotColumns), elementSeconds(series), x, y); p != "" {
 			s.printf(`<path d="%s" fill="none" stroke="%s" stroke-width="2.2" stroke-linejoin="round" stroke-linecap="round"/>`+"\n", p, inkBlue)
 			drawn = true
@@ -300,9 +303,8 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 	overs := 0
 	if t.TruePeakCeilingDBTP != nil {
 		ceiling := *t.TruePeakCeilingDBTP
-		py := y.at(ceiling)
-		s.line(plotLeft, py, plotRight, py, inkVermillion, 1.5, "7 3 1.5 3")
-		labels = append(labels, valueLabel{py, "ceiling " + reports.Peak(t.TruePeakCeilingDBTP), "#A33F00", ""})
+		pl, ph := peakRange(e)
+		py := scale{pl, ph, peakPaneBottom, peakPaneTop}.at(ceiling)
 		s.text(plotLeft-6, laneTop+laneHeight-3, "end", ` fill="`+inkAxis+`" font-size="11"`, "TP over")
 		s.rect(plotLeft, laneTop, plotRight-plotLeft, laneHeight, `fill="none" stroke="`+inkGrid+`" stroke-width="1"`)
 		if series != nil {
@@ -322,18 +324,14 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 		}
 	}
 	placeLabels(s, labels)
-	legend(s, e, overs)
+	legend(s, e, overs, events)
 	return s.close()
 }
 
-// levelAxisLabel names the level axis' units: the spec's loudness unit
-// (LUFS or LKFS) for the curves, and dBTP only when a true-peak ceiling is
-// drawn on the same axis.
+// levelAxisLabel names the loudness pane's unit: the spec's loudness unit
+// (LUFS or LKFS). Peaks have a pane and an axis of their own (dBTP).
 func levelAxisLabel(t Target, unit string) string {
-	if t.TruePeakCeilingDBTP != nil {
-		return "level: " + unit + " (curves), dBTP (ceiling)"
-	}
-	return "level: " + unit
+	return "loudness: " + unit
 }
 
 // plotDescription is the plot's text alternative.
@@ -393,7 +391,7 @@ func placeLabels(s *svgDoc, labels []valueLabel) {
 
 // legend writes the plot's key in two rows under the time axis: a sample
 // of each line or area followed by its meaning in words.
-func legend(s *svgDoc, e Entry, overs int) {
+func legend(s *svgDoc, e Entry, overs, events int) {
 	x, y := plotLeft, legendTop
 	item := func(sample func(x, y float64), label string) {
 		if x+28+6+textWidth(label) > plotWidth-8 {
@@ -407,7 +405,14 @@ func legend(s *svgDoc, e Entry, overs int) {
 		return func(x, y float64) { s.line(x, y, x+28, y, colour, width, dash) }
 	}
 	item(lineSample(inkBlue, 2.2, ""), "short-term loudness (3 s)")
-	item(lineSample(inkOrange, 0.9, ""), "momentary loudness (0.4 s)")
+	if sr := e.Result.Series; sr != nil && len(sr.Momentary) > bandColumnsPerElement*PlotColumns {
+		item(func(x, y float64) {
+			s.rect(x, y-5, 28, 10, `fill="`+inkOrange+`" fill-opacity="0.35" stroke="`+inkOrange+`" stroke-width="0.5"`)
+		}, "momentary loudness (0.4 s), lowest to highest per column")
+	} else {
+		item(lineSample(inkOrange, 0.9, ""), "momentary loudness (0.4 s)")
+	}
+	item(lineSample(inkPurple, 0.9, ""), "true peak per 100 ms (dBTP pane)")
 	if e.Result.IntegratedLUFS != nil {
 		item(lineSample(inkBlack, 1.5, "9 4"), "integrated loudness")
 	}
@@ -423,6 +428,13 @@ func legend(s *svgDoc, e Entry, overs int) {
 		item(func(x, y float64) {
 			s.rect(x+8, y-6, 12, 12, `fill="`+inkVermillion+`" stroke="`+inkBlack+`" stroke-width="0.5"`)
 		}, "over the ceiling: "+oversText(e.Result.Series, overs))
+	}
+	if events > 0 {
+		item(func(x, y float64) {
+			s.rect(x, y-5, 8, 10, `fill="`+inkVermillion+`"`)
+			s.rect(x+10, y-5, 8, 10, `fill="`+inkOrange+`"`)
+			s.rect(x+20, y-5, 8, 10, `fill="`+inkBlue+`"`)
+		}, fmt.Sprintf("events (%d): peaks and clipping, loud, quiet and silent stretches", events))
 	}
 	if e.Result.Signal.LeadingSilenceS > 0 || e.Result.Signal.TrailingSilenceS > 0 {
 		item(func(x, y float64) {

@@ -78,8 +78,9 @@ func deref(p *float64) any {
 // axisLabel matches the plot's rotated level-axis label.
 var axisLabel = regexp.MustCompile(`<text [^>]*transform="rotate\(-90[^>]*>([^<]*)</text>`)
 
-// TestLevelAxisLabel: the level axis names dBTP only when a true-peak
-// ceiling is drawn on it.
+// TestLevelAxisLabel: loudness and peaks have panes and axes of their
+// own: the loudness axis in the spec's unit, the peak axis in dBTP, with or
+// without a ceiling.
 func TestLevelAxisLabel(t *testing.T) {
 	for _, tc := range []struct {
 		name      string
@@ -87,8 +88,8 @@ func TestLevelAxisLabel(t *testing.T) {
 		want      string
 		wantPlots int
 	}{
-		{"check run with a ceiling", demoPage(t), "level: LUFS (curves), dBTP (ceiling)", 4},
-		{"measure run without a ceiling", measurePage(t), "level: LUFS", 2},
+		{"check run with a ceiling", demoPage(t), "loudness: LUFS", 4},
+		{"measure run without a ceiling", measurePage(t), "loudness: LUFS", 2},
 	} {
 		plots := 0
 		for _, e := range tc.page.Entries {
@@ -97,8 +98,8 @@ func TestLevelAxisLabel(t *testing.T) {
 			}
 			plots++
 			m := axisLabel.FindAllStringSubmatch(loudnessPlot(e, "t-", true), -1)
-			if len(m) != 1 || m[0][1] != tc.want {
-				t.Errorf("%s: %s: level-axis labels %q, want one reading %q", tc.name, e.Result.Path, m, tc.want)
+			if len(m) != 2 || m[0][1] != "peak: dBTP" || m[1][1] != tc.want {
+				t.Errorf("%s: %s: axis labels %q, want %q and peak: dBTP", tc.name, e.Result.Path, m, tc.want)
 			}
 		}
 		if plots != tc.wantPlots {

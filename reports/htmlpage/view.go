@@ -53,9 +53,11 @@ type checkView struct {
 
 // fileView is everything the template shows for one file.
 type fileView struct {
-	Number     int
-	Anchor     string
-	Path       string
+	Number int
+	Anchor string
+	Path   string
+	// PathHTML is the path with line breaks allowed after separators.
+	PathHTML   template.HTML
 	Verdict    verdictView
 	Spec       string
 	Details    string
@@ -78,6 +80,14 @@ type fileView struct {
 	Damaged     string
 	Error       string
 	Notes       []string
+	// Facts identify the file (size, SHA-256, container, bext).
+	Facts []factView
+	// Events are where limits break; EventsOmitted counts those beyond
+	// the cap.
+	Events        []eventView
+	EventsOmitted int
+	// Groups are the file's programme groups.
+	Groups []groupView
 }
 
 // countView is one verdict's tally in the page header.
@@ -94,8 +104,12 @@ type pageView struct {
 	Caution   string
 	Counts    []countView
 	Files     []fileView
-	CSS       template.CSS
-	Script    template.JS
+	Record    Record
+	// Result is the run's QC result for the approval block: the worst
+	// verdict of its files.
+	Result verdictView
+	CSS    template.CSS
+	Script template.JS
 	// NotAvailable is the word shown for undefined figures.
 	NotAvailable string
 }
@@ -105,7 +119,8 @@ func buildPage(p Page) (pageView, error) {
 		Title:   p.Title,
 		Specs:   strings.Join(p.Specs, ", "),
 		Caution: p.Caution,
-		CSS:     template.CSS(pageCSS),
+		CSS:     pageCSSFor(p.Paper),
+		Record:  p.Record,
 		Script:  template.JS(sortScript),
 
 		NotAvailable: reports.NotAvailable,
@@ -128,6 +143,9 @@ func buildPage(p Page) (pageView, error) {
 		}
 		tally[f.Verdict.Class]++
 		v.Files = append(v.Files, f)
+		if i == 0 || f.Verdict.Rank > v.Result.Rank {
+			v.Result = f.Verdict
+		}
 	}
 	for rank := 0; rank <= 5; rank++ {
 		for _, vv := range order {
@@ -146,6 +164,7 @@ func buildFile(i int, e Entry) fileView {
 		Number:     i + 1,
 		Anchor:     "file-" + strconv.Itoa(i+1),
 		Path:       r.Path,
+		PathHTML:   wrapPath(r.Path),
 		Verdict:    verdictOf(r.Verdict),
 		Spec:       r.Spec,
 		Details:    fileDetails(r),
@@ -162,6 +181,17 @@ func buildFile(i int, e Entry) fileView {
 	if r.Error != "" {
 		return f
 	}
+	f.Facts = fileFacts(r)
+	f.Events = eventRows(r.Measurement, r.Events)
+	f.EventsOmitted = omittedEvents(r.Measurement)
+	for _, g := range r.Measurement.Groups {
+		for _, ev := range eventRows(&g.Measurement, g.Events) {
+			ev.Kind = "group " + g.Name + ": " + ev.Kind
+			f.Events = append(f.Events, ev)
+		}
+		f.EventsOmitted += omittedEvents(&g.Measurement)
+	}
+	f.Groups = groupRows(r)
 	lead, trail := r.Signal.LeadingSilenceS, r.Signal.TrailingSilenceS
 	f.Figures = []figureView{
 		{Label: "Integrated", Value: f.Integrated, Unit: r.Unit()},
