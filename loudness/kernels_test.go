@@ -47,41 +47,128 @@ func sameBits(a, b float64) bool {
 	return math.Float64bits(a) == math.Float64bits(b) || a != a && b != b
 }
 
-// TestPeak4SquaresMatchesGo checks the true-peak kernel in use against the
-// Go loop on whole windows, at every start offset within 16 bytes (the
-// kernel's loads are unaligned) and from several running maxima.
-func TestPeak4SquaresMatchesGo(t *testing.T) {
-	for _, n := range kernelLengths {
-		for name, x := range kernelSignals(n + history + 1) {
-			for offset := range 2 {
-				w := x[offset : offset+n+history]
-				for _, sq := range []float64{0, 0.01, 0.25, 4, math.Inf(1), math.NaN()} {
-					got, want := peak4Squares(w, sq), peak4SquaresGo(w, sq)
-					if !sameBits(got, want) {
-						t.Errorf("%s, %d samples, offset %d, sq %v: kernel %.17g, Go %.17g", name, n, offset, sq, got, want)
+// forEachKernelSet runs f once on every kernel set this build and CPU can
+// run (go, then sse2 and avx2 where present), as a subtest named after it.
+func forEachKernelSet(t *testing.T, f func(t *testing.T)) {
+	t.Helper()
+	for _, k := range availableKernels() {
+		t.Run(k.String(), func(t *testing.T) {
+			restore, err := useKernels(k)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer restore()
+			f(t)
+		})
+	}
+}
+
+// TestKernelSetsAvailable checks the kernel choice: the Go loops always
+// run, this amd64 build offers SSE2 unless built with -tags purego, and
+// the environment cap never selects a set the CPU lacks.
+func TestKernelSetsAvailable(t *testing.T) {
+	sets := availableKernels()
+	if len(sets) == 0 || sets[0] != goKernels {
+		t.Fatalf("available kernel sets %v: want the Go loops first", sets)
+	}
+	for _, c := range []struct {
+		best kernelSet
+		env  string
+		want kernelSet
+	}{
+		{avx2Kernels, "", avx2Kernels},
+		{avx2Kernels, "sse2", sse2Kernels},
+		{avx2Kernels, "go", goKernels},
+		{sse2Kernels, "avx2", sse2Kernels},
+		{goKernels, "avx2", goKernels},
+		{avx2Kernels, "bogus", avx2Kernels},
+	} {
+		if got := chooseKernels(c.best, c.env); got != c.want {
+			t.Errorf("best %v, %s=%q: chose %v, want %v", c.best, KernelEnv, c.env, got, c.want)
+		}
+	}
+	if _, err := useKernels(bestKernels() + 1); err == nil {
+		t.Error("useKernels accepted a set beyond the best available")
+	}
+}
+
+// truePeakKernels are the interpolator kernels and their Go references.
+var truePeakKernels = []struct {
+	name      string
+	kernel, ref func(w []float64, sq float64) float64
+}{
+	{"4x", peak4Squares, peak4SquaresGo},
+	{"2x", peak2Squares, peak2SquaresGo},
+}
+
+// TestPeakSquaresMatchGo checks the true-peak kernels in use (4× and 2×)
+// against the Go loops on whole windows, at every start offset within 32
+// bytes (the kernels' loads are unaligned) and from several running
+// maxima, on every kernel set.
+func TestPeakSquaresMatchGo(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		for _, k := range truePeakKernels {
+			for _, n := range kernelLengths {
+				for name, x := range kernelSignals(n + history + 4) {
+					for offset := range 4 {
+						w := x[offset : offset+n+history]
+						for _, sq := range []float64{0, 0.01, 0.25, 4, math.Inf(1), math.NaN()} {
+							got, want := k.kernel(w, sq), k.ref(w, sq)
+							if !sameBits(got, want) {
+								t.Errorf("%s %s, %d samples, offset %d, sq %v: kernel %.17g, Go %.17g", k.name, name, n, offset, sq, got, want)
+							}
+						}
+					}
+				}
+			}
+			// Window by window (and in groups up to four, every lane), so
+			// that no difference hides behind a larger maximum.
+			for name, x := range kernelSignals(4801) {
+				for i := 0; i+interpolatorTaps+3 <= len(x); i++ {
+					for extra := range 4 {
+						w := x[i : i+interpolatorTaps+extra]
+						if got, want := k.kernel(w, 0), k.ref(w, 0); !sameBits(got, want) {
+							t.Fatalf("%s %s, %d samples at %d: kernel %.17g, Go %.17g", k.name, name, len(w), i, got, want)
+						}
+					}
+				}
+			}
+			// Fewer samples than one window: nothing to compute.
+			for n := range interpolatorTaps {
+				w := denseFullScale(uint64(n), n)
+				if got := k.kernel(w, 0.5); got != 0.5 {
+					t.Errorf("%s, %d samples: %v, want the running maximum 0.5 unchanged", k.name, n, got)
+				}
+			}
+		}
+	})
+}
+
+// TestMaxAbsMatchesGo checks the sample-peak scan in use against the Go
+// loop for every length up to 70 and every start offset, with the largest
+// magnitude in every position and with NaN and ±Inf present (which order
+// above every finite value, as the rejection scan relies on).
+func TestMaxAbsMatchesGo(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		base := musicLike(9, 80, 48000)
+		for n := range 71 {
+			for offset := range 4 {
+				x := append([]float64(nil), base[offset:offset+n]...)
+				if got, want := maxAbs(x), maxAbsGo(x); !sameBits(got, want) {
+					t.Fatalf("%d samples, offset %d: %v, Go %v", n, offset, got, want)
+				}
+				for i := range x {
+					for _, v := range []float64{-3, 2.5, math.Inf(-1), math.NaN(), -0.0} {
+						y := append([]float64(nil), x...)
+						y[i] = v
+						if got, want := maxAbs(y), maxAbsGo(y); !sameBits(got, want) {
+							t.Fatalf("%d samples, %v at %d: %v, Go %v", n, v, i, got, want)
+						}
 					}
 				}
 			}
 		}
-	}
-	// Window by window (and pair by pair, both lanes), so that no
-	// difference hides behind a larger maximum.
-	for name, x := range kernelSignals(4801) {
-		for i := 0; i+interpolatorTaps+1 <= len(x); i++ {
-			for _, w := range [][]float64{x[i : i+interpolatorTaps], x[i : i+interpolatorTaps+1]} {
-				if got, want := peak4Squares(w, 0), peak4SquaresGo(w, 0); !sameBits(got, want) {
-					t.Fatalf("%s, %d samples at %d: kernel %.17g, Go %.17g", name, len(w), i, got, want)
-				}
-			}
-		}
-	}
-	// Fewer samples than one window: nothing to compute.
-	for n := range interpolatorTaps {
-		w := denseFullScale(uint64(n), n)
-		if got := peak4Squares(w, 0.5); got != 0.5 {
-			t.Errorf("%d samples: %v, want the running maximum 0.5 unchanged", n, got)
-		}
-	}
+	})
 }
 
 // sameState reports whether two K-weighting filters hold the same state
@@ -102,6 +189,10 @@ func sameState(k, l *KWeighting) bool {
 // state after every call bit for bit, for the same and for different
 // coefficients in the two lanes, over writes of several sizes.
 func TestEnergyPairMatchesEnergy(t *testing.T) {
+	forEachKernelSet(t, testEnergyPairMatchesEnergy)
+}
+
+func testEnergyPairMatchesEnergy(t *testing.T) {
 	for _, rates := range [][2]int{{48000, 48000}, {44100, 96000}} {
 		for _, n := range kernelLengths {
 			sigs := kernelSignals(n)

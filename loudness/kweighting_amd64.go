@@ -14,6 +14,9 @@ package loudness
 // rounds as scalar does, so the results are identical.
 func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	b = b[:len(a)]
+	if kernels == goKernels {
+		return k.Energy(a), l.Energy(b)
+	}
 	s := kweightLanes{
 		b0: [2]float64{k.Shelf.B0, l.Shelf.B0},
 		b1: [2]float64{k.Shelf.B1, l.Shelf.B1},
