@@ -94,7 +94,7 @@ func TestKernelSetsAvailable(t *testing.T) {
 
 // truePeakKernels are the interpolator kernels and their Go references.
 var truePeakKernels = []struct {
-	name      string
+	name        string
 	kernel, ref func(w []float64, sq float64) float64
 }{
 	{"4x", peak4Squares, peak4SquaresGo},
