@@ -145,6 +145,13 @@ type Meter struct {
 
 	// The 10 Hz series.
 	seriesM, seriesS, seriesTP, seriesSP seriesRecorder
+
+	// A segment meter (StartAt, segment.go) measures the stretch from
+	// block origin (frame originFrame) on and logs its finished blocks:
+	// energy, per-channel true peaks, per-channel sample peaks.
+	origin, originFrame int64
+	logging             bool
+	log                 []float64
 }
 
 // NewMeter returns a meter for interleaved frames of len(weights) channels at
@@ -192,7 +199,10 @@ func NewMeter(sampleRate int, weights []float64) (*Meter, error) {
 
 // boundary returns the frame index where 100 ms block k starts:
 // round(k·rate/10), halves up.
-func (m *Meter) boundary(k int64) int64 { return (k*int64(m.rate) + 5) / 10 }
+// A segment meter counts its blocks and frames from its own start.
+func (m *Meter) boundary(k int64) int64 {
+	return ((m.origin+k)*int64(m.rate)+5)/10 - m.originFrame
+}
 
 // Rejected returns how many samples the meter could not measure (NaN, ±Inf,
 // or beyond ±MaxMagnitude) since it was built or reset. Unlike Result it
@@ -206,6 +216,7 @@ func (m *Meter) Reset() {
 		m.peaks[c].Reset()
 	}
 	m.frames, m.rejected, m.energy = 0, 0, 0
+	m.origin, m.originFrame, m.logging, m.log = 0, 0, false, m.log[:0]
 	m.nextBoundary = m.boundary(1)
 	clear(m.blockTrue)
 	clear(m.blockPeak)
@@ -299,6 +310,10 @@ func (m *Meter) addEnergy(n int) {
 // 30), feeds both to their statistics and the series, and forgets the
 // block's samples.
 func (m *Meter) finishBlock() {
+	if m.logging {
+		m.logBlock()
+		return
+	}
 	var truePeak, samplePeak float64 // linear, highest over channels
 	for c := range m.channels {
 		truePeak = max(truePeak, m.blockTrue[c])
