@@ -78,14 +78,25 @@ func wavBytesAt(sampleRate, channels, bits int, mask uint32, frames []float64) [
 
 // BenchmarkTenMinutes is the full measurement a `kweigh measure` run does
 // of a 10-minute 24-bit WAV (48 kHz stereo, 96 kHz stereo, 48 kHz 5.1 with
-// its stereo fold-down), one file at a time. x-realtime-cpu is seconds of
-// audio per second of the process's CPU time (the one-core figure on a
-// shared machine; requirements ≥ 2000×, ≥ 1200×, ≥ 700×). For 48 kHz
-// stereo each loop also runs `sox FILE -n stats` on the same file, where
-// sox is installed, and reports x-sox: sox's CPU time over kweigh's in the
-// same run (above 1 when kweigh is faster). Run it on one core:
+// its stereo fold-down), one file at a time, each loop measuring the file
+// once on one core and once on two (Options.Cores, the file cut into
+// sections). Metrics:
 //
-//	go test -run '^$' -bench TenMinutes -benchtime 3x -cpu 1 ./measure
+//   - x-realtime-cpu: seconds of audio per second of the process's CPU time
+//     for the one-core measurement (the one-core figure on a shared
+//     machine; requirements ≥ 2000×, ≥ 1200×, ≥ 700×);
+//   - x-realtime-1core, x-realtime-2cores: the same per second of wall time;
+//   - speedup-2cores: one-core wall time over two-core wall time in the same
+//     loop (requirement ≥ 1.8; it needs two idle cores);
+//   - cores-busy-2cores: CPU time over wall time of the two-core
+//     measurement, near 2 when the sections really ran at once;
+//   - x-sox (48 kHz stereo, where sox is installed): the CPU time of
+//     `sox FILE -n stats` on the same file in the same loop over kweigh's
+//     one-core CPU time, above 1 when kweigh is faster.
+//
+// Run it with two cores available to Go:
+//
+//	go test -run '^$' -bench TenMinutes -benchtime 3x -cpu 2 ./measure
 func BenchmarkTenMinutes(b *testing.B) {
 	dir := b.TempDir()
 	for _, c := range []struct {
@@ -101,28 +112,38 @@ func BenchmarkTenMinutes(b *testing.B) {
 		b.Run(c.name, func(b *testing.B) {
 			path := longWAV(b, dir, c.rate, c.channels, c.mask, 10)
 			sox, soxErr := exec.LookPath("sox")
-			var soxCPU, ownCPU time.Duration
-			clock := audiotest.StartRealtime(b)
+			var soxCPU, oneCPU, oneWall, twoCPU, twoWall time.Duration
+			b.ResetTimer()
 			for b.Loop() {
-				start := audiotest.ProcessCPU()
+				start, cpu := time.Now(), audiotest.ProcessCPU()
 				if m := measure.File(context.Background(), path, measure.Options{}); m.Error != "" {
 					b.Fatal(m.Error)
 				}
-				ownCPU += audiotest.ProcessCPU() - start
+				oneCPU += audiotest.ProcessCPU() - cpu
+				oneWall += time.Since(start)
+				start, cpu = time.Now(), audiotest.ProcessCPU()
+				if m := measure.File(context.Background(), path, measure.Options{Cores: measure.NewCores(2)}); m.Error != "" {
+					b.Fatal(m.Error)
+				}
+				twoWall += time.Since(start)
+				twoCPU += audiotest.ProcessCPU() - cpu
 				if c.againstSoxStats && soxErr == nil {
-					b.StopTimer()
 					cmd := exec.Command(sox, path, "-n", "stats")
 					if out, err := cmd.CombinedOutput(); err != nil {
 						b.Fatalf("sox: %v\n%s", err, out)
 					}
 					soxCPU += cmd.ProcessState.UserTime() + cmd.ProcessState.SystemTime()
-					b.StartTimer()
 				}
 			}
+			audio := 600 * float64(b.N)
+			b.ReportMetric(audio/oneCPU.Seconds(), "x-realtime-cpu")
+			b.ReportMetric(audio/oneWall.Seconds(), "x-realtime-1core")
+			b.ReportMetric(audio/twoWall.Seconds(), "x-realtime-2cores")
+			b.ReportMetric(oneWall.Seconds()/twoWall.Seconds(), "speedup-2cores")
+			b.ReportMetric(twoCPU.Seconds()/twoWall.Seconds(), "cores-busy-2cores")
 			if soxCPU > 0 {
-				b.ReportMetric(soxCPU.Seconds()/ownCPU.Seconds(), "x-sox")
+				b.ReportMetric(soxCPU.Seconds()/oneCPU.Seconds(), "x-sox")
 			}
-			clock.Report(600)
 		})
 	}
 }
