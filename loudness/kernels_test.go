@@ -243,3 +243,54 @@ func TestMeterChannelPairing(t *testing.T) {
 		}
 	}
 }
+
+// TestSplitFastMatchesGo checks the fused stereo de-interleave and
+// sample-peak pass (splitFast) against the plain loop for every chunk
+// length up to 70 frames and on every kernel set: the two channels' inputs
+// and the block peaks bit for bit, and a refusal (false) whenever the chunk
+// holds a sample the meter cannot measure, which the Go loop then counts.
+func TestSplitFastMatchesGo(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		base := interleave(musicLike(21, 80, 48000), denseFullScale(22, 80))
+		for n := range 71 {
+			for _, bad := range []float64{0, math.NaN(), math.Inf(-1), 2 * MaxMagnitude, -3, -0.0} {
+				frames := append([]float64(nil), base[:2*n]...)
+				if n > 0 && bad != 0 {
+					frames[(7*n)%(2*n)] = bad
+				}
+				m, _ := NewMeter(48000, []float64{1, 1})
+				m.blockPeak[0], m.blockPeak[1] = 0.01, 0.02
+				ok := m.splitFast(frames, n)
+				var want [2]uint64
+				rejected := false
+				for i := range n {
+					for c := range 2 {
+						a := math.Float64bits(frames[2*i+c]) &^ signBit
+						want[c] = max(want[c], a)
+						rejected = rejected || a > maxMagnitudeBits
+					}
+				}
+				if !ok {
+					if kernels == avx2Kernels && n >= 4 && !rejected {
+						t.Fatalf("%d frames, %v: refused a measurable chunk", n, bad)
+					}
+					continue
+				}
+				if rejected {
+					t.Fatalf("%d frames, %v: accepted a chunk with an unmeasurable sample", n, bad)
+				}
+				for c := range 2 {
+					in := m.peaks[c].input(n)
+					for i := range n {
+						if !sameBits(in[i], frames[2*i+c]) {
+							t.Fatalf("%d frames: channel %d sample %d is %v, want %v", n, c, i, in[i], frames[2*i+c])
+						}
+					}
+					if w := max([]float64{0.01, 0.02}[c], math.Float64frombits(want[c])); !sameBits(m.blockPeak[c], w) {
+						t.Fatalf("%d frames: channel %d peak %v, want %v", n, c, m.blockPeak[c], w)
+					}
+				}
+			}
+		}
+	})
+}

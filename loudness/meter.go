@@ -255,6 +255,9 @@ func (m *Meter) Write(frames []float64) {
 func (m *Meter) process(frames []float64, n int) {
 	nch := m.channels
 	for c := range nch {
+		if c == 0 && m.splitFast(frames, n) {
+			break
+		}
 		in := m.peaks[c].input(n)
 		var peak uint64 // bits of max|v|: see maxAbs
 		j := c
