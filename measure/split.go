@@ -241,13 +241,6 @@ func measureSection(ctx context.Context, sp decode.Splitter, s *section, info de
 func (d *downmixer) warm(buf []float64) {
 	frames := len(buf) / d.channels
 	out := make([]float64, 2*frames)
-	for f := range frames {
-		var lo, ro float64
-		for c, x := range buf[f*d.channels : (f+1)*d.channels] {
-			lo += d.left[c] * x
-			ro += d.right[c] * x
-		}
-		out[2*f], out[2*f+1] = lo, ro
-	}
+	d.fold(out, buf)
 	d.meter.Warm(out)
 }
