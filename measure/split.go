@@ -140,6 +140,14 @@ func measureSplit(ctx context.Context, d decode.Decoder, info decode.Info, layou
 		wg.Wait()
 		for _, s := range round {
 			if s.onePass {
+				// Start again from nothing: one pass reads the file from
+				// its first frame.
+				meter.Reset()
+				if fold != nil {
+					fold.meter.Reset()
+				}
+				*hyg = blank
+				hyg.sum, hyg.run = make([]float64, len(blank.sum)), make([]int64, len(blank.run))
 				return -1, nil
 			}
 			if s.err != nil {

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/measure"
 )
 
@@ -166,5 +167,47 @@ func TestSmallAndDamagedFilesStayOnePass(t *testing.T) {
 		if strings.HasSuffix(p, "cut.wav") && m.Damaged == "" {
 			t.Errorf("%s: damage not reported", p)
 		}
+	}
+}
+
+// TestFileShrinkingUnderSectionsFallsBackToOnePass truncates a file after
+// its header was read: the sections of the first round are measured and
+// joined, a later one comes up short, and the file must then be measured
+// again in one pass from its first frame, reporting the damage exactly as
+// a one-pass measurement of the same shrunken file does.
+func TestFileShrinkingUnderSectionsFallsBackToOnePass(t *testing.T) {
+	dir := t.TempDir()
+	// 11 minutes of 8 kHz mono: two rounds of sections on two cores
+	// (sections are at most 5 minutes), small enough to write quickly.
+	data := wavBytesAt(8000, 1, 16, 0, programmeOf(8000, 1, 660, 9))
+	keep := int64(len(data)) - 8000*2*30 // the last 30 s go
+	measureShrunk := func(cores *measure.Cores) *measure.Measurement {
+		p := filepath.Join(dir, fmt.Sprintf("shrinking-%v.wav", cores != nil))
+		if err := os.WriteFile(p, data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		d, err := decode.Open(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer d.Close()
+		if err := os.Truncate(p, keep); err != nil {
+			t.Fatal(err)
+		}
+		return measure.Stream(context.Background(), p, d, measure.Options{Cores: cores})
+	}
+	want := measureShrunk(nil)
+	before := measure.SectionsMeasured()
+	got := measureShrunk(measure.NewCores(2))
+	if n := measure.SectionsMeasured() - before; n < 3 {
+		t.Fatalf("%d sections measured, want the first round and the short one", n)
+	}
+	if want.Damaged == "" || got.Damaged == "" {
+		t.Fatalf("damage not reported: one pass %q, sections %q", want.Damaged, got.Damaged)
+	}
+	got.Path, want.Path = "", ""
+	got.Damaged = strings.ReplaceAll(got.Damaged, "shrinking-true", "shrinking-false")
+	if d := sameMeasurement(reflect.ValueOf(got).Elem(), reflect.ValueOf(want).Elem(), "Measurement"); d != "" {
+		t.Error(d)
 	}
 }
