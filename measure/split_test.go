@@ -86,50 +86,65 @@ func TestSectionsGiveTheOnePassFigures(t *testing.T) {
 		}
 		return p
 	}
-	clipped := programmeOf(44100, 2, 70, 5)
-	for i := 0; i < len(clipped)/2; i++ {
-		s := float64(i) / 44100
-		if s >= 29.5 && s < 30.5 {
-			clipped[2*i] = 1
+	clipped := func() []byte {
+		x := programmeOf(44100, 2, 70, 5)
+		for i := 0; i < len(x)/2; i++ {
+			s := float64(i) / 44100
+			if s >= 29.5 && s < 30.5 {
+				x[2*i] = 1
+			}
+			if s >= 25 && s < 65 {
+				x[2*i+1] = -1
+			}
 		}
-		if s >= 25 && s < 65 {
-			clipped[2*i+1] = -1
+		return wavBytesAt(44100, 2, 16, 0, x)
+	}
+	quiet := func() []byte {
+		x := programmeOf(48000, 2, 64, 6)
+		for i := range x {
+			if s := float64(i/2) / 48000; s < 40 || s >= 50 {
+				x[i] *= 1e-4
+			}
 		}
+		return wavBytes(2, 24, false, 0, x)
 	}
-	quiet := programmeOf(48000, 2, 64, 6)
-	for i := range quiet {
-		if s := float64(i/2) / 48000; s < 40 || s >= 50 {
-			quiet[i] *= 1e-4
+	dual := func() []byte {
+		mono := programmeOf(48000, 1, 60, 7)
+		x := make([]float64, 0, 2*len(mono))
+		for _, v := range mono {
+			x = append(x, v, v)
 		}
+		return wavBytes(2, 24, false, 0, x)
 	}
-	mono := programmeOf(48000, 1, 60, 7)
-	dual := make([]float64, 0, 2*len(mono))
-	for _, v := range mono {
-		dual = append(dual, v, v)
+	bad := func() []byte {
+		x := programmeOf(48000, 2, 61, 8)
+		x[2*48000*45+1] = math.NaN()
+		return wavBytes(2, 32, true, 0, x)
 	}
-	bad := programmeOf(48000, 2, 61, 8)
-	bad[2*48000*45+1] = math.NaN()
 
+	// Each file is made inside its subtest, so that -run can pick one.
 	for _, c := range []struct {
 		name string
-		path string
+		file string
+		make func() []byte
 		err  bool
 	}{
-		{"stereo-61.23s", write("stereo.wav", wavBytes(2, 24, false, 0, programmeOf(48000, 2, 61.23, 1))), false},
-		{"5.1-60s", write("surround.wav", wavBytes(6, 24, false, 0x3F, programmeOf(48000, 6, 60, 2))), false},
-		{"clip-runs-44.1k-16bit", write("clipped.wav", wavBytesAt(44100, 2, 16, 0, clipped)), false},
-		{"silence-at-both-ends", write("quiet.wav", wavBytes(2, 24, false, 0, quiet)), false},
-		{"dual-mono", write("dual.wav", wavBytes(2, 24, false, 0, dual)), false},
-		{"nan-at-45s", write("bad.wav", wavBytes(2, 32, true, 0, bad)), true},
+		{"stereo-61.23s", "stereo.wav", func() []byte { return wavBytes(2, 24, false, 0, programmeOf(48000, 2, 61.23, 1)) }, false},
+		{"5.1-60s", "surround.wav", func() []byte { return wavBytes(6, 24, false, 0x3F, programmeOf(48000, 6, 60, 2)) }, false},
+		{"clip-runs-44.1k-16bit", "clipped.wav", clipped, false},
+		{"silence-at-both-ends", "quiet.wav", quiet, false},
+		{"dual-mono", "dual.wav", dual, false},
+		{"nan-at-45s", "bad.wav", bad, true},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			want := measure.File(context.Background(), c.path, measure.Options{KeepSeries: true})
+			path := write(c.file, c.make())
+			want := measure.File(context.Background(), path, measure.Options{KeepSeries: true})
 			if c.err != (want.Error != "") {
 				t.Fatalf("one pass: error %q", want.Error)
 			}
 			for _, cores := range []int{2, 3} {
 				before := measure.SectionsMeasured()
-				got := measure.File(context.Background(), c.path, measure.Options{KeepSeries: true, Cores: measure.NewCores(cores)})
+				got := measure.File(context.Background(), path, measure.Options{KeepSeries: true, Cores: measure.NewCores(cores)})
 				if n := measure.SectionsMeasured() - before; n < 2 {
 					t.Fatalf("%d cores: %d sections measured, want at least 2", cores, n)
 				}
