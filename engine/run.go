@@ -17,6 +17,11 @@ import (
 // same ctx and should return early (Judge does, within one block of audio).
 // Targets never started are not emitted: compare the count emitted with
 // len(targets) to see whether the run was complete.
+//
+// To let a long file use the cores a short batch leaves idle, give work a
+// measure.Options.Cores of NewCores(jobs), one budget for the whole run:
+// each file holds one core while it is measured and cuts itself into
+// sections on as many more as are free (cmd/kweigh does).
 func Run(ctx context.Context, targets []Target, jobs int, work func(context.Context, Target) Record, emit func(i int, r Record), ordered bool) {
 	RunEach(ctx, len(targets), jobs, func(ctx context.Context, i int) Record { return work(ctx, targets[i]) }, emit, ordered)
 }

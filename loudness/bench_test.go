@@ -147,24 +147,29 @@ func BenchmarkTruePeak(b *testing.B) {
 	}
 }
 
-// BenchmarkTruePeakKernel is the 4× interpolator alone on one chunk of
-// dense 48 kHz noise (every window computed, nothing skipped): the Go loop
-// against the kernel in use (the SIMD one on amd64).
+// BenchmarkTruePeakKernel is the interpolator alone (4× and 2×) on one
+// chunk of dense noise (every window computed, nothing skipped), on every
+// kernel set this machine runs: go is the reference loop, sse2 two lanes,
+// avx2 four. Compare the sets' x-realtime-cpu within one run.
 func BenchmarkTruePeakKernel(b *testing.B) {
 	w := denseFullScale(5, history+chunkFrames)
-	for _, k := range []struct {
-		name   string
-		kernel func(w []float64, sq float64) float64
-	}{{"go", peak4SquaresGo}, {"in-use", peak4Squares}} {
-		b.Run(k.name, func(b *testing.B) {
-			b.SetBytes(chunkFrames * 8)
-			clock := audiotest.StartRealtimeThread(b)
-			var sink float64
-			for range b.N {
-				sink += k.kernel(w, 0)
-			}
-			_ = sink
-			clock.Report(chunkFrames / 48000.0) // per channel
-		})
+	for _, k := range truePeakKernels {
+		for _, set := range availableKernels() {
+			b.Run(k.name+"/"+set.String(), func(b *testing.B) {
+				restore, err := useKernels(set)
+				if err != nil {
+					b.Fatal(err)
+				}
+				defer restore()
+				b.SetBytes(chunkFrames * 8)
+				clock := audiotest.StartRealtimeThread(b)
+				var sink float64
+				for range b.N {
+					sink += k.kernel(w, 0)
+				}
+				_ = sink
+				clock.Report(chunkFrames / 48000.0) // per channel, as at 48 kHz
+			})
+		}
 	}
 }

@@ -47,41 +47,128 @@ func sameBits(a, b float64) bool {
 	return math.Float64bits(a) == math.Float64bits(b) || a != a && b != b
 }
 
-// TestPeak4SquaresMatchesGo checks the true-peak kernel in use against the
-// Go loop on whole windows, at every start offset within 16 bytes (the
-// kernel's loads are unaligned) and from several running maxima.
-func TestPeak4SquaresMatchesGo(t *testing.T) {
-	for _, n := range kernelLengths {
-		for name, x := range kernelSignals(n + history + 1) {
-			for offset := range 2 {
-				w := x[offset : offset+n+history]
-				for _, sq := range []float64{0, 0.01, 0.25, 4, math.Inf(1), math.NaN()} {
-					got, want := peak4Squares(w, sq), peak4SquaresGo(w, sq)
-					if !sameBits(got, want) {
-						t.Errorf("%s, %d samples, offset %d, sq %v: kernel %.17g, Go %.17g", name, n, offset, sq, got, want)
+// forEachKernelSet runs f once on every kernel set this build and CPU can
+// run (go, then sse2 and avx2 where present), as a subtest named after it.
+func forEachKernelSet(t *testing.T, f func(t *testing.T)) {
+	t.Helper()
+	for _, k := range availableKernels() {
+		t.Run(k.String(), func(t *testing.T) {
+			restore, err := useKernels(k)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer restore()
+			f(t)
+		})
+	}
+}
+
+// TestKernelSetsAvailable checks the kernel choice: the Go loops always
+// run, this amd64 build offers SSE2 unless built with -tags purego, and
+// the environment cap never selects a set the CPU lacks.
+func TestKernelSetsAvailable(t *testing.T) {
+	sets := availableKernels()
+	if len(sets) == 0 || sets[0] != goKernels {
+		t.Fatalf("available kernel sets %v: want the Go loops first", sets)
+	}
+	for _, c := range []struct {
+		best kernelSet
+		env  string
+		want kernelSet
+	}{
+		{avx2Kernels, "", avx2Kernels},
+		{avx2Kernels, "sse2", sse2Kernels},
+		{avx2Kernels, "go", goKernels},
+		{sse2Kernels, "avx2", sse2Kernels},
+		{goKernels, "avx2", goKernels},
+		{avx2Kernels, "bogus", avx2Kernels},
+	} {
+		if got := chooseKernels(c.best, c.env); got != c.want {
+			t.Errorf("best %v, %s=%q: chose %v, want %v", c.best, KernelEnv, c.env, got, c.want)
+		}
+	}
+	if _, err := useKernels(bestKernels() + 1); err == nil {
+		t.Error("useKernels accepted a set beyond the best available")
+	}
+}
+
+// truePeakKernels are the interpolator kernels and their Go references.
+var truePeakKernels = []struct {
+	name        string
+	kernel, ref func(w []float64, sq float64) float64
+}{
+	{"4x", peak4Squares, peak4SquaresGo},
+	{"2x", peak2Squares, peak2SquaresGo},
+}
+
+// TestPeakSquaresMatchGo checks the true-peak kernels in use (4× and 2×)
+// against the Go loops on whole windows, at every start offset within 32
+// bytes (the kernels' loads are unaligned) and from several running
+// maxima, on every kernel set.
+func TestPeakSquaresMatchGo(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		for _, k := range truePeakKernels {
+			for _, n := range kernelLengths {
+				for name, x := range kernelSignals(n + history + 4) {
+					for offset := range 4 {
+						w := x[offset : offset+n+history]
+						for _, sq := range []float64{0, 0.01, 0.25, 4, math.Inf(1), math.NaN()} {
+							got, want := k.kernel(w, sq), k.ref(w, sq)
+							if !sameBits(got, want) {
+								t.Errorf("%s %s, %d samples, offset %d, sq %v: kernel %.17g, Go %.17g", k.name, name, n, offset, sq, got, want)
+							}
+						}
+					}
+				}
+			}
+			// Window by window (and in groups up to four, every lane), so
+			// that no difference hides behind a larger maximum.
+			for name, x := range kernelSignals(4801) {
+				for i := 0; i+interpolatorTaps+3 <= len(x); i++ {
+					for extra := range 4 {
+						w := x[i : i+interpolatorTaps+extra]
+						if got, want := k.kernel(w, 0), k.ref(w, 0); !sameBits(got, want) {
+							t.Fatalf("%s %s, %d samples at %d: kernel %.17g, Go %.17g", k.name, name, len(w), i, got, want)
+						}
+					}
+				}
+			}
+			// Fewer samples than one window: nothing to compute.
+			for n := range interpolatorTaps {
+				w := denseFullScale(uint64(n), n)
+				if got := k.kernel(w, 0.5); got != 0.5 {
+					t.Errorf("%s, %d samples: %v, want the running maximum 0.5 unchanged", k.name, n, got)
+				}
+			}
+		}
+	})
+}
+
+// TestMaxAbsMatchesGo checks the sample-peak scan in use against the Go
+// loop for every length up to 70 and every start offset, with the largest
+// magnitude in every position and with NaN and ±Inf present (which order
+// above every finite value, as the rejection scan relies on).
+func TestMaxAbsMatchesGo(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		base := musicLike(9, 80, 48000)
+		for n := range 71 {
+			for offset := range 4 {
+				x := append([]float64(nil), base[offset:offset+n]...)
+				if got, want := maxAbs(x), maxAbsGo(x); !sameBits(got, want) {
+					t.Fatalf("%d samples, offset %d: %v, Go %v", n, offset, got, want)
+				}
+				for i := range x {
+					for _, v := range []float64{-3, 2.5, math.Inf(-1), math.NaN(), -0.0} {
+						y := append([]float64(nil), x...)
+						y[i] = v
+						if got, want := maxAbs(y), maxAbsGo(y); !sameBits(got, want) {
+							t.Fatalf("%d samples, %v at %d: %v, Go %v", n, v, i, got, want)
+						}
 					}
 				}
 			}
 		}
-	}
-	// Window by window (and pair by pair, both lanes), so that no
-	// difference hides behind a larger maximum.
-	for name, x := range kernelSignals(4801) {
-		for i := 0; i+interpolatorTaps+1 <= len(x); i++ {
-			for _, w := range [][]float64{x[i : i+interpolatorTaps], x[i : i+interpolatorTaps+1]} {
-				if got, want := peak4Squares(w, 0), peak4SquaresGo(w, 0); !sameBits(got, want) {
-					t.Fatalf("%s, %d samples at %d: kernel %.17g, Go %.17g", name, len(w), i, got, want)
-				}
-			}
-		}
-	}
-	// Fewer samples than one window: nothing to compute.
-	for n := range interpolatorTaps {
-		w := denseFullScale(uint64(n), n)
-		if got := peak4Squares(w, 0.5); got != 0.5 {
-			t.Errorf("%d samples: %v, want the running maximum 0.5 unchanged", n, got)
-		}
-	}
+	})
 }
 
 // sameState reports whether two K-weighting filters hold the same state
@@ -102,6 +189,10 @@ func sameState(k, l *KWeighting) bool {
 // state after every call bit for bit, for the same and for different
 // coefficients in the two lanes, over writes of several sizes.
 func TestEnergyPairMatchesEnergy(t *testing.T) {
+	forEachKernelSet(t, testEnergyPairMatchesEnergy)
+}
+
+func testEnergyPairMatchesEnergy(t *testing.T) {
 	for _, rates := range [][2]int{{48000, 48000}, {44100, 96000}} {
 		for _, n := range kernelLengths {
 			sigs := kernelSignals(n)
@@ -151,4 +242,89 @@ func TestMeterChannelPairing(t *testing.T) {
 			t.Errorf("weights %v: integrated %+v, max momentary %+v; reference %+v, %+v", weights, r.Integrated, r.MaxMomentary, wantI, wantM)
 		}
 	}
+}
+
+// TestSplitFastMatchesGo checks the fused stereo de-interleave and
+// sample-peak pass (splitFast) against the plain loop for every chunk
+// length up to 70 frames and on every kernel set: the two channels' inputs
+// and the block peaks bit for bit, and a refusal (false) whenever the chunk
+// holds a sample the meter cannot measure, which the Go loop then counts.
+func TestSplitFastMatchesGo(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		base := interleave(musicLike(21, 80, 48000), denseFullScale(22, 80))
+		for n := range 71 {
+			for _, bad := range []float64{0, math.NaN(), math.Inf(-1), 2 * MaxMagnitude, -3, -0.0} {
+				frames := append([]float64(nil), base[:2*n]...)
+				if n > 0 && bad != 0 {
+					frames[(7*n)%(2*n)] = bad
+				}
+				m, _ := NewMeter(48000, []float64{1, 1})
+				m.blockPeak[0], m.blockPeak[1] = 0.01, 0.02
+				ok := m.splitFast(frames, n)
+				var want [2]uint64
+				rejected := false
+				for i := range n {
+					for c := range 2 {
+						a := math.Float64bits(frames[2*i+c]) &^ signBit
+						want[c] = max(want[c], a)
+						rejected = rejected || a > maxMagnitudeBits
+					}
+				}
+				if !ok {
+					if kernels == avx2Kernels && n >= 4 && !rejected {
+						t.Fatalf("%d frames, %v: refused a measurable chunk", n, bad)
+					}
+					continue
+				}
+				if rejected {
+					t.Fatalf("%d frames, %v: accepted a chunk with an unmeasurable sample", n, bad)
+				}
+				for c := range 2 {
+					in := m.peaks[c].input(n)
+					for i := range n {
+						if !sameBits(in[i], frames[2*i+c]) {
+							t.Fatalf("%d frames: channel %d sample %d is %v, want %v", n, c, i, in[i], frames[2*i+c])
+						}
+					}
+					if w := max([]float64{0.01, 0.02}[c], math.Float64frombits(want[c])); !sameBits(m.blockPeak[c], w) {
+						t.Fatalf("%d frames: channel %d peak %v, want %v", n, c, m.blockPeak[c], w)
+					}
+				}
+			}
+		}
+	})
+}
+
+// TestEnergyQuadMatchesEnergy checks the four-channel K-weighting kernel
+// against Energy on each channel: every energy and the filter state after
+// every call bit for bit, with four different rates (so different
+// coefficients) in the four lanes and signals including non-finite ones,
+// over writes of several sizes, on every kernel set.
+func TestEnergyQuadMatchesEnergy(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		rates := [4]int{48000, 44100, 96000, 8000}
+		for _, n := range kernelLengths {
+			sigs := kernelSignals(n)
+			x := [4][]float64{sigs["programme"], sigs["dense-full-scale"], sigs["spikes"], sigs["non-finite"]}
+			for _, step := range []int{1, 7, 1024, 4801} {
+				var f, ref [4]KWeighting
+				for i := range f {
+					f[i] = NewKWeighting(rates[i])
+					ref[i] = f[i]
+				}
+				for i := 0; i < n; i += step {
+					j := min(i+step, n)
+					e := energyQuad([4]*KWeighting{&f[0], &f[1], &f[2], &f[3]}, [4][]float64{x[0][i:j], x[1][i:j], x[2][i:j], x[3][i:j]})
+					for c := range 4 {
+						if w := ref[c].Energy(x[c][i:j]); !sameBits(e[c], w) {
+							t.Fatalf("%d samples in writes of %d, lane %d, samples %d–%d: kernel %.17g, Energy %.17g", n, step, c, i, j, e[c], w)
+						}
+						if !sameState(&f[c], &ref[c]) {
+							t.Fatalf("%d samples in writes of %d, lane %d: filter state differs from Energy's", n, step, c)
+						}
+					}
+				}
+			}
+		}
+	})
 }

@@ -14,6 +14,9 @@ package loudness
 // rounds as scalar does, so the results are identical.
 func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	b = b[:len(a)]
+	if kernels == goKernels {
+		return k.Energy(a), l.Energy(b)
+	}
 	s := kweightLanes{
 		b0: [2]float64{k.Shelf.B0, l.Shelf.B0},
 		b1: [2]float64{k.Shelf.B1, l.Shelf.B1},
@@ -54,3 +57,50 @@ type kweightLanes struct {
 //
 //go:noescape
 func energyPairSSE2(s *kweightLanes, a, b []float64) (ea, eb float64)
+
+// kweightQuad is kweightLanes for four filters (energyQuadAVX2).
+type kweightQuad struct {
+	b0, b1, b2, a1, a2, c1, c2 [4]float64
+	x1, x2, u1, u2, v1, v2     [4]float64
+}
+
+// quadEnergy reports whether energyQuad runs four channels at once here.
+func quadEnergy() bool { return kernels >= avx2Kernels }
+
+// energyQuad returns f[i].Energy(x[i]) for four filters, bit for bit, and
+// leaves their state as Energy would; every x[i] must be as long as x[0].
+// With AVX2 the four recursions run in the four lanes of one register
+// (energyQuadAVX2), each lane performing Energy's operations in order;
+// elsewhere two pairs.
+func energyQuad(f [4]*KWeighting, x [4][]float64) (e [4]float64) {
+	n := len(x[0])
+	for i := range x {
+		x[i] = x[i][:n]
+	}
+	if !quadEnergy() {
+		e[0], e[1] = energyPair(f[0], f[1], x[0], x[1])
+		e[2], e[3] = energyPair(f[2], f[3], x[2], x[3])
+		return e
+	}
+	var s kweightQuad
+	for i, k := range f {
+		s.b0[i], s.b1[i], s.b2[i], s.a1[i], s.a2[i] = k.Shelf.B0, k.Shelf.B1, k.Shelf.B2, k.Shelf.A1, k.Shelf.A2
+		s.c1[i], s.c2[i] = k.HighPass.A1, k.HighPass.A2
+		s.x1[i], s.x2[i], s.u1[i], s.u2[i] = k.Shelf.x1, k.Shelf.x2, k.Shelf.y1, k.Shelf.y2
+		s.v1[i], s.v2[i] = k.HighPass.y1, k.HighPass.y2
+	}
+	e[0], e[1], e[2], e[3] = energyQuadAVX2(&s, x[0], x[1], x[2], x[3])
+	for i, k := range f {
+		k.Shelf.x1, k.Shelf.x2, k.Shelf.y1, k.Shelf.y2 = s.x1[i], s.x2[i], s.u1[i], s.u2[i]
+		// The high-pass input history is the shelf output history.
+		k.HighPass.x1, k.HighPass.x2, k.HighPass.y1, k.HighPass.y2 = s.u1[i], s.u2[i], s.v1[i], s.v2[i]
+	}
+	return e
+}
+
+// energyQuadAVX2 filters a, b, c, d (all of len(a)) through the four
+// filters of s, updates their state and returns Σy² of each
+// (kweighting_avx2_amd64.s).
+//
+//go:noescape
+func energyQuadAVX2(s *kweightQuad, a, b, c, d []float64) (ea, eb, ec, ed float64)

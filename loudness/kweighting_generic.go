@@ -8,3 +8,14 @@ func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	b = b[:len(a)]
 	return k.Energy(a), l.Energy(b)
 }
+
+// quadEnergy reports false: no four-lane kernel here.
+func quadEnergy() bool { return false }
+
+// energyQuad is energyPair twice on platforms without a four-lane kernel.
+func energyQuad(f [4]*KWeighting, x [4][]float64) (e [4]float64) {
+	n := len(x[0])
+	e[0], e[1] = energyPair(f[0], f[1], x[0], x[1][:n])
+	e[2], e[3] = energyPair(f[2], f[3], x[2], x[3][:n])
+	return e
+}

@@ -145,6 +145,13 @@ type Meter struct {
 
 	// The 10 Hz series.
 	seriesM, seriesS, seriesTP, seriesSP seriesRecorder
+
+	// A segment meter (StartAt, segment.go) measures the stretch from
+	// block origin (frame originFrame) on and logs its finished blocks:
+	// energy, per-channel true peaks, per-channel sample peaks.
+	origin, originFrame int64
+	logging             bool
+	log                 []float64
 }
 
 // NewMeter returns a meter for interleaved frames of len(weights) channels at
@@ -192,7 +199,10 @@ func NewMeter(sampleRate int, weights []float64) (*Meter, error) {
 
 // boundary returns the frame index where 100 ms block k starts:
 // round(k·rate/10), halves up.
-func (m *Meter) boundary(k int64) int64 { return (k*int64(m.rate) + 5) / 10 }
+// A segment meter counts its blocks and frames from its own start.
+func (m *Meter) boundary(k int64) int64 {
+	return ((m.origin+k)*int64(m.rate)+5)/10 - m.originFrame
+}
 
 // Rejected returns how many samples the meter could not measure (NaN, ±Inf,
 // or beyond ±MaxMagnitude) since it was built or reset. Unlike Result it
@@ -206,6 +216,7 @@ func (m *Meter) Reset() {
 		m.peaks[c].Reset()
 	}
 	m.frames, m.rejected, m.energy = 0, 0, 0
+	m.origin, m.originFrame, m.logging, m.log = 0, 0, false, m.log[:0]
 	m.nextBoundary = m.boundary(1)
 	clear(m.blockTrue)
 	clear(m.blockPeak)
@@ -244,6 +255,9 @@ func (m *Meter) Write(frames []float64) {
 func (m *Meter) process(frames []float64, n int) {
 	nch := m.channels
 	for c := range nch {
+		if c == 0 && m.splitFast(frames, n) {
+			break
+		}
 		in := m.peaks[c].input(n)
 		var peak uint64 // bits of max|v|: see maxAbs
 		j := c
@@ -272,25 +286,45 @@ func (m *Meter) process(frames []float64, n int) {
 
 // addEnergy adds the weighted K-filtered energy of the n samples waiting in
 // each channel's input. The filter is latency-bound, so channels go through
-// it two at a time (energyPair); an odd one out goes alone. Channels of
+// it several at a time: four (energyQuad) where AVX2 runs them in one
+// register, then two (energyPair); an odd one out goes alone. Channels of
 // weight 0 are skipped, and the sum is taken in channel order either way.
 func (m *Meter) addEnergy(n int) {
-	waiting := -1 // a weighted channel not yet filtered
+	var wait [4]int // weighted channels not yet filtered
+	k := 0
+	quad := quadEnergy()
 	for c, w := range m.weights {
 		if !(w > 0) {
 			continue
 		}
-		if waiting < 0 {
-			waiting = c
-			continue
+		wait[k] = c
+		k++
+		if k == 4 {
+			f := [4]*KWeighting{&m.filters[wait[0]], &m.filters[wait[1]], &m.filters[wait[2]], &m.filters[wait[3]]}
+			x := [4][]float64{m.peaks[wait[0]].input(n), m.peaks[wait[1]].input(n), m.peaks[wait[2]].input(n), m.peaks[wait[3]].input(n)}
+			e := energyQuad(f, x)
+			for i, ch := range wait {
+				m.energy += m.weights[ch] * e[i]
+			}
+			k = 0
 		}
-		ea, eb := energyPair(&m.filters[waiting], &m.filters[c], m.peaks[waiting].input(n), m.peaks[c].input(n))
-		m.energy += m.weights[waiting] * ea
-		m.energy += w * eb
-		waiting = -1
+		if k == 2 && !quad {
+			ea, eb := energyPair(&m.filters[wait[0]], &m.filters[wait[1]], m.peaks[wait[0]].input(n), m.peaks[wait[1]].input(n))
+			m.energy += m.weights[wait[0]] * ea
+			m.energy += m.weights[wait[1]] * eb
+			k = 0
+		}
 	}
-	if waiting >= 0 {
-		m.energy += m.weights[waiting] * m.filters[waiting].Energy(m.peaks[waiting].input(n))
+	i := 0
+	for ; i+1 < k; i += 2 {
+		a, b := wait[i], wait[i+1]
+		ea, eb := energyPair(&m.filters[a], &m.filters[b], m.peaks[a].input(n), m.peaks[b].input(n))
+		m.energy += m.weights[a] * ea
+		m.energy += m.weights[b] * eb
+	}
+	if i < k {
+		c := wait[i]
+		m.energy += m.weights[c] * m.filters[c].Energy(m.peaks[c].input(n))
 	}
 }
 
@@ -299,6 +333,10 @@ func (m *Meter) addEnergy(n int) {
 // 30), feeds both to their statistics and the series, and forgets the
 // block's samples.
 func (m *Meter) finishBlock() {
+	if m.logging {
+		m.logBlock()
+		return
+	}
 	var truePeak, samplePeak float64 // linear, highest over channels
 	for c := range m.channels {
 		truePeak = max(truePeak, m.blockTrue[c])

@@ -244,11 +244,19 @@ func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor f
 	return floor
 }
 
-// maxAbs returns max|x| (0 for an empty slice). It compares the bit
-// patterns of |x| as integers, which order like the magnitudes for
+// maxAbsGo returns max|x| (0 for an empty slice): the reference for the
+// SIMD maxAbs.
+func maxAbsGo(x []float64) float64 { return float64frombits(maxAbsBitsGo(x)) }
+
+// float64frombits is math.Float64frombits (a short name for the kernels'
+// files).
+func float64frombits(b uint64) float64 { return math.Float64frombits(b) }
+
+// maxAbsBitsGo returns the largest bit pattern of |x[i]|. It compares the
+// bit patterns of |x| as integers, which order like the magnitudes for
 // non-negative floats and let the compiler use a conditional move: on audio
 // the branch of a float comparison mispredicts too often.
-func maxAbs(x []float64) float64 {
+func maxAbsBitsGo(x []float64) uint64 {
 	var m0, m1 uint64
 	for len(x) >= 2 {
 		a := math.Float64bits(x[0]) &^ signBit
@@ -266,7 +274,7 @@ func maxAbs(x []float64) float64 {
 			m0 = a
 		}
 	}
-	return math.Float64frombits(max(m0, m1))
+	return max(m0, m1)
 }
 
 const signBit = 1 << 63
@@ -347,16 +355,29 @@ func peak4SquaresGo(w []float64, sq float64) float64 {
 	return sq
 }
 
-// peak2 is peak4 for 2× oversampling: phases 0 and 2 only.
+// peak2 is peak4 for 2× oversampling: phases 0 and 2 only. peak2Squares
+// does the work: peak2SquaresGo, or a SIMD version of it.
 func peak2(w []float64, floor float64) float64 {
-	h0, h2 := annex2Phase0, annex2Phase1
-	sq := floor * floor
+	sq := peak2Squares(w, floor*floor)
+	if sq > floor*floor {
+		return math.Sqrt(sq)
+	}
+	return floor
+}
+
+// peak2SquaresGo returns the largest of sq and y² over the 2× interpolated
+// values y of the inputs w[11:], w[:11] being their history: the portable
+// kernel and the reference for the SIMD ones. Each output is the plain
+// 12-tap sum, tap 0 first; the float64 conversions forbid fused
+// multiply-adds, as in peak4SquaresGo.
+func peak2SquaresGo(w []float64, sq float64) float64 {
+	h0, h2 := &annex2Phase0, &annex2Phase1
 	for i := 0; i+interpolatorTaps <= len(w); i++ {
 		x := (*[interpolatorTaps]float64)(w[i : i+interpolatorTaps])
 		var y0, y2 float64
 		for t := range interpolatorTaps {
-			y0 += h0[t] * x[interpolatorTaps-1-t]
-			y2 += h2[t] * x[t] // phase 2 = phase 1 reversed
+			y0 += float64(h0[t] * x[interpolatorTaps-1-t])
+			y2 += float64(h2[t] * x[t]) // phase 2 = phase 1 reversed
 		}
 		if v := y0 * y0; v > sq {
 			sq = v
@@ -365,10 +386,7 @@ func peak2(w []float64, floor float64) float64 {
 			sq = v
 		}
 	}
-	if sq > floor*floor {
-		return math.Sqrt(sq)
-	}
-	return floor
+	return sq
 }
 
 // checkRate reports whether sampleRate is one the engine supports.

@@ -2,13 +2,26 @@
 
 package loudness
 
-// peak4Squares is peak4SquaresGo with the interpolator run two windows at a
-// time in the two lanes of SSE2 registers (part of every amd64 CPU): lane 0
-// computes output positions 4n…4n+3, lane 1 positions 4n+4…4n+7, from one
-// unaligned load per tap. Each lane performs the very operations of the Go
-// loop in the same order, so the result is bit-for-bit the same. An odd last
-// window is left to the Go loop.
+// peak4Squares is peak4SquaresGo with the interpolator run several windows
+// at a time in SIMD lanes: four with AVX2 (peak4QuadsAVX2), two with SSE2
+// (part of every amd64 CPU; lane 0 computes output positions 4n…4n+3,
+// lane 1 positions 4n+4…4n+7, from one unaligned load per tap). Each lane
+// performs the very operations of the Go loop in the same order, so the
+// result is bit-for-bit the same. The windows left over go to the next
+// narrower kernel, the last odd one to the Go loop; the maximum does not
+// depend on the order the windows are visited in.
 func peak4Squares(w []float64, sq float64) float64 {
+	switch kernels {
+	case goKernels:
+		return peak4SquaresGo(w, sq)
+	case avx2Kernels:
+		sq = peak4QuadsAVX2(w, sq)
+		done := (len(w) - history) &^ 3
+		if done <= 0 {
+			break
+		}
+		w = w[done:]
+	}
 	sq = peak4PairsSSE2(w, sq)
 	if n := len(w) - history; n > 0 && n%2 == 1 {
 		sq = peak4SquaresGo(w[len(w)-interpolatorTaps:], sq)
@@ -16,8 +29,67 @@ func peak4Squares(w []float64, sq float64) float64 {
 	return sq
 }
 
+// peak2Squares is peak2SquaresGo in SIMD lanes, as peak4Squares is
+// peak4SquaresGo.
+func peak2Squares(w []float64, sq float64) float64 {
+	switch kernels {
+	case goKernels:
+		return peak2SquaresGo(w, sq)
+	case avx2Kernels:
+		sq = peak2QuadsAVX2(w, sq)
+		done := (len(w) - history) &^ 3
+		if done <= 0 {
+			break
+		}
+		w = w[done:]
+	}
+	sq = peak2PairsSSE2(w, sq)
+	if n := len(w) - history; n > 0 && n%2 == 1 {
+		sq = peak2SquaresGo(w[len(w)-interpolatorTaps:], sq)
+	}
+	return sq
+}
+
+// maxAbs returns max|x| (0 for an empty slice) as maxAbsGo does; with AVX2
+// eight elements at a time (the integer maximum of the bit patterns is
+// exact, so the order does not matter).
+func maxAbs(x []float64) float64 {
+	if kernels < avx2Kernels || len(x) < 8 {
+		return maxAbsGo(x)
+	}
+	m := maxAbsBitsAVX2(x)
+	if tail := x[len(x)&^7:]; len(tail) > 0 {
+		m = max(m, maxAbsBitsGo(tail))
+	}
+	return float64frombits(m)
+}
+
 // peak4PairsSSE2 is peak4SquaresGo over the first 2·⌊(len(w)−11)/2⌋
 // windows of w (truepeak_amd64.s).
 //
 //go:noescape
 func peak4PairsSSE2(w []float64, sq float64) float64
+
+// peak4QuadsAVX2 is peak4SquaresGo over the first 4·⌊(len(w)−11)/4⌋
+// windows of w (truepeak_avx2_amd64.s).
+//
+//go:noescape
+func peak4QuadsAVX2(w []float64, sq float64) float64
+
+// peak2PairsSSE2 is peak2SquaresGo over the first 2·⌊(len(w)−11)/2⌋
+// windows of w (truepeak_amd64.s).
+//
+//go:noescape
+func peak2PairsSSE2(w []float64, sq float64) float64
+
+// peak2QuadsAVX2 is peak2SquaresGo over the first 4·⌊(len(w)−11)/4⌋
+// windows of w (truepeak_avx2_amd64.s).
+//
+//go:noescape
+func peak2QuadsAVX2(w []float64, sq float64) float64
+
+// maxAbsBitsAVX2 is maxAbsBitsGo over the first 8·⌊len(x)/8⌋ elements
+// (truepeak_avx2_amd64.s).
+//
+//go:noescape
+func maxAbsBitsAVX2(x []float64) uint64

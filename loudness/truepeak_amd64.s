@@ -148,3 +148,118 @@ done:
 	MAXSD    X1, X0
 	MOVSD    X0, ret+32(FP)
 	RET
+
+// peak2Coeffs holds the 2× interpolator of peak2SquaresGo in both lanes:
+// for t = 0…11 the 16-byte slots h0[t] and h1[t] at offset 32·t.
+DATA peak2Coeffs<>+0(SB)/8, $(0.0017089843750)
+DATA peak2Coeffs<>+8(SB)/8, $(0.0017089843750)
+DATA peak2Coeffs<>+16(SB)/8, $(-0.0291748046875)
+DATA peak2Coeffs<>+24(SB)/8, $(-0.0291748046875)
+DATA peak2Coeffs<>+32(SB)/8, $(0.0109863281250)
+DATA peak2Coeffs<>+40(SB)/8, $(0.0109863281250)
+DATA peak2Coeffs<>+48(SB)/8, $(0.0292968750000)
+DATA peak2Coeffs<>+56(SB)/8, $(0.0292968750000)
+DATA peak2Coeffs<>+64(SB)/8, $(-0.0196533203125)
+DATA peak2Coeffs<>+72(SB)/8, $(-0.0196533203125)
+DATA peak2Coeffs<>+80(SB)/8, $(-0.0517578125000)
+DATA peak2Coeffs<>+88(SB)/8, $(-0.0517578125000)
+DATA peak2Coeffs<>+96(SB)/8, $(0.0332031250000)
+DATA peak2Coeffs<>+104(SB)/8, $(0.0332031250000)
+DATA peak2Coeffs<>+112(SB)/8, $(0.0891113281250)
+DATA peak2Coeffs<>+120(SB)/8, $(0.0891113281250)
+DATA peak2Coeffs<>+128(SB)/8, $(-0.0594482421875)
+DATA peak2Coeffs<>+136(SB)/8, $(-0.0594482421875)
+DATA peak2Coeffs<>+144(SB)/8, $(-0.1665039062500)
+DATA peak2Coeffs<>+152(SB)/8, $(-0.1665039062500)
+DATA peak2Coeffs<>+160(SB)/8, $(0.1373291015625)
+DATA peak2Coeffs<>+168(SB)/8, $(0.1373291015625)
+DATA peak2Coeffs<>+176(SB)/8, $(0.4650878906250)
+DATA peak2Coeffs<>+184(SB)/8, $(0.4650878906250)
+DATA peak2Coeffs<>+192(SB)/8, $(0.9721679687500)
+DATA peak2Coeffs<>+200(SB)/8, $(0.9721679687500)
+DATA peak2Coeffs<>+208(SB)/8, $(0.7797851562500)
+DATA peak2Coeffs<>+216(SB)/8, $(0.7797851562500)
+DATA peak2Coeffs<>+224(SB)/8, $(-0.1022949218750)
+DATA peak2Coeffs<>+232(SB)/8, $(-0.1022949218750)
+DATA peak2Coeffs<>+240(SB)/8, $(-0.2003173828125)
+DATA peak2Coeffs<>+248(SB)/8, $(-0.2003173828125)
+DATA peak2Coeffs<>+256(SB)/8, $(0.0476074218750)
+DATA peak2Coeffs<>+264(SB)/8, $(0.0476074218750)
+DATA peak2Coeffs<>+272(SB)/8, $(0.1015625000000)
+DATA peak2Coeffs<>+280(SB)/8, $(0.1015625000000)
+DATA peak2Coeffs<>+288(SB)/8, $(-0.0266113281250)
+DATA peak2Coeffs<>+296(SB)/8, $(-0.0266113281250)
+DATA peak2Coeffs<>+304(SB)/8, $(-0.0582275390625)
+DATA peak2Coeffs<>+312(SB)/8, $(-0.0582275390625)
+DATA peak2Coeffs<>+320(SB)/8, $(0.0148925781250)
+DATA peak2Coeffs<>+328(SB)/8, $(0.0148925781250)
+DATA peak2Coeffs<>+336(SB)/8, $(0.0330810546875)
+DATA peak2Coeffs<>+344(SB)/8, $(0.0330810546875)
+DATA peak2Coeffs<>+352(SB)/8, $(-0.0083007812500)
+DATA peak2Coeffs<>+360(SB)/8, $(-0.0083007812500)
+DATA peak2Coeffs<>+368(SB)/8, $(-0.0189208984375)
+DATA peak2Coeffs<>+376(SB)/8, $(-0.0189208984375)
+GLOBL peak2Coeffs<>(SB), RODATA|NOPTR, $384
+
+// TAP2X2 adds tap t of both 2× phases for two windows:
+// y0 += h0[t]·x[11−t], y2 += h1[t]·x[t].
+#define TAP2X2(t) \
+	MOVUPD (88-8*t)(SI), X1 \
+	MULPD  peak2Coeffs<>+(32*t)(SB), X1 \
+	ADDPD  X1, X4 \
+	MOVUPD (8*t)(SI), X2 \
+	MULPD  peak2Coeffs<>+(32*t+16)(SB), X2 \
+	ADDPD  X2, X5
+
+// func peak2PairsSSE2(w []float64, sq float64) float64
+//
+// peak2SquaresGo over the first 2·⌊(len(w)−11)/2⌋ windows of w, two
+// windows in the two lanes. Registers: SI window start, CX windows left;
+// X4 y0, X5 y2; X0 and X8 running maxima.
+TEXT ·peak2PairsSSE2(SB), NOSPLIT, $0-40
+	MOVQ     w_base+0(FP), SI
+	MOVQ     w_len+8(FP), CX
+	MOVSD    sq+24(FP), X0
+	UNPCKLPD X0, X0
+	MOVAPD   X0, X8
+	SUBQ     $11, CX
+	CMPQ     CX, $2
+	JLT      done2
+
+loop2:
+	// Tap 0 starts the sums (0 + p is p up to the sign of a zero, which
+	// squaring removes).
+	MOVUPD 88(SI), X4
+	MULPD  peak2Coeffs<>+0(SB), X4
+	MOVUPD 0(SI), X5
+	MULPD  peak2Coeffs<>+16(SB), X5
+	TAP2X2(1)
+	TAP2X2(2)
+	TAP2X2(3)
+	TAP2X2(4)
+	TAP2X2(5)
+	TAP2X2(6)
+	TAP2X2(7)
+	TAP2X2(8)
+	TAP2X2(9)
+	TAP2X2(10)
+	TAP2X2(11)
+	MULPD  X4, X4
+	MULPD  X5, X5
+	MAXPD  X0, X4
+	MOVAPD X4, X0
+	MAXPD  X8, X5
+	MOVAPD X5, X8
+
+	ADDQ $16, SI
+	SUBQ $2, CX
+	CMPQ CX, $2
+	JGE  loop2
+
+done2:
+	MAXPD    X8, X0
+	MOVAPD   X0, X1
+	UNPCKHPD X1, X1
+	MAXSD    X1, X0
+	MOVSD    X0, ret+32(FP)
+	RET

@@ -4,3 +4,9 @@ package loudness
 
 // peak4Squares is peak4SquaresGo on platforms without a SIMD kernel.
 func peak4Squares(w []float64, sq float64) float64 { return peak4SquaresGo(w, sq) }
+
+// peak2Squares is peak2SquaresGo on platforms without a SIMD kernel.
+func peak2Squares(w []float64, sq float64) float64 { return peak2SquaresGo(w, sq) }
+
+// maxAbs is maxAbsGo on platforms without a SIMD kernel.
+func maxAbs(x []float64) float64 { return maxAbsGo(x) }

@@ -78,15 +78,7 @@ func (d *downmixer) write(buf []float64) int {
 		d.stereo = make([]float64, 2*frames)
 	}
 	out := d.stereo[:2*frames]
-	for f := 0; f < frames; f++ {
-		frame := buf[f*d.channels : (f+1)*d.channels]
-		var lo, ro float64
-		for c, x := range frame {
-			lo += d.left[c] * x
-			ro += d.right[c] * x
-		}
-		out[2*f], out[2*f+1] = lo, ro
-	}
+	d.fold(out, buf)
 	before := d.meter.Rejected()
 	d.meter.Write(out)
 	if d.meter.Rejected() == before {

@@ -49,6 +49,12 @@ type Options struct {
 	Digest bool
 	// Events set the limits where events begin (see EventLimits).
 	Events EventLimits
+	// Cores, when set, is the budget of cores this measurement shares with
+	// the others of a run: the file holds one while it is measured, and a
+	// long file of a splittable format (decode.Splitter) is cut into
+	// sections measured at once on as many more as are free (split.go).
+	// Nil measures on the calling goroutine alone, in one pass.
+	Cores *Cores
 	// Decode holds the decoder options (e.g. skipping FLAC's MD5 check),
 	// passed to this file's decoder only.
 	Decode decode.Options
@@ -185,55 +191,32 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		progs = append(progs, p)
 	}
 
-	buf := make([]float64, blockFrames*info.Channels)
-	var frames int64
-	for {
-		if err := ctx.Err(); err != nil {
-			return fail(fmt.Errorf("interrupted after %.1f s of audio: %w", float64(frames)/float64(info.SampleRate), err))
+	if c := opt.Cores; c != nil {
+		if err := c.take(ctx); err != nil {
+			return fail(fmt.Errorf("interrupted before measuring: %w", err))
 		}
-		n, err := d.ReadFrames(buf)
-		if n > 0 {
-			block := buf[:n*info.Channels]
-			// The engine counts the samples it cannot measure (NaN, ±Inf,
-			// beyond loudness.MaxMagnitude) as it goes; only when it has
-			// seen one is the block searched for where.
-			before := meter.Rejected()
-			meter.Write(block)
-			if meter.Rejected() != before {
-				i := firstRejected(block)
-				at := frames + int64(i/info.Channels)
-				return fail(unmeasurable(at, layout[i%info.Channels], info.SampleRate, block[i]))
-			}
-			clips := ev.markClips(hyg)
-			hyg.write(block)
-			ev.afterBlock(hyg, clips, frames, n, info.SampleRate)
-			if fold != nil {
-				if f := fold.write(block); f >= 0 {
-					at := frames + int64(f)
-					return fail(fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
-						at, float64(at)/float64(info.SampleRate), sci(loudness.MaxMagnitude)))
-				}
-			}
-			for _, p := range progs {
-				if err := p.write(block, info.Channels, frames); err != nil {
-					return fail(err)
-				}
-			}
-			frames += int64(n)
-		}
-		if err == io.EOF {
-			break
-		}
-		var damage *decode.IntegrityError
-		if errors.As(err, &damage) {
-			m.Damaged = damage.Error()
-			break
-		}
-		if err != nil {
+		defer c.give()
+	}
+	// Sections are measured without the groups and without clipping and
+	// phase events (those need every block in order): a file with groups
+	// is read in one pass, and a split file that turns out to clip or to
+	// have a window below the phase limit is measured again in one pass,
+	// so every event is the one-pass event.
+	budget := opt.Cores
+	if len(progs) > 0 {
+		budget = nil
+	}
+	redo := func(h *hygiene) bool {
+		return h.clipped > 0 || (h.haveWindow && h.minWindow < *ev.lim.PhaseLimit)
+	}
+	frames, err := measureSplit(ctx, d, info, layout, weights, meter, fold, hyg, budget, redo)
+	if err != nil {
+		return fail(err)
+	}
+	if frames < 0 {
+		sink := blockSink{rate: info.SampleRate, channels: info.Channels, layout: layout, meter: meter, fold: fold, hyg: hyg, ev: ev, progs: progs}
+		if frames, err = onePass(ctx, d, info, &sink, m); err != nil {
 			return fail(err)
-		}
-		if n == 0 {
-			return fail(errors.New("decoder made no progress"))
 		}
 	}
 
@@ -370,4 +353,90 @@ func UndeclaredText(declaredS float64, u *decode.Undeclared) string {
 	}
 	return fmt.Sprintf("the header declares %.1f s but %.1f s more audio-like data follows (%d bytes from byte %d that are neither chunks nor tags)",
 		declaredS, u.Seconds, u.Bytes, u.Offset)
+}
+
+// onePass reads d to its end through the meters and the hygiene probes,
+// in order, and returns the frames decoded; damage found on the way goes
+// into m.Damaged, and measuring goes on as far as the decoder got.
+func onePass(ctx context.Context, d decode.Decoder, info decode.Info, sink *blockSink, m *Measurement) (int64, error) {
+	buf := make([]float64, blockFrames*info.Channels)
+	var frames int64
+	for {
+		if err := ctx.Err(); err != nil {
+			return frames, fmt.Errorf("interrupted after %.1f s of audio: %w", float64(frames)/float64(info.SampleRate), err)
+		}
+		n, err := d.ReadFrames(buf)
+		if n > 0 {
+			if err := sink.write(buf[:n*info.Channels], frames); err != nil {
+				return frames, err
+			}
+			frames += int64(n)
+		}
+		if err == io.EOF {
+			break
+		}
+		var damage *decode.IntegrityError
+		if errors.As(err, &damage) {
+			m.Damaged = damage.Error()
+			break
+		}
+		if err != nil {
+			return frames, err
+		}
+		if n == 0 {
+			return frames, errors.New("decoder made no progress")
+		}
+	}
+	return frames, nil
+}
+
+// blockSink is where every block of decoded audio goes, in order: the
+// meter, the hygiene probes and the fold-down meter (nil for files that are
+// not surround).
+type blockSink struct {
+	rate, channels int
+	layout         []string
+	meter          *loudness.Meter
+	fold           *downmixer
+	hyg            *hygiene
+	// ev and progs, when set (one pass only), take the clipping events of
+	// each block and the programme groups' channels.
+	ev    *events
+	progs []*programme
+}
+
+// write measures one block of interleaved frames whose first frame is
+// frame at of the file. It returns the error for a sample the engine
+// cannot measure, naming where it is.
+func (s *blockSink) write(block []float64, at int64) error {
+	// The engine counts the samples it cannot measure (NaN, ±Inf, beyond
+	// loudness.MaxMagnitude) as it goes; only when it has seen one is the
+	// block searched for where.
+	before := s.meter.Rejected()
+	s.meter.Write(block)
+	if s.meter.Rejected() != before {
+		i := firstRejected(block)
+		return unmeasurable(at+int64(i/s.channels), s.layout[i%s.channels], s.rate, block[i])
+	}
+	var clips clipMark
+	if s.ev != nil {
+		clips = s.ev.markClips(s.hyg)
+	}
+	s.hyg.write(block)
+	if s.ev != nil {
+		s.ev.afterBlock(s.hyg, clips, at, len(block)/s.channels, s.rate)
+	}
+	if s.fold != nil {
+		if f := s.fold.write(block); f >= 0 {
+			at += int64(f)
+			return fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
+				at, float64(at)/float64(s.rate), sci(loudness.MaxMagnitude))
+		}
+	}
+	for _, p := range s.progs {
+		if err := p.write(block, s.channels, at); err != nil {
+			return err
+		}
+	}
+	return nil
 }

@@ -38,7 +38,7 @@ func batchFlags(formats []reports.Format) []cli.Flag {
 	return append([]cli.Flag{
 		&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "text", Usage: "output format: " + strings.Join(names, ", ")},
 		&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the chosen format to `FILE`; the terminal still gets the text report"},
-		&cli.IntFlag{Name: "jobs", Aliases: []string{"j"}, Value: runtime.NumCPU(), Usage: "files measured at once"},
+		&cli.IntFlag{Name: "jobs", Aliases: []string{"j"}, Value: runtime.NumCPU(), Usage: "cores used at once, shared by the files and by the sections of a long WAV or AIFF file"},
 		&cli.StringFlag{Name: "layout", Usage: "channel layout for files without (or with a wrong) one: mono, stereo, 5.0, 5.1, 7.1 or labels like L,R,C,LFE,Ls,Rs"},
 		&cli.StringFlag{Name: "report", Usage: "also write a self-contained HTML QC page to `FILE`"},
 		&cli.StringFlag{Name: "plots", Usage: "also write each file's loudness plot as an SVG into `DIR`"},
@@ -213,6 +213,9 @@ func runBatch(ctx context.Context, o batchOptions, targets []engine.Target, opt 
 	var skippedPaths []string
 	done := 0
 	bar := newProgress(stderr, len(targets))
+	// The same budget of cores for every file of the run: a lone long
+	// file is measured on all of them, a batch one file per core.
+	opt.Measure.Cores = measure.NewCores(o.jobs)
 	engine.Run(ctx, targets, o.jobs,
 		func(ctx context.Context, t engine.Target) engine.Record { return engine.JudgeTarget(ctx, t, opt) },
 		func(i int, r engine.Record) {

@@ -62,3 +62,34 @@ func TestConvertersMatchReference(t *testing.T) {
 		}
 	}
 }
+
+// TestConvertInt24KernelMatchesGo checks the AVX2 24-bit conversion (where
+// this CPU runs it) against the Go loop alone for every length up to 40
+// samples and every start offset: the same float64 bits, including the
+// most negative and most positive codes.
+func TestConvertInt24KernelMatchesGo(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	raw := make([]byte, 3*44)
+	for i := range raw {
+		raw[i] = byte(rng.Uint32())
+	}
+	copy(raw[3:], []byte{0, 0, 0x80, 0xFF, 0xFF, 0x7F})
+	was := useAVX2
+	defer func() { useAVX2 = was }()
+	for n := range 41 {
+		for off := range 4 {
+			r := raw[3*off : 3*(off+n)]
+			useAVX2 = false
+			want := make([]float64, n)
+			convertInt24(want, r)
+			useAVX2 = was
+			got := make([]float64, n)
+			convertInt24(got, r)
+			for i := range want {
+				if math.Float64bits(got[i]) != math.Float64bits(want[i]) || want[i] != referenceSample(r[3*i:3*i+3], false) {
+					t.Fatalf("%d samples at offset %d: sample %d is %v, Go %v, reference %v", n, off, i, got[i], want[i], referenceSample(r[3*i:3*i+3], false))
+				}
+			}
+		}
+	}
+}

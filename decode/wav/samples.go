@@ -66,7 +66,12 @@ func convertInt16(dst []float64, raw []byte) {
 // convertInt24 places each 3-byte sample in the top of an int32, which
 // sign-extends it and scales all containers alike by 2^31. Four samples
 // are twelve bytes: one 8-byte and one 4-byte load.
+//
+// With AVX2 a kernel does groups of four samples first, with the same
+// values (convertInt24Fast).
 func convertInt24(dst []float64, raw []byte) {
+	done := convertInt24Fast(dst, raw)
+	dst, raw = dst[done:], raw[3*done:]
 	le := binary.LittleEndian
 	for len(dst) >= 4 && len(raw) >= 12 {
 		a, b := le.Uint64(raw), le.Uint32(raw[8:])

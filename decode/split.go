@@ -1,0 +1,30 @@
+package decode
+
+// Splitter is implemented by decoders whose audio can be read from any
+// frame on without decoding what comes before (PCM in WAV, RF64 and AIFF):
+// package measure cuts a long file into sections and measures them on
+// several cores at once. Decoders of formats that need the stream before a
+// point to decode it (FLAC without a seek table, MP3's bit reservoir) do
+// not implement it until they can find exact entry points.
+type Splitter interface {
+	// SplitFrames returns how many frames Section can reach: every frame
+	// of the stream when it is sound, or 0 when it must be read in one
+	// pass (damaged or truncated audio, whose report comes from ReadFrames
+	// in order).
+	SplitFrames() int64
+	// Section returns a new decoder for frames [from, to) of the stream,
+	// 0 ≤ from ≤ to ≤ SplitFrames(). It shares only the source, which it
+	// reads with ReadAt (safe for concurrent use on an *os.File), and does
+	// not move the decoder it came from; its Info is the whole stream's.
+	Section(from, to int64) (Decoder, error)
+}
+
+// Splittable returns d's Splitter and true when d (or the decoder inside
+// a *File) implements it.
+func Splittable(d Decoder) (Splitter, bool) {
+	if f, ok := d.(*File); ok {
+		d = f.Decoder
+	}
+	s, ok := d.(Splitter)
+	return s, ok
+}

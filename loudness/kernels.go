@@ -1,0 +1,77 @@
+package loudness
+
+import (
+	"fmt"
+	"os"
+)
+
+// kernelSet names one family of inner loops: the portable Go loops (the
+// reference), the two-lane SSE2 kernels every amd64 CPU has, or the
+// four-lane AVX2 kernels of newer ones. Every kernel performs the very
+// floating-point operations of its Go twin in the same order (no fused
+// multiply-adds), so all sets give the same bits; kernels_test.go checks
+// that on every set this machine can run.
+type kernelSet int
+
+const (
+	goKernels kernelSet = iota
+	sse2Kernels
+	avx2Kernels
+)
+
+func (k kernelSet) String() string {
+	switch k {
+	case sse2Kernels:
+		return "sse2"
+	case avx2Kernels:
+		return "avx2"
+	}
+	return "go"
+}
+
+// KernelEnv is the environment variable that caps the kernel set, for
+// testing every path on one machine: "go", "sse2" or "avx2". A set the CPU
+// or the build (-tags purego) lacks is never chosen; unset means the best
+// available.
+const KernelEnv = "KWEIGH_KERNELS"
+
+// kernels is the set in use. It is chosen once at start-up; tests change it
+// through useKernels only.
+var kernels = chooseKernels(bestKernels(), os.Getenv(KernelEnv))
+
+// chooseKernels returns the best set not above best and not above the one
+// named by env ("" for no cap).
+func chooseKernels(best kernelSet, env string) kernelSet {
+	for _, k := range []kernelSet{goKernels, sse2Kernels, avx2Kernels} {
+		if env == k.String() {
+			return min(k, best)
+		}
+	}
+	return best
+}
+
+// Kernels says which family of inner loops the engine runs on this CPU
+// ("go", "sse2" or "avx2"): for benchmarks and diagnostics. The results are
+// the same on all of them.
+func Kernels() string { return kernels.String() }
+
+// availableKernels lists the sets this build can run on this CPU, the
+// reference first.
+func availableKernels() []kernelSet {
+	var s []kernelSet
+	for k := goKernels; k <= bestKernels(); k++ {
+		s = append(s, k)
+	}
+	return s
+}
+
+// useKernels switches to set k for a test and returns a function that
+// switches back. It fails if k is not available.
+func useKernels(k kernelSet) (restore func(), err error) {
+	if k > bestKernels() {
+		return nil, fmt.Errorf("kernel set %v not available here (best: %v)", k, bestKernels())
+	}
+	old := kernels
+	kernels = k
+	return func() { kernels = old }, nil
+}
