@@ -98,7 +98,7 @@ func New(src decode.Source, size int64, kind Kind, opt decode.Options) (*Decoder
 			}
 			what = "only " + strings.Join(parts, ", ") + " stream(s)"
 		}
-		return nil, &decode.FormatError{Format: string(kind), Offset: -1, Problem: fmt.Sprintf("%s: it has %s", errNoAudio, what)}
+		return nil, &Error{Kind: kind, Problem: fmt.Sprintf("%s: it has %s", errNoAudio, what)}
 	}
 	chosen := audio
 	if opt.Stream > 0 {
@@ -123,7 +123,7 @@ func (d *Decoder) describe(t *tools, pr *probeResult, audio, chosen []probeStrea
 	total := 0
 	for _, s := range chosen {
 		if s.Channels <= 0 {
-			return &decode.FormatError{Format: string(kind), Offset: -1, Problem: fmt.Sprintf("audio stream %d declares %d channels", s.Index, s.Channels)}
+			return &Error{Kind: kind, Problem: fmt.Sprintf("audio stream %d declares %d channels", s.Index, s.Channels)}
 		}
 		total += s.Channels
 	}
@@ -139,7 +139,7 @@ func (d *Decoder) describe(t *tools, pr *probeResult, audio, chosen []probeStrea
 		}
 	}
 	if rate <= 0 {
-		return &decode.FormatError{Format: string(kind), Offset: -1, Problem: fmt.Sprintf("audio stream %d declares no sample rate", chosen[0].Index)}
+		return &Error{Kind: kind, Problem: fmt.Sprintf("audio stream %d declares no sample rate", chosen[0].Index)}
 	}
 	var codecs []string
 	bitRate := 0

@@ -97,11 +97,11 @@ func probe(t *tools, kind Kind, in input, timeout time.Duration) (*probeResult, 
 	cmd.Stderr = &limited{buf: &stderr, max: 4096}
 	err := cmd.Run()
 	if ctx.Err() != nil {
-		return nil, &decode.FormatError{Format: string(kind), Offset: -1,
-			Problem: fmt.Sprintf("ffprobe found no answer within %v; stopped it", timeout)}
+		return nil, &Error{Kind: kind,
+			Problem: fmt.Sprintf("ffprobe did not answer within %v and was stopped", timeout)}
 	}
 	if stdout.Len() > maxProbeOutput {
-		return nil, &decode.FormatError{Format: string(kind), Offset: -1,
+		return nil, &Error{Kind: kind,
 			Problem: fmt.Sprintf("ffprobe's description of the file exceeds %d MiB: far too many streams", maxProbeOutput>>20)}
 	}
 	if err != nil {
@@ -109,11 +109,11 @@ func probe(t *tools, kind Kind, in input, timeout time.Duration) (*probeResult, 
 		if msg == "" {
 			msg = err.Error()
 		}
-		return nil, &decode.FormatError{Format: string(kind), Offset: -1, Problem: "ffprobe cannot read it: " + msg}
+		return nil, &Error{Kind: kind, Problem: "ffprobe cannot read it: " + msg}
 	}
 	var r probeResult
 	if err := json.Unmarshal(stdout.Bytes(), &r); err != nil {
-		return nil, &decode.FormatError{Format: string(kind), Offset: -1, Problem: "ffprobe's answer is not the JSON expected", Err: err}
+		return nil, &Error{Kind: kind, Problem: "ffprobe's answer is not the JSON expected", Err: err}
 	}
 	return &r, nil
 }

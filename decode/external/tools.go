@@ -82,10 +82,7 @@ func findTools(kind Kind, opt decode.Options) (*tools, error) {
 		return nil, &MissingError{Kind: kind, Program: probeName, Err: err}
 	}
 	t := &tools{ffmpeg: ffmpeg, ffprobe: ffprobe}
-	timeout := opt.ChildTimeout
-	if timeout <= 0 {
-		timeout = DefaultTimeout
-	}
+	timeout := max(opt.ChildTimeout, DefaultTimeout) // asked once per path
 	out, err := runQuick(timeout, ffmpeg, "-hide_banner", "-version")
 	if err != nil {
 		return nil, &MissingError{Kind: kind, Program: ffmpeg, Err: err}
@@ -178,3 +175,21 @@ func firstLine(s string) string {
 }
 
 var errNoAudio = errors.New("no audio stream")
+
+// Error reports a recognised container that ffprobe or ffmpeg cannot read,
+// or whose streams cannot be measured as they are.
+type Error struct {
+	Kind    Kind
+	Problem string
+	Err     error // the underlying error, if any
+}
+
+func (e *Error) Error() string {
+	if e.Err != nil {
+		return fmt.Sprintf("invalid %s file: %s: %v", e.Kind, e.Problem, e.Err)
+	}
+	return fmt.Sprintf("invalid %s file: %s", e.Kind, e.Problem)
+}
+
+// Unwrap returns the underlying error.
+func (e *Error) Unwrap() error { return e.Err }
