@@ -175,8 +175,9 @@ func (d *Decoder) startLink(p *page) error {
 	return nil
 }
 
-// lastGranule returns the granule position of the last page of serial in
-// the file's final 64 KiB, or -1.
+// lastGranule returns the granule position of the file's last page when
+// it belongs to serial (a chained or multiplexed file's length is left to
+// the decoding), or -1.
 func lastGranule(r io.ReaderAt, size int64, serial uint32) int64 {
 	start := max(0, size-65536)
 	buf := make([]byte, size-start)
@@ -187,8 +188,11 @@ func lastGranule(r io.ReaderAt, size int64, serial uint32) int64 {
 			continue
 		}
 		p, err := readPage(r, start+int64(i), size)
-		if err == nil && p.serial == serial && p.granule >= 0 {
-			return p.granule
+		if err == nil {
+			if p.serial == serial && p.granule >= 0 {
+				return p.granule
+			}
+			return -1
 		}
 	}
 	return -1

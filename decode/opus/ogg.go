@@ -120,3 +120,7 @@ func (p *page) packets(partial []byte) (done [][]byte, tail []byte) {
 	}
 	return done, cur
 }
+
+// PageCRC returns the checksum of a whole Ogg page whose CRC field holds
+// zeros, as RFC 3533 section 6 defines it.
+func PageCRC(page []byte) uint32 { return oggCRC(0, page) }
