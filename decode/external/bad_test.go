@@ -196,9 +196,7 @@ func TestCancelStopsChild(t *testing.T) {
 	f := fixtures(t)
 	// 60 s of audio: long enough that ffmpeg is still running when the
 	// signal comes, because the stalling stand-in is not used here.
-	long := f.path("long.wav")
-	writeWAV24(t, long, 48000, 2, 0, signal(48000, 2, 60))
-	file := f.make(t, "long.m4a", "-i", long, "-c:a", "alac")
+	file := f.make(t, "long.m4a", "-i", f.long(t), "-c:a", "alac")
 
 	d, err := decode.OpenWith(file, decode.Options{})
 	if err != nil {

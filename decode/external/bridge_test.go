@@ -82,6 +82,15 @@ func fixtures(t testing.TB) *fixtureSet {
 	return &fx
 }
 
+// long returns 60 s of the stereo signal (made once).
+func (f *fixtureSet) long(t testing.TB) string {
+	p := f.path("long.wav")
+	if _, err := os.Stat(p); err != nil {
+		writeWAV24(t, p, 48000, 2, 0, signal(48000, 2, 60))
+	}
+	return p
+}
+
 func (f *fixtureSet) path(name string) string { return filepath.Join(f.dir, name) }
 
 // make encodes name once from the given ffmpeg arguments.
