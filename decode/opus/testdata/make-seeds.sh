@@ -21,3 +21,5 @@ PY
 for n in m s six; do seed "$tmp/$n.opus" "$out/$n" whole; done
 seed "$tmp/s.opus" "$out/s-cut" cut
 seed "$tmp/s.opus" "$out/s-flip" flip
+# The example file of ExampleNew: the stereo 0.1 s encoding itself.
+cp "$tmp/s.opus" example-stereo.opus
