@@ -7,6 +7,7 @@ import (
 	"os"
 	ossignal "os/signal"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
@@ -194,9 +195,10 @@ func TestChildTimeout(t *testing.T) {
 // while it is still decoding.
 func TestCancelStopsChild(t *testing.T) {
 	f := fixtures(t)
-	// 60 s of audio: long enough that ffmpeg is still running when the
-	// signal comes, because the stalling stand-in is not used here.
-	file := f.make(t, "long.m4a", "-i", f.long(t), "-c:a", "alac")
+	// 5 minutes of audio (the 60 s signal read five times over by
+	// ffmpeg's -stream_loop input option): long enough that the real
+	// ffmpeg is still decoding when the signal comes.
+	file := f.make(t, "long.m4a", "-stream_loop", "4", "-i", f.long(t), "-c:a", "alac")
 
 	d, err := decode.OpenWith(file, decode.Options{})
 	if err != nil {
@@ -216,9 +218,11 @@ func TestCancelStopsChild(t *testing.T) {
 	defer stop()
 	done := make(chan *measure.Measurement)
 	go func() { done <- measure.File(ctx, file, measure.Options{}) }()
-	time.Sleep(300 * time.Millisecond)
-	if live, _ := children(t); len(live) != 1 {
-		t.Errorf("want one running ffmpeg while measuring, have %v", live)
+	// Wait until ffmpeg (not ffprobe) is decoding, then interrupt.
+	for deadline := time.Now().Add(20 * time.Second); !ffmpegRunning(); time.Sleep(10 * time.Millisecond) {
+		if time.Now().After(deadline) {
+			t.Fatal("ffmpeg never started")
+		}
 	}
 	syscall.Kill(os.Getpid(), syscall.SIGINT)
 	select {
@@ -230,4 +234,15 @@ func TestCancelStopsChild(t *testing.T) {
 		t.Fatal("measurement did not stop after SIGINT")
 	}
 	noChildren(t)
+}
+
+// ffmpegRunning reports whether a child of this process named ffmpeg runs.
+func ffmpegRunning() bool {
+	live, _ := children(nil)
+	for _, pid := range live {
+		if b, err := os.ReadFile("/proc/" + strconv.Itoa(pid) + "/comm"); err == nil && strings.TrimSpace(string(b)) == "ffmpeg" {
+			return true
+		}
+	}
+	return false
 }

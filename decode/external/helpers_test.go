@@ -105,7 +105,9 @@ func writeWAV24(t testing.TB, path string, rate, channels int, mask uint32, samp
 // children returns the ids of this process's child processes and which of
 // them are zombies, from /proc (Linux).
 func children(t testing.TB) (live, zombies []int) {
-	t.Helper()
+	if t != nil {
+		t.Helper()
+	}
 	self := os.Getpid()
 	stats, _ := filepath.Glob("/proc/[0-9]*/stat")
 	for _, p := range stats {
