@@ -102,8 +102,8 @@ func TestBadInput(t *testing.T) {
 				if m.Err != nil || m.Damaged == "" || !strings.Contains(m.Damaged, "ffmpeg reported") {
 					t.Errorf("error %q, damaged %q: want a damaged mark from ffmpeg's report", m.Error, m.Damaged)
 				}
-				if m.DurationS <= 0 || m.DurationS >= 6 {
-					t.Errorf("%.3f s decoded before the damage; want part of the 6 s", m.DurationS)
+				if m.DurationS <= 0 || m.DurationS >= fixtureSeconds {
+					t.Errorf("%.3f s decoded before the damage; want part of the %d s", m.DurationS, fixtureSeconds)
 				}
 			default:
 				// Either refused or marked, or read right: never a silently wrong number.
@@ -195,10 +195,10 @@ func TestChildTimeout(t *testing.T) {
 // while it is still decoding.
 func TestCancelStopsChild(t *testing.T) {
 	f := fixtures(t)
-	// 5 minutes of audio (the 60 s signal read five times over by
+	// 3 minutes of audio (the 60 s signal read three times over by
 	// ffmpeg's -stream_loop input option): long enough that the real
 	// ffmpeg is still decoding when the signal comes.
-	file := f.make(t, "long.m4a", "-stream_loop", "4", "-i", f.long(t), "-c:a", "alac")
+	file := f.make(t, "long.m4a", "-stream_loop", "2", "-i", f.long(t), "-c:a", "alac")
 
 	d, err := decode.OpenWith(file, decode.Options{})
 	if err != nil {

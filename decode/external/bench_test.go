@@ -43,7 +43,7 @@ func BenchmarkAAC(b *testing.B) {
 	benchDecode(b, f.make(b, "bench.m4a", "-i", f.long(b), "-c:a", "aac", "-aac_pns", "0", "-b:a", "192k"))
 }
 
-// BenchmarkMXF: 6 s of 8 mono 24-bit PCM tracks in MXF through the bridge.
+// BenchmarkMXF: 4 s of 8 mono 24-bit PCM tracks in MXF through the bridge.
 func BenchmarkMXF(b *testing.B) {
 	benchDecode(b, fixtures(b).mxf8(b))
 }

@@ -51,6 +51,10 @@ type fixtureSet struct {
 
 var fx fixtureSet
 
+// fixtureSeconds is the length of the fixtures' signal: enough for the
+// integrated loudness (many 400 ms blocks) and short-term (3 s) values.
+const fixtureSeconds = 4
+
 func fixtures(t testing.TB) *fixtureSet {
 	t.Helper()
 	fx.once.Do(func() {
@@ -60,10 +64,10 @@ func fixtures(t testing.TB) *fixtureSet {
 		}
 		fx.dir = dir
 		fx.stereo = filepath.Join(dir, "stereo.wav")
-		writeWAV24(t, fx.stereo, 48000, 2, 0, signal(48000, 2, 6))
+		writeWAV24(t, fx.stereo, 48000, 2, 0, signal(48000, 2, fixtureSeconds))
 		fx.six = filepath.Join(dir, "six.wav")
-		writeWAV24(t, fx.six, 48000, 6, 0x3F, signal(48000, 6, 6))
-		all := signal(48000, 8, 6)
+		writeWAV24(t, fx.six, 48000, 6, 0x3F, signal(48000, 6, fixtureSeconds))
+		all := signal(48000, 8, fixtureSeconds)
 		for c := range 8 {
 			mono := make([]float64, len(all)/8)
 			for i := range mono {
@@ -105,7 +109,7 @@ func (f *fixtureSet) make(t testing.TB, name string, args ...string) string {
 }
 
 func (f *fixtureSet) mxf8(t testing.TB) string {
-	// ffmpeg's MXF muxer wants a video stream first: 6 s of black
+	// ffmpeg's MXF muxer wants a video stream first: the fixtures' length of black
 	// 64×64 frames, written raw as planar 4:2:0 and coded as MPEG-2.
 	video := f.path("black.yuv")
 	frame := make([]byte, 64*64*3/2)
@@ -115,7 +119,7 @@ func (f *fixtureSet) mxf8(t testing.TB) string {
 			frame[i] = 128
 		}
 	}
-	if err := os.WriteFile(video, bytes.Repeat(frame, 150), 0o644); err != nil {
+	if err := os.WriteFile(video, bytes.Repeat(frame, 25*fixtureSeconds), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	args := []string{"-f", "rawvideo", "-pix_fmt", "yuv420p", "-s", "64x64", "-r", "25", "-i", video}
