@@ -162,9 +162,14 @@ func TestWithoutFFmpeg(t *testing.T) {
 // stallingFFmpeg writes an ffmpeg that answers -version and -layouts like
 // the real one and then hangs on decoding (a stand-in for a decoder stuck
 // on a bad file), with the real ffprobe beside it.
-func stallingFFmpeg(t *testing.T) string {
+func stallingFFmpeg(t *testing.T) string { return standIn(t, "sleep 30") }
+
+// standIn writes an ffmpeg that answers -version and -layouts like the
+// real one and runs then instead of decoding, with the real ffprobe beside
+// it.
+func standIn(t *testing.T, then string) string {
 	dir := t.TempDir()
-	script := "#!/bin/sh\ncase \"$*\" in *-version*|*-layouts*) exec " + tool(t, "ffmpeg") + " \"$@\";; esac\nsleep 30\n"
+	script := "#!/bin/sh\ncase \"$*\" in *-version*|*-layouts*) exec " + tool(t, "ffmpeg") + " \"$@\";; esac\n" + then + "\n"
 	if err := os.WriteFile(filepath.Join(dir, "ffmpeg"), []byte(script), 0o755); err != nil {
 		t.Fatal(err)
 	}
@@ -186,6 +191,18 @@ func TestChildTimeout(t *testing.T) {
 	}
 	if !strings.Contains(m.Damaged, "stalled") {
 		t.Errorf("error %q damaged %q: want a stalled decoder", m.Error, m.Damaged)
+	}
+	noChildren(t)
+}
+
+// TestSilentFFmpeg: an ffmpeg that exits cleanly without any audio, for a
+// stream ffprobe says has some, is a damaged read, never a 0 s measurement.
+func TestSilentFFmpeg(t *testing.T) {
+	f := fixtures(t)
+	file := f.make(t, "alac.m4a", "-i", f.stereo, "-c:a", "alac")
+	m := measure.File(context.Background(), file, measure.Options{Decode: decode.Options{FFmpeg: standIn(t, "exit 0")}})
+	if !strings.Contains(m.Damaged, "decoded no audio") {
+		t.Errorf("error %q damaged %q", m.Error, m.Damaged)
 	}
 	noChildren(t)
 }

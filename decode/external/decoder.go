@@ -60,6 +60,8 @@ type Decoder struct {
 	killMu    sync.Mutex
 	done      bool
 	damage    error
+	// probeSeconds is the duration ffprobe gives (0 when it gives none).
+	probeSeconds float64
 }
 
 // New probes src (a container of the given kind, size bytes long) and
@@ -74,6 +76,9 @@ func New(src decode.Source, size int64, kind Kind, opt decode.Options) (*Decoder
 		timeout = DefaultTimeout
 	}
 	in := newInput(src, size)
+	if in.file == nil && (kind == MP4 || kind == MOV) && indexAfterAudio(src, size) {
+		return nil, &Error{Kind: kind, Problem: "its index (moov box) follows the audio (mdat), which ffmpeg cannot read from a stream; open it as a file"}
+	}
 	pr, err := probe(t, kind, in, timeout)
 	if err != nil {
 		return nil, err
@@ -168,6 +173,11 @@ func (d *Decoder) describe(t *tools, pr *probeResult, audio, chosen []probeStrea
 	}
 	if bitRate == 0 && len(chosen) == len(pr.Streams) {
 		bitRate = atoi(pr.Format.BitRate)
+	}
+	if dur, ok := atof(chosen[0].Duration); ok {
+		d.probeSeconds = dur
+	} else if dur, ok := atof(pr.Format.Duration); ok {
+		d.probeSeconds = dur
 	}
 	d.info = decode.Info{
 		Container:    string(kind),
@@ -459,6 +469,9 @@ func (d *Decoder) finish() error {
 		return &decode.IntegrityError{Format: string(d.kind), Offset: -1, Problem: "ffmpeg reported a decoding error: " + msg}
 	case err != nil:
 		return &decode.IntegrityError{Format: string(d.kind), Offset: -1, Problem: "ffmpeg failed: " + err.Error()}
+	case d.streams[0].frames == 0 && d.probeSeconds > 0:
+		return &decode.IntegrityError{Format: string(d.kind), Offset: -1,
+			Problem: fmt.Sprintf("ffmpeg decoded no audio from a stream ffprobe says lasts %.3f s", d.probeSeconds)}
 	}
 	return io.EOF
 }
@@ -497,4 +510,34 @@ func (d *Decoder) Close() error {
 	d.kill()
 	d.wait()
 	return nil
+}
+
+// indexAfterAudio reports whether an ISO/QuickTime file's top-level mdat
+// box comes before its moov box (ISO/IEC 14496-12 section 4.2 box
+// headers: 32-bit size, type, and a 64-bit size when the first is 1).
+func indexAfterAudio(r io.ReaderAt, size int64) bool {
+	var h [16]byte
+	for off := int64(0); off+8 <= size; {
+		if _, err := r.ReadAt(h[:8], off); err != nil {
+			return false
+		}
+		n := int64(binary.BigEndian.Uint32(h[:4]))
+		switch string(h[4:8]) {
+		case "moov":
+			return false
+		case "mdat":
+			return true
+		}
+		if n == 1 {
+			if _, err := r.ReadAt(h[8:16], off+8); err != nil {
+				return false
+			}
+			n = int64(binary.BigEndian.Uint64(h[8:16]))
+		}
+		if n < 8 {
+			return false
+		}
+		off += n
+	}
+	return false
 }
