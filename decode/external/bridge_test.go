@@ -217,7 +217,9 @@ func TestLossy(t *testing.T) {
 		{"AAC-LC 5.1", f.make(t, "aac51.m4a", "-i", f.six, "-c:a", "aac", "-aac_pns", "0", "-b:a", "384k"), f.six, nil, "aac LC", "L,R,C,LFE,Ls,Rs", 0.001, 0.2},
 		{"ADTS AAC", f.make(t, "aac.aac", "-i", f.stereo, "-c:a", "aac", "-aac_pns", "0", "-b:a", "192k"), f.stereo, nil, "aac LC", "L,R", 0.001, 0.2},
 		{"AC-3 5.1", f.make(t, "six.ac3", "-i", f.six, "-c:a", "ac3", "-b:a", "448k"), f.six, []string{"-drc_scale", "0"}, "ac3", "L,R,C,LFE,Ls,Rs", 0.001, 0.2},
+		{"E-AC-3 5.1", f.make(t, "six.eac3", "-i", f.six, "-c:a", "eac3"), f.six, []string{"-drc_scale", "0"}, "eac3", "L,R,C,LFE,Ls,Rs", 0.001, 0.2},
 		{"Vorbis", f.make(t, "vorbis.ogg", "-i", f.stereo, "-c:a", "libvorbis", "-q:a", "6"), f.stereo, nil, "vorbis", "L,R", 0.001, 0.2},
+		{"Vorbis 5.1", f.make(t, "vorbis51.ogg", "-i", f.six, "-c:a", "libvorbis", "-q:a", "6"), f.six, nil, "vorbis", "L,R,C,LFE,Ls,Rs", 0.001, 0.2},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
