@@ -11,6 +11,7 @@ require (
 	github.com/mewkiz/flac v1.0.14
 	github.com/prometheus/client_model v0.6.3
 	github.com/prometheus/common v0.74.0
+	github.com/thesyncim/gopus v0.1.1
 	github.com/urfave/cli/v3 v3.14.0
 	github.com/vbauerster/mpb/v8 v8.16.2
 	golang.org/x/net v0.62.0

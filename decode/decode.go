@@ -23,6 +23,7 @@ import (
 	"slices"
 	"strings"
 	"sync"
+	"time"
 )
 
 // SampleFormat says how the file stores its samples.
@@ -144,6 +145,19 @@ type Options struct {
 	// SkipMD5 skips verifying a stream's MD5 signature of the decoded
 	// audio (FLAC). Frame CRCs are still checked.
 	SkipMD5 bool
+	// FFmpeg is the path of the ffmpeg program the external bridge
+	// (package decode/external) runs for the formats kweigh does not decode
+	// itself; ffprobe is looked for beside it. Empty means the
+	// KWEIGH_FFMPEG environment variable, or else "ffmpeg" on PATH.
+	FFmpeg string
+	// Stream selects one audio stream (counted from 1 in file order) of a
+	// container that holds several; 0 reads them all as the channels of
+	// one measurement. Only the external bridge has several streams.
+	Stream int
+	// ChildTimeout is how long the bridge waits for its ffmpeg or ffprobe
+	// child to produce anything before it stops the child and reports the
+	// file as stalled; 0 means the bridge's default.
+	ChildTimeout time.Duration
 }
 
 var (
@@ -247,8 +261,18 @@ func OpenWith(path string, opt Options) (*File, error) {
 	return &File{Decoder: d, f: f}, nil
 }
 
-// Close closes the underlying file.
-func (f *File) Close() error { return f.f.Close() }
+// Close closes the decoder when it holds resources of its own (the external
+// bridge stops and reaps its child process) and then the underlying file.
+func (f *File) Close() error {
+	var err error
+	if c, ok := f.Decoder.(io.Closer); ok {
+		err = c.Close()
+	}
+	if ferr := f.f.Close(); err == nil {
+		err = ferr
+	}
+	return err
+}
 
 // Notes returns the decoder's notes when it keeps any.
 func (f *File) Notes() []string {

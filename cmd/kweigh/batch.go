@@ -43,6 +43,8 @@ func batchFlags(formats []reports.Format) []cli.Flag {
 		&cli.StringFlag{Name: "report", Usage: "also write a self-contained HTML QC page to `FILE`"},
 		&cli.StringFlag{Name: "plots", Usage: "also write each file's loudness plot as an SVG into `DIR`"},
 		&cli.BoolFlag{Name: "skip-flac-md5", Usage: "do not verify FLAC audio against its MD5 signature (faster; frame CRCs are still checked)"},
+		&cli.StringFlag{Name: "ffmpeg", Usage: "the ffmpeg that reads MP4/M4A, MOV, MXF, AC-3, ADTS AAC, Ogg Vorbis and Matroska (`PATH`; ffprobe is looked for beside it; default $KWEIGH_FFMPEG, else ffmpeg on PATH)"},
+		&cli.IntFlag{Name: "stream", Usage: "measure only audio stream `N` (from 1) of a file with several; default all of them as one programme"},
 	}, qcFlags()...)
 }
 
@@ -70,7 +72,10 @@ func readBatchOptions(cmd *cli.Command, formats []reports.Format) (batchOptions,
 			return o, usageError{err}
 		}
 	}
-	o.decode = decode.Options{SkipMD5: cmd.Bool("skip-flac-md5")}
+	o.decode = decode.Options{SkipMD5: cmd.Bool("skip-flac-md5"), FFmpeg: cmd.String("ffmpeg"), Stream: cmd.Int("stream")}
+	if o.decode.Stream < 0 {
+		return o, usagef("--stream counts from 1")
+	}
 	o.report = cmd.String("report")
 	o.plots = cmd.String("plots")
 	o.colour = isTerminal(cmd.Root().Writer) && os.Getenv("NO_COLOR") == ""

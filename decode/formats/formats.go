@@ -10,7 +10,9 @@ package formats
 
 import (
 	_ "github.com/kweigh/kweigh/decode/aiff"
+	_ "github.com/kweigh/kweigh/decode/external"
 	_ "github.com/kweigh/kweigh/decode/flac"
 	_ "github.com/kweigh/kweigh/decode/mp3"
+	_ "github.com/kweigh/kweigh/decode/opus"
 	_ "github.com/kweigh/kweigh/decode/wav"
 )
