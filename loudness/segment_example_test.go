@@ -44,7 +44,7 @@ func ExampleMeter_Join() {
 	fmt.Printf("true peak equal: %v\n", a.TruePeak[0] == b.TruePeak[0])
 	fmt.Printf("integrated within 1e-9 LU: %v\n", math.Abs(a.Integrated.Value-b.Integrated.Value) <= 1e-9)
 	// Output:
-	// integrated -27.3192 / -27.3192 LUFS
+	// integrated -27.5222 / -27.5222 LUFS
 	// loudness range 12.9361 / 12.9361 LU
 	// true peak equal: true
 	// integrated within 1e-9 LU: true
