@@ -10,7 +10,8 @@ import (
 )
 
 // SpecGroup is a programme group a spec declares ([[group]] in TOML):
-// which channels carry it and how to judge it.
+// which channels (or audio streams, stream = 2 with channels counted
+// within it) carry it and how to judge it.
 type SpecGroup struct {
 	measure.Group
 	// Spec names the spec this group is judged against instead of the
@@ -89,6 +90,13 @@ func (p *specParser) parseGroups(s *Spec, v any) {
 					continue
 				}
 				g.Channels = chans
+			case "stream", "streams":
+				streams, err := groupChannels(val)
+				if err != nil {
+					p.fail("group", "%s: %s: %v", at, key, strings.Replace(err.Error(), "channels", "stream", 1))
+					continue
+				}
+				g.Streams = streams
 			case "layout":
 				if !isStr {
 					p.fail("group", "%s: layout must be a string such as \"5.1\" or \"L,R\"", at)
@@ -114,15 +122,15 @@ func (p *specParser) parseGroups(s *Spec, v any) {
 				}
 				g.MeasureOnly = b
 			default:
-				p.fail("group", "%s: unknown key %q (known: name, channels, layout, spec, measure_only)", at, key)
+				p.fail("group", "%s: unknown key %q (known: name, stream, channels, layout, spec, measure_only)", at, key)
 			}
 		}
 		switch {
 		case g.Name == "":
 			p.fail("group", "%s has no name", at)
 			continue
-		case g.Channels == nil:
-			p.fail("group", "group %q has no channels (e.g. channels = \"1-6\")", g.Name)
+		case g.Channels == nil && g.Streams == nil:
+			p.fail("group", "group %q has no channels (e.g. channels = \"1-6\", or stream = 2)", g.Name)
 			continue
 		case slices.ContainsFunc(s.Groups, func(o SpecGroup) bool { return o.Name == g.Name }):
 			p.fail("group", "group %q is declared twice", g.Name)
@@ -197,6 +205,7 @@ func (p *specParser) parseRecord(s *Spec, v any) {
 type GroupResult struct {
 	Name        string `json:"name"`
 	Channels    []int  `json:"channels"`
+	Streams     []int  `json:"streams,omitempty"`
 	MeasureOnly bool   `json:"measure_only,omitempty"`
 	Result
 }
@@ -231,7 +240,7 @@ func EvaluateGroups(spec *Spec, m *measure.Measurement, specFor func(name string
 	var advice []string
 	for _, g := range m.Groups {
 		decl, _ := spec.group(g.Name)
-		gr := GroupResult{Name: g.Name, Channels: g.Channels, MeasureOnly: decl.MeasureOnly}
+		gr := GroupResult{Name: g.Name, Channels: g.Channels, Streams: g.Streams, MeasureOnly: decl.MeasureOnly}
 		gs := spec
 		if decl.Spec != "" && specFor != nil {
 			s, err := specFor(decl.Spec)

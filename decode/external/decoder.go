@@ -188,6 +188,19 @@ func (d *Decoder) describe(t *tools, pr *probeResult, audio, chosen []probeStrea
 		Frames:       -1,
 		SampleFormat: decode.Float,
 	}
+	first := 1
+	for i, s := range chosen {
+		n := i + 1
+		if selected > 0 {
+			n = selected
+		}
+		c := s.CodecName
+		if p := s.Profile; p != "" && p != "unknown" {
+			c += " " + p
+		}
+		d.info.Streams = append(d.info.Streams, decode.StreamInfo{Index: n, FirstChannel: first, Channels: s.Channels, Layout: streamLabels(t, s), Codec: c})
+		first += s.Channels
+	}
 	if allLossless {
 		d.info.BitsPerSample = bits
 		if !float {
