@@ -212,7 +212,9 @@ func groupsFor(opt Options, info decode.Info, layout []string) ([]Group, error) 
 				return nil, fmt.Errorf("group %q names channel %d but the file has %d channels", g.Name, c, info.Channels)
 			}
 		}
-		if err := g.Check(); err != nil {
+		resolved := g
+		resolved.Streams = nil // Channels are the file's now
+		if err := resolved.Check(); err != nil {
 			return nil, err
 		}
 		out = append(out, g)
