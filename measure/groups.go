@@ -53,12 +53,16 @@ const EachChannel = "each"
 
 // ParseChannels reads a channel list: 1-based numbers and ranges
 // separated by commas or spaces, e.g. "1-6", "7,8", "3".
-func ParseChannels(s string) ([]int, error) {
+func ParseChannels(s string) ([]int, error) { return parseNumbers(s, "channel") }
+
+// parseNumbers reads a list of 1-based numbers and ranges of the named
+// thing ("channel" or "stream").
+func parseNumbers(s, what string) ([]int, error) {
 	var out []int
 	seen := map[int]bool{}
 	fields := strings.FieldsFunc(s, func(r rune) bool { return r == ',' || r == ' ' })
 	if len(fields) == 0 {
-		return nil, fmt.Errorf("channels %q: give numbers from 1 or ranges like 1-6", s)
+		return nil, fmt.Errorf("%ss %q: give numbers from 1 or ranges like 1-6", what, s)
 	}
 	for _, f := range fields {
 		lo, hi, isRange := strings.Cut(f, "-")
@@ -70,17 +74,17 @@ func ParseChannels(s string) ([]int, error) {
 		}
 		switch {
 		case err1 != nil || err2 != nil:
-			return nil, fmt.Errorf("channels %q: %q is not a number or a range like 1-6", s, f)
+			return nil, fmt.Errorf("%ss %q: %q is not a number or a range like 1-6", what, s, f)
 		case a < 1 || b < 1:
-			return nil, fmt.Errorf("channels %q: channels are numbered from 1", s)
+			return nil, fmt.Errorf("%ss %q: %ss are numbered from 1", what, s, what)
 		case b < a:
-			return nil, fmt.Errorf("channels %q: range %q runs backwards", s, f)
+			return nil, fmt.Errorf("%ss %q: range %q runs backwards", what, s, f)
 		case b > 1024:
-			return nil, fmt.Errorf("channels %q: channel %d is beyond any file", s, b)
+			return nil, fmt.Errorf("%ss %q: %s %d is beyond any file", what, s, what, b)
 		}
 		for c := a; c <= b; c++ {
 			if seen[c] {
-				return nil, fmt.Errorf("channels %q: channel %d is listed twice", s, c)
+				return nil, fmt.Errorf("%ss %q: %s %d is listed twice", what, s, what, c)
 			}
 			seen[c] = true
 			out = append(out, c)
@@ -144,13 +148,7 @@ func ParseGroups(s string) (groups []Group, each bool, err error) {
 
 // ParseStreams reads a list of audio stream numbers: 1-based numbers and
 // ranges as in ParseChannels, e.g. "2", "1-2", "3,5".
-func ParseStreams(s string) ([]int, error) {
-	out, err := ParseChannels(s)
-	if err != nil {
-		return nil, fmt.Errorf("streams: %s", strings.TrimPrefix(err.Error(), "channels "))
-	}
-	return out, nil
-}
+func ParseStreams(s string) ([]int, error) { return parseNumbers(s, "stream") }
 
 // Check reports a group whose layout does not fit its channels, or that
 // counts channels within more than one stream.

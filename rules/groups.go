@@ -91,9 +91,9 @@ func (p *specParser) parseGroups(s *Spec, v any) {
 				}
 				g.Channels = chans
 			case "stream", "streams":
-				streams, err := groupChannels(val)
+				streams, err := groupStreams(val)
 				if err != nil {
-					p.fail("group", "%s: %s: %v", at, key, strings.Replace(err.Error(), "channels", "stream", 1))
+					p.fail("group", "%s: %v", at, err)
 					continue
 				}
 				g.Streams = streams
@@ -144,13 +144,20 @@ func (p *specParser) parseGroups(s *Spec, v any) {
 	}
 }
 
+// groupStreams reads stream = 2, stream = "1-2" or streams = [3, 4].
+func groupStreams(v any) ([]int, error) { return groupNumbers(v, "stream", measure.ParseStreams) }
+
 // groupChannels reads channels = "1-6", channels = [7, 8] or channels = 3.
-func groupChannels(v any) ([]int, error) {
+func groupChannels(v any) ([]int, error) { return groupNumbers(v, "channel", measure.ParseChannels) }
+
+// groupNumbers reads a string list, a number or a list of numbers and
+// strings of channels or streams with the given parser.
+func groupNumbers(v any, what string, parse func(string) ([]int, error)) ([]int, error) {
 	switch x := v.(type) {
 	case string:
-		return measure.ParseChannels(x)
+		return parse(x)
 	case int64:
-		return measure.ParseChannels(fmt.Sprint(x))
+		return parse(fmt.Sprint(x))
 	case []any:
 		var parts []string
 		for _, e := range x {
@@ -160,12 +167,12 @@ func groupChannels(v any) ([]int, error) {
 			case string:
 				parts = append(parts, n)
 			default:
-				return nil, fmt.Errorf("channels: %v is not a channel number or range", e)
+				return nil, fmt.Errorf("%ss: %v is not a %s number or range", what, e, what)
 			}
 		}
-		return measure.ParseChannels(strings.Join(parts, ","))
+		return parse(strings.Join(parts, ","))
 	}
-	return nil, fmt.Errorf("channels must be a string like \"1-6\" or a list of numbers, got %s", describeValue(v))
+	return nil, fmt.Errorf("%ss must be a number, a string like \"1-6\" or a list of numbers, got %s", what, describeValue(v))
 }
 
 // parseRecord reads the [record] table: job, client, operator, notes.
