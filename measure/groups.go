@@ -34,6 +34,8 @@ type Group struct {
 	// Layout labels the group's channels (e.g. 5.1: L R C LFE Ls Rs);
 	// nil means decode.DefaultLayout by the group's channel count.
 	Layout []string
+	// streamLayout is set when resolution took Layout from the stream.
+	streamLayout bool
 }
 
 // GroupMeasurement is one group's record: the figures of a Measurement
@@ -252,7 +254,7 @@ func resolveStreams(g Group, info decode.Info) (Group, error) {
 				chans = append(chans, s.FirstChannel+c)
 			}
 			if g.Layout == nil && len(g.Streams) == 1 && s.Layout != nil && len(s.Layout) == s.Channels {
-				g.Layout = append([]string(nil), s.Layout...)
+				g.Layout, g.streamLayout = append([]string(nil), s.Layout...), true
 			}
 			continue
 		}
@@ -332,8 +334,11 @@ func (p *programme) finish(file *Measurement, frames int64, rate int, silence fl
 		BitRateKbps: file.BitRateKbps, BitRateMode: file.BitRateMode,
 		DurationS: float64(frames) / float64(rate), Damaged: file.Damaged, Notes: []string{},
 	}
-	if p.group.Layout == nil {
+	switch {
+	case p.group.Layout == nil:
 		m.LayoutSource = "default"
+	case p.group.streamLayout:
+		m.LayoutSource = "file" // the stream's own, as the container declares it
 	}
 	r := p.meter.Result()
 	fillLoudness(m, r)

@@ -92,6 +92,16 @@ func TestStreamGroupsReadLikeSeparateFiles(t *testing.T) {
 					t.Errorf("%s: group %s: fold-down %+v, separate file %+v", container, g.Name, g.StereoDownmix, w.StereoDownmix)
 				}
 			}
+			// Without a group layout, a whole stream takes the stream's own
+			// where the container declares one (MOV does; Matroska's PCM
+			// tracks do not, so the layout goes by channel count).
+			wantSource := "group"
+			if !strings.Contains(spec, ":") {
+				wantSource = map[string]string{"mov": "file", "mkv": "default"}[container]
+			}
+			if m.Groups[0].LayoutSource != wantSource {
+				t.Errorf("%s %s: main's layout source %q, want %q", container, spec, m.Groups[0].LayoutSource, wantSource)
+			}
 			if !slices.Equal(m.Groups[1].Channels, []int{7, 8}) || !slices.Equal(m.Groups[1].Streams, []int{2}) ||
 				!slices.Equal(m.Groups[2].Channels, []int{8}) {
 				t.Errorf("%s: stereo group on channels %v (streams %v), right on %v", container, m.Groups[1].Channels, m.Groups[1].Streams, m.Groups[2].Channels)
