@@ -86,6 +86,29 @@ type Info struct {
 	// header declares that is neither a chunk nor a tag (see Undeclared);
 	// nil otherwise. ReadFrames delivers only the declared audio.
 	Undeclared *Undeclared
+	// Streams describes the separate audio streams whose channels
+	// ReadFrames delivers one after the other (an MXF or MOV delivery with
+	// 8 mono tracks, or a 5.1 track plus a stereo one), in that order; nil
+	// for formats that carry one stream. Programme groups name channels by
+	// stream through it (measure.Group.Streams).
+	Streams []StreamInfo
+}
+
+// StreamInfo is one audio stream of a container that carries several.
+type StreamInfo struct {
+	// Index is the stream's 1-based number among the file's audio
+	// streams (the number --stream takes).
+	Index int
+	// FirstChannel is the 1-based channel of the measurement that carries
+	// the stream's first channel.
+	FirstChannel int
+	// Channels is the stream's channel count.
+	Channels int
+	// Layout labels the stream's own channels, or nil when the container
+	// names no layout kweigh knows.
+	Layout []string
+	// Codec names the stream's coding, e.g. "pcm_s24le" or "aac LC".
+	Codec string
 }
 
 // Decoder streams the samples of one file.

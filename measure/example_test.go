@@ -60,3 +60,22 @@ func ExampleParseGroups() {
 	// main [1 2 3 4 5 6] [L R C LFE Ls Rs]
 	// stereo [7 8] [L R]
 }
+
+// Groups named by audio stream (for MXF, MOV and MP4 deliveries that
+// carry each programme as its own stream): streams 1 and 2 whole, and
+// channel 1 of stream 3. The streams become file channels when a file is
+// measured (decode.Info.Streams says where each stream's channels are).
+func ExampleParseGroups_streams() {
+	groups, _, err := measure.ParseGroups("main=s1:5.1,stereo=s2:stereo,dub=s3/1")
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, g := range groups {
+		fmt.Println(g.Name, "streams", g.Streams, "channels", g.Channels, g.Layout)
+	}
+	// Output:
+	// main streams [1] channels [] [L R C LFE Ls Rs]
+	// stereo streams [2] channels [] [L R]
+	// dub streams [3] channels [1] []
+}

@@ -132,10 +132,45 @@ func TestParseGroups(t *testing.T) {
 	}
 }
 
-// FuzzParseGroups: no input panics; accepted groups have channels from 1
-// and layouts that fit.
+// TestParseStreamGroups: the stream forms of the --groups syntax (sN,
+// sA-B, sA+B, sN/CHANNELS) and their errors, beside the channel forms.
+// Expected values: the syntax as ParseGroups documents it.
+func TestParseStreamGroups(t *testing.T) {
+	for _, c := range []struct {
+		in       string
+		streams  []int
+		channels []int
+		layout   int
+	}{
+		{"main=s1:5.1", []int{1}, nil, 6},
+		{"stereo=s1-2:stereo", []int{1, 2}, nil, 2},
+		{"pair=s3+5", []int{3, 5}, nil, 0},
+		{"lr=s2/1-2:stereo", []int{2}, []int{1, 2}, 2},
+		{"dx=s4/1+3", []int{4}, []int{1, 3}, 0},
+		{" ch = 7-8 ", nil, []int{7, 8}, 0},
+	} {
+		g, _, err := measure.ParseGroups(c.in)
+		if err != nil || len(g) != 1 || !slices.Equal(g[0].Streams, c.streams) || !slices.Equal(g[0].Channels, c.channels) || len(g[0].Layout) != c.layout {
+			t.Errorf("ParseGroups(%q) = %+v, %v", c.in, g, err)
+		}
+	}
+	g, _, err := measure.ParseGroups("main=s1:5.1,stereo=s2:stereo,me=9-10")
+	if err != nil || len(g) != 3 || g[2].Streams != nil {
+		t.Errorf("mixed: %+v %v", g, err)
+	}
+	for _, bad := range []string{"a=s", "a=s0", "a=sx", "a=s2-1", "a=s1+1", "a=s1-2/1", "a=s2/", "a=s2/0", "a=s2/1-2:5.1", "a=s/1"} {
+		if _, _, err := measure.ParseGroups(bad); err == nil {
+			t.Errorf("ParseGroups(%q) accepted", bad)
+		}
+	}
+}
+
+// FuzzParseGroups: no input panics; accepted groups have channels (or
+// streams) from 1, layouts that fit, and channels within a stream only
+// for one stream.
 func FuzzParseGroups(f *testing.F) {
-	for _, s := range []string{"main=1-6:5.1,stereo=7-8:stereo", "each", "a=1+3", "x=1-2:L,R", "=,", "a=9999999999999999999"} {
+	for _, s := range []string{"main=1-6:5.1,stereo=7-8:stereo", "each", "a=1+3", "x=1-2:L,R", "=,", "a=9999999999999999999",
+		"main=s1:5.1,stereo=s2:stereo", "a=s1-2", "b=s2/1+3:stereo", "c=s/", "d=s1-2/1"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
@@ -144,12 +179,13 @@ func FuzzParseGroups(f *testing.F) {
 			return
 		}
 		for _, g := range groups {
-			if len(g.Channels) == 0 || g.Layout != nil && len(g.Layout) != len(g.Channels) {
+			if g.Streams == nil && len(g.Channels) == 0 || g.Channels != nil && g.Layout != nil && len(g.Layout) != len(g.Channels) ||
+				len(g.Streams) > 1 && g.Channels != nil {
 				t.Fatalf("%q: %+v", s, g)
 			}
-			for _, c := range g.Channels {
+			for _, c := range append(slices.Clone(g.Channels), g.Streams...) {
 				if c < 1 {
-					t.Fatalf("%q: channel %d", s, c)
+					t.Fatalf("%q: channel or stream %d", s, c)
 				}
 			}
 		}

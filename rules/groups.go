@@ -10,7 +10,8 @@ import (
 )
 
 // SpecGroup is a programme group a spec declares ([[group]] in TOML):
-// which channels carry it and how to judge it.
+// which channels (or audio streams, stream = 2 with channels counted
+// within it) carry it and how to judge it.
 type SpecGroup struct {
 	measure.Group
 	// Spec names the spec this group is judged against instead of the
@@ -89,6 +90,13 @@ func (p *specParser) parseGroups(s *Spec, v any) {
 					continue
 				}
 				g.Channels = chans
+			case "stream", "streams":
+				streams, err := groupStreams(val)
+				if err != nil {
+					p.fail("group", "%s: %v", at, err)
+					continue
+				}
+				g.Streams = streams
 			case "layout":
 				if !isStr {
 					p.fail("group", "%s: layout must be a string such as \"5.1\" or \"L,R\"", at)
@@ -114,15 +122,15 @@ func (p *specParser) parseGroups(s *Spec, v any) {
 				}
 				g.MeasureOnly = b
 			default:
-				p.fail("group", "%s: unknown key %q (known: name, channels, layout, spec, measure_only)", at, key)
+				p.fail("group", "%s: unknown key %q (known: name, stream, channels, layout, spec, measure_only)", at, key)
 			}
 		}
 		switch {
 		case g.Name == "":
 			p.fail("group", "%s has no name", at)
 			continue
-		case g.Channels == nil:
-			p.fail("group", "group %q has no channels (e.g. channels = \"1-6\")", g.Name)
+		case g.Channels == nil && g.Streams == nil:
+			p.fail("group", "group %q has no channels (e.g. channels = \"1-6\", or stream = 2)", g.Name)
 			continue
 		case slices.ContainsFunc(s.Groups, func(o SpecGroup) bool { return o.Name == g.Name }):
 			p.fail("group", "group %q is declared twice", g.Name)
@@ -136,13 +144,20 @@ func (p *specParser) parseGroups(s *Spec, v any) {
 	}
 }
 
+// groupStreams reads stream = 2, stream = "1-2" or streams = [3, 4].
+func groupStreams(v any) ([]int, error) { return groupNumbers(v, "stream", measure.ParseStreams) }
+
 // groupChannels reads channels = "1-6", channels = [7, 8] or channels = 3.
-func groupChannels(v any) ([]int, error) {
+func groupChannels(v any) ([]int, error) { return groupNumbers(v, "channel", measure.ParseChannels) }
+
+// groupNumbers reads a string list, a number or a list of numbers and
+// strings of channels or streams with the given parser.
+func groupNumbers(v any, what string, parse func(string) ([]int, error)) ([]int, error) {
 	switch x := v.(type) {
 	case string:
-		return measure.ParseChannels(x)
+		return parse(x)
 	case int64:
-		return measure.ParseChannels(fmt.Sprint(x))
+		return parse(fmt.Sprint(x))
 	case []any:
 		var parts []string
 		for _, e := range x {
@@ -152,12 +167,12 @@ func groupChannels(v any) ([]int, error) {
 			case string:
 				parts = append(parts, n)
 			default:
-				return nil, fmt.Errorf("channels: %v is not a channel number or range", e)
+				return nil, fmt.Errorf("%ss: %v is not a %s number or range", what, e, what)
 			}
 		}
-		return measure.ParseChannels(strings.Join(parts, ","))
+		return parse(strings.Join(parts, ","))
 	}
-	return nil, fmt.Errorf("channels must be a string like \"1-6\" or a list of numbers, got %s", describeValue(v))
+	return nil, fmt.Errorf("%ss must be a number, a string like \"1-6\" or a list of numbers, got %s", what, describeValue(v))
 }
 
 // parseRecord reads the [record] table: job, client, operator, notes.
@@ -197,6 +212,7 @@ func (p *specParser) parseRecord(s *Spec, v any) {
 type GroupResult struct {
 	Name        string `json:"name"`
 	Channels    []int  `json:"channels"`
+	Streams     []int  `json:"streams,omitempty"`
 	MeasureOnly bool   `json:"measure_only,omitempty"`
 	Result
 }
@@ -231,7 +247,7 @@ func EvaluateGroups(spec *Spec, m *measure.Measurement, specFor func(name string
 	var advice []string
 	for _, g := range m.Groups {
 		decl, _ := spec.group(g.Name)
-		gr := GroupResult{Name: g.Name, Channels: g.Channels, MeasureOnly: decl.MeasureOnly}
+		gr := GroupResult{Name: g.Name, Channels: g.Channels, Streams: g.Streams, MeasureOnly: decl.MeasureOnly}
 		gs := spec
 		if decl.Spec != "" && specFor != nil {
 			s, err := specFor(decl.Spec)

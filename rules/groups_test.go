@@ -51,7 +51,25 @@ func TestSpecGroups(t *testing.T) {
 	if c := s.Clone(); len(c.Groups) != 3 || &c.Groups[0].Channels[0] == &s.Groups[0].Channels[0] {
 		t.Error("Clone shares the groups")
 	}
+	for _, c := range []struct {
+		toml              string
+		streams, channels []int
+	}{
+		{"stream = 2", []int{2}, nil},
+		{"stream = \"1-2\"", []int{1, 2}, nil},
+		{"streams = [3, 5]", []int{3, 5}, nil},
+		{"stream = 2\nchannels = \"1-2\"", []int{2}, []int{1, 2}},
+	} {
+		s, err := Parse("kweigh.toml", []byte("extends = \"ebu-r128\"\n[[group]]\nname = \"a\"\n"+c.toml))
+		if err != nil || len(s.Groups) != 1 || !slices.Equal(s.Groups[0].Streams, c.streams) || !slices.Equal(s.Groups[0].Channels, c.channels) {
+			t.Errorf("%q: %+v %v", c.toml, s, err)
+		}
+	}
 	for _, bad := range []struct{ toml, want string }{
+		{"[[group]]\nname = \"a\"\nstream = 0", "numbered from 1"},
+		{"[[group]]\nname = \"a\"\nstream = \"x\"", "stream"},
+		{"[[group]]\nname = \"a\"\nstream = \"1-2\"\nchannels = \"1\"", "exactly one stream"},
+		{"[[group]]\nname = \"a\"\nstream = 1\nchannels = \"1-2\"\nlayout = \"5.1\"", "its layout"},
 		{"[[group]]\nchannels = \"1-2\"", "has no name"},
 		{"[[group]]\nname = \"a\"", "has no channels"},
 		{"[[group]]\nname = \"a\"\nchannels = \"2-1\"", "runs backwards"},

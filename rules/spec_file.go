@@ -58,7 +58,8 @@ func LoadFile(path string) (*Spec, error) {
 //	[bext]      required, loudness_tolerance_lu, true_peak_tolerance_db,
 //	            lra_tolerance_lu, mismatch
 //	[record]    job, client, operator, notes (the QC record's header)
-//	[[group]]   name, channels ("1-6" or [7, 8]), layout, spec, measure_only
+//	[[group]]   name, channels ("1-6" or [7, 8]), stream (2 or "1-2"; then
+//	            channels count within it), layout, spec, measure_only
 //	            (one table per programme group; see SpecGroup)
 //
 // Every key overrides the same limit of the base spec. Setting target_lufs

@@ -24,7 +24,7 @@ func qcFlags() []cli.Flag {
 	return []cli.Flag{
 		&cli.StringFlag{Name: "start-timecode", Usage: "timecode of each file's first sample, `HH:MM:SS:FF` (default: the file's bext time reference; without one, times count from zero)"},
 		&cli.StringFlag{Name: "fps", Usage: "timecode frame `RATE`: 23.976, 24, 25, 29.97df, 29.97, 30, 50, 59.94df, 59.94, 60 (default: the file's iXML, else 25)"},
-		&cli.StringFlag{Name: "groups", Usage: "programme groups in each file, measured and judged on their own: `SPEC` like 'main=1-6:5.1,stereo=7-8:stereo', or 'each' for every channel alone"},
+		&cli.StringFlag{Name: "groups", Usage: "programme groups in each file, measured and judged on their own: `SPEC` like 'main=1-6:5.1,stereo=7-8:stereo', by audio stream 'main=s1:5.1,stereo=s2:stereo' ('s2/1-2': channels within stream 2), or 'each' for every channel alone"},
 		&cli.StringFlag{Name: "markers", Usage: "also write every event (where a limit breaks) as a CSV marker list to `FILE`"},
 		&cli.StringFlag{Name: "job", Usage: "job reference for the QC record (HTML report header)"},
 		&cli.StringFlag{Name: "client", Usage: "client for the QC record"},

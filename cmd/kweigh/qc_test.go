@@ -3,7 +3,9 @@ package main
 import (
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -97,5 +99,54 @@ func TestQCOptions(t *testing.T) {
 		if code != exitTrouble || !strings.Contains(errOut, bad.want) {
 			t.Errorf("%s %s: exit %d, %q", bad.flag, bad.value, code, errOut)
 		}
+	}
+}
+
+// TestGroupsByStream: --groups naming audio streams on a MOV delivery with
+// a 5.1 stream and a stereo stream: the JSON shows each group's file
+// channels and streams; a stream the file lacks is that file's error
+// naming the stream, and a malformed stream list a usage error.
+func TestGroupsByStream(t *testing.T) {
+	ffmpeg, err := exec.LookPath("ffmpeg")
+	if err != nil {
+		t.Fatalf("this test needs ffmpeg (run bash .ci/setup): %v", err)
+	}
+	dir := t.TempDir()
+	a, b := audiotest.DBFS(-26), audiotest.DBFS(-20)
+	six := writeTestFile(t, dir, "six.wav", audiotest.PCMWAV(48000, 6, 24, audiotest.Sine(48000, 4, 997, a, a, a, 0, a, a)))
+	two := writeTestFile(t, dir, "two.wav", audiotest.PCMWAV(48000, 2, 24, audiotest.Sine(48000, 4, 997, b, b)))
+	mov := filepath.Join(dir, "delivery.mov")
+	if out, err := exec.Command(ffmpeg, "-nostdin", "-v", "error", "-i", six, "-i", two, "-map", "0:a", "-map", "1:a", "-c:a", "pcm_s24le", mov).CombinedOutput(); err != nil {
+		t.Fatalf("ffmpeg: %v\n%s", err, out)
+	}
+	code, out, errOut := kweigh(t, "measure", "--format", "json", "--groups", "main=s1:5.1,stereo=s2", mov)
+	if code != 0 {
+		t.Fatalf("exit %d: %s\n%s", code, errOut, out)
+	}
+	var doc struct {
+		Files []struct {
+			Channels int `json:"channels"`
+			Groups   []struct {
+				Name     string   `json:"name"`
+				Channels []int    `json:"channels"`
+				Streams  []int    `json:"streams"`
+				Layout   []string `json:"channel_layout"`
+			} `json:"groups"`
+		} `json:"files"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil || len(doc.Files) != 1 || len(doc.Files[0].Groups) != 2 {
+		t.Fatalf("%v: %s", err, out)
+	}
+	g := doc.Files[0].Groups
+	if fmt.Sprint(g[0].Channels, g[0].Streams, g[1].Channels, g[1].Streams, g[1].Layout) != "[1 2 3 4 5 6] [1] [7 8] [2] [L R]" {
+		t.Errorf("groups %+v", g)
+	}
+	code, out, errOut = kweigh(t, "measure", "--format", "json", "--groups", "dub=s3", mov)
+	if code == 0 || !strings.Contains(out+errOut, "names audio stream 3 but the file has 2 audio stream(s)") {
+		t.Errorf("missing stream: exit %d, %s %s", code, out, errOut)
+	}
+	code, _, errOut = kweigh(t, "measure", "--groups", "dub=s0", mov)
+	if code != exitTrouble || !strings.Contains(errOut, "streams are numbered from 1") {
+		t.Errorf("s0: exit %d, %q", code, errOut)
 	}
 }

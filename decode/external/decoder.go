@@ -188,6 +188,19 @@ func (d *Decoder) describe(t *tools, pr *probeResult, audio, chosen []probeStrea
 		Frames:       -1,
 		SampleFormat: decode.Float,
 	}
+	first := 1
+	for i, s := range chosen {
+		n := i + 1
+		if selected > 0 {
+			n = selected
+		}
+		c := s.CodecName
+		if p := s.Profile; p != "" && p != "unknown" {
+			c += " " + p
+		}
+		d.info.Streams = append(d.info.Streams, decode.StreamInfo{Index: n, FirstChannel: first, Channels: s.Channels, Layout: streamLabels(t, s), Codec: c})
+		first += s.Channels
+	}
 	if allLossless {
 		d.info.BitsPerSample = bits
 		if !float {
@@ -211,7 +224,7 @@ func (d *Decoder) describe(t *tools, pr *probeResult, audio, chosen []probeStrea
 			per[i] = fmt.Sprintf("%d×%d", i+1, s.Channels)
 		}
 		d.notes = append(d.notes, fmt.Sprintf(
-			"%d audio streams measured together as the %d channels of one programme, in stream order (stream×channels: %s); choose one with --stream N",
+			"%d audio streams measured together as the %d channels of one programme, in stream order (stream×channels: %s); choose one with --stream N, or measure them as programmes of their own with groups named by stream (--groups 'main=s1,stereo=s2')",
 			len(chosen), total, strings.Join(per, " ")))
 	}
 	tc := pr.Format.Tags["timecode"]
