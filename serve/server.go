@@ -15,7 +15,6 @@ import (
 	"sync"
 	"sync/atomic"
 	"time"
-
 )
 
 // Defaults for Config fields left zero.
