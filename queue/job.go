@@ -102,6 +102,9 @@ type Outcome struct {
 // newOutcome fills an outcome from a record's result and series.
 func newOutcome(batch string, index int, r *rules.Result, skipped bool, spec SpecRef) (Outcome, error) {
 	o := Outcome{Batch: batch, Index: index, Skipped: skipped, Spec: spec}
+	if skipped && r == nil {
+		return o, nil
+	}
 	if r == nil || r.Measurement == nil {
 		return o, fmt.Errorf("job %s: no result to send", msgID(batch, index))
 	}
@@ -121,8 +124,9 @@ func newOutcome(batch string, index int, r *rules.Result, skipped bool, spec Spe
 }
 
 func encodeOutcome(o Outcome) ([]byte, error) {
-	scrubbed := reflect.ValueOf(o.Result)
-	nullNonFinite(scrubbed)
+	if o.Result != nil {
+		nullNonFinite(reflect.ValueOf(o.Result))
+	}
 	data, err := json.Marshal(o)
 	if err != nil {
 		return nil, fmt.Errorf("result of job %s: %w", msgID(o.Batch, o.Index), err)
@@ -174,6 +178,9 @@ func decodeOutcome(data []byte) (Outcome, *loudness.Series, error) {
 	var o Outcome
 	if err := json.Unmarshal(data, &o); err != nil {
 		return o, nil, fmt.Errorf("result message: %w", err)
+	}
+	if o.Skipped && o.Result == nil {
+		return o, nil, nil
 	}
 	if o.Result == nil || o.Result.Measurement == nil {
 		return o, nil, fmt.Errorf("result message for job %s: no result", msgID(o.Batch, o.Index))

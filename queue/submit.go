@@ -16,6 +16,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/engine"
+	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/rules"
 )
 
@@ -239,9 +240,13 @@ func (q *Queue) Wait(ctx context.Context, batch string, n int, emit func(Result)
 			spec, _ = o.Spec.Resolve()
 			specs[o.Spec] = spec
 		}
-		emit(Result{Index: o.Index, Worker: o.Worker, Deliveries: o.Deliveries, Record: engine.Record{
-			Measurement: o.Result.Measurement, Result: o.Result, Spec: spec, Skipped: o.Skipped,
-		}})
+		rec := engine.Record{Result: o.Result, Spec: spec, Skipped: o.Skipped}
+		if o.Result != nil {
+			rec.Measurement = o.Result.Measurement
+		} else {
+			rec.Measurement = &measure.Measurement{Notes: []string{}}
+		}
+		emit(Result{Index: o.Index, Worker: o.Worker, Deliveries: o.Deliveries, Record: rec})
 	}
 	return nil
 }
@@ -249,3 +254,113 @@ func (q *Queue) Wait(ctx context.Context, batch string, n int, emit func(Result)
 // OpenAudio opens a file for Upload the way kweigh opens audio: regular
 // files only, without blocking on a FIFO.
 func OpenAudio(path string) (*os.File, error) { return decode.OpenRegular(path) }
+
+// SubmitOptions say how a batch's files are to be judged.
+type SubmitOptions struct {
+	// Spec judges every file, and SpecRef is how it travels (its built-in
+	// id or its TOML text); with Spec nil each file's folder spec is found
+	// with Specs (which must then be set) and its text travels.
+	Spec    *rules.Spec
+	SpecRef SpecRef
+	Specs   *engine.Specs
+	// Measure options carried by every job.
+	Layout     []string
+	KeepSeries bool
+	SkipMD5    bool
+}
+
+// Submitted counts what a submission did.
+type Submitted struct {
+	// Jobs were queued for workers; Local records were made by the
+	// submitter itself (no spec, a broken spec, an unreadable file) and
+	// put straight into the results.
+	Jobs, Local int
+	// Sent uploads; Present files whose audio was already in the store.
+	Sent, Present int
+}
+
+// Submit uploads the targets' audio and queues one job per target, in
+// order, with message ids batch.index; a target that needs no worker gets
+// its record from engine at once, as a local check would, and that record
+// goes into the results. Errors are about the queue, never about a file.
+func (q *Queue) Submit(ctx context.Context, batch string, targets []engine.Target, opt SubmitOptions) (Submitted, error) {
+	var s Submitted
+	texts := map[string]string{}
+	local := func(i int, t engine.Target) error {
+		eo := engine.Options{Spec: opt.Spec, Specs: opt.Specs}
+		eo.Measure.Layout, eo.Measure.KeepSeries, eo.Measure.Decode.SkipMD5 = opt.Layout, opt.KeepSeries, opt.SkipMD5
+		s.Local++
+		return q.PublishRecord(ctx, batch, i, engine.JudgeTarget(ctx, t, eo), SpecRef{})
+	}
+	for i, t := range targets {
+		if err := ctx.Err(); err != nil {
+			return s, err
+		}
+		ref := opt.SpecRef
+		if t.Err != nil {
+			if err := local(i, t); err != nil {
+				return s, err
+			}
+			continue
+		}
+		if opt.Spec == nil {
+			_, file, err := opt.Specs.Find(t.Path)
+			if err == nil {
+				text, ok := texts[file]
+				if !ok {
+					text, err = readSpecText(file)
+					texts[file] = text
+				}
+				ref = SpecRef{File: file, TOML: text}
+			}
+			if err != nil {
+				if err := local(i, t); err != nil {
+					return s, err
+				}
+				continue
+			}
+		}
+		f, err := OpenAudio(t.Path)
+		if err != nil {
+			if err := local(i, t); err != nil {
+				return s, err
+			}
+			continue
+		}
+		object, size, sent, err := q.Upload(ctx, t.Path, f)
+		f.Close()
+		if err != nil {
+			return s, err
+		}
+		if sent {
+			s.Sent++
+		} else {
+			s.Present++
+		}
+		j := Job{Batch: batch, Index: i, Name: t.Path, Object: object, Size: size, Explicit: t.Explicit, Spec: ref,
+			Layout: opt.Layout, KeepSeries: opt.KeepSeries, SkipMD5: opt.SkipMD5}
+		if err := q.Publish(ctx, j); err != nil {
+			return s, err
+		}
+		s.Jobs++
+	}
+	return s, nil
+}
+
+// readSpecText reads a spec file's text as engine does: regular files
+// only, bounded.
+func readSpecText(path string) (string, error) {
+	f, err := decode.OpenRegular(path)
+	if err != nil {
+		return "", fmt.Errorf("spec %w", err)
+	}
+	defer f.Close()
+	data, err := io.ReadAll(io.LimitReader(f, engine.MaxSpecFileBytes+1))
+	if err != nil {
+		return "", fmt.Errorf("spec %s: %w", path, err)
+	}
+	if len(data) > engine.MaxSpecFileBytes {
+		return "", fmt.Errorf("spec %s: larger than %d KiB: not a spec file", path, engine.MaxSpecFileBytes>>10)
+	}
+	return string(data), nil
+}

@@ -116,9 +116,10 @@ func (q *Queue) Work(ctx context.Context, cfg Config) error {
 		go func() {
 			defer wg.Done()
 			for ctx.Err() == nil {
-				batch, err := cons.Fetch(1, jetstream.FetchMaxWait(time.Second), jetstream.FetchContext(ctx))
+				batch, err := cons.Fetch(1, jetstream.FetchMaxWait(time.Second))
 				if err != nil {
 					if ctx.Err() == nil {
+						logf("fetching jobs: %v", err)
 						time.Sleep(250 * time.Millisecond)
 					}
 					continue
@@ -220,7 +221,11 @@ func (q *Queue) finish(ctx context.Context, cfg Config, msg jetstream.Msg, job J
 		// the same message id, which is stored once.
 		logf("%s: ack not confirmed: %v", job.Name, err)
 	}
-	logf("%s: %s", job.Name, r.Verdict)
+	if skipped {
+		logf("%s: not audio, skipped", job.Name)
+	} else {
+		logf("%s: %s", job.Name, r.Verdict)
+	}
 }
 
 // judge fetches the job's audio and judges it; every problem ends up in the
