@@ -51,7 +51,7 @@ type Job struct {
 	Size int64 `json:"size"`
 	// Explicit is true when the file was named rather than found in a
 	// folder: a file that is not audio is then an error, not a skip.
-	Explicit bool   `json:"explicit"`
+	Explicit bool    `json:"explicit"`
 	Spec     SpecRef `json:"spec"`
 	// Layout, KeepSeries and SkipMD5 are the measurement options of the
 	// submitting command.

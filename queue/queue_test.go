@@ -202,3 +202,115 @@ func sameSeries(a, b *loudness.Series) bool {
 	return a.Step == b.Step && same(a.Momentary, b.Momentary) && same(a.ShortTerm, b.ShortTerm) &&
 		same(a.TruePeak, b.TruePeak) && same(a.SamplePeak, b.SamplePeak) && reflect.DeepEqual(a.ShortTermLevels, b.ShortTermLevels)
 }
+
+// oneFile submits one generated file of the given length as a batch.
+func oneFile(t *testing.T, q *queue.Queue, seconds int) (string, []engine.Target) {
+	t.Helper()
+	dir := t.TempDir()
+	p := filepath.Join(dir, "gullwing-ep9.wav")
+	a := audiotest.DBFS(-23)
+	if err := os.WriteFile(p, audiotest.PCMWAV(48000, 2, 16, audiotest.Sine(48000, float64(seconds), 997, a, a)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	spec, err := engine.LoadSpec("ebu-r128")
+	if err != nil {
+		t.Fatal(err)
+	}
+	targets := []engine.Target{{Path: p, Root: p, Explicit: true}}
+	batch := queue.NewBatch()
+	if _, err := q.Submit(context.Background(), batch, targets, queue.SubmitOptions{Spec: spec, SpecRef: queue.SpecRef{Builtin: "ebu-r128"}}); err != nil {
+		t.Fatal(err)
+	}
+	return batch, targets
+}
+
+// TestStallingWorkerKeepsItsJobByHeartbeats: a worker that takes four ack
+// waits over a job but sends heartbeats keeps it (one delivery, its own
+// result); one that sends none loses it to another worker after the ack
+// wait, and the late result of the first is not taken twice.
+func TestStallingWorkerKeepsItsJobByHeartbeats(t *testing.T) {
+	srv := natstest.Start(t, t.TempDir())
+	const ackWait = time.Second
+	stall := func(context.Context, queue.Job) { time.Sleep(4 * ackWait) }
+	for _, tc := range []struct {
+		prefix      string
+		noHeartbeat bool
+		wantWorker  string
+		wantDeliv   int
+	}{
+		{"BEAT", false, "staller", 1},
+		{"NOBEAT", true, "helper", 2},
+	} {
+		t.Run(tc.prefix, func(t *testing.T) {
+			q := connect(t, srv.URL, tc.prefix)
+			batch, _ := oneFile(t, q, 2)
+			// The staller starts alone, so it takes the job.
+			startWorkers(t, srv.URL, tc.prefix, 1, func(int) queue.Config {
+				return queue.Config{Name: "staller", AckWait: ackWait, BeforeJudge: stall, NoHeartbeat: tc.noHeartbeat}
+			})
+			time.Sleep(ackWait / 2)
+			startWorkers(t, srv.URL, tc.prefix, 1, func(int) queue.Config {
+				return queue.Config{Name: "helper", AckWait: ackWait}
+			})
+			got := collect(t, q, batch, 1, 30*time.Second)[0]
+			if got.Worker != tc.wantWorker || got.Deliveries != tc.wantDeliv {
+				t.Errorf("judged by %s after %d deliveries, want %s after %d", got.Worker, got.Deliveries, tc.wantWorker, tc.wantDeliv)
+			}
+			if v := got.Record.Result.Verdict; v == "error" {
+				t.Errorf("verdict %s: %s", v, got.Record.Measurement.Error)
+			}
+			if tc.noHeartbeat {
+				// Let the staller finish and publish its late result:
+				// collecting again still yields one result.
+				time.Sleep(4 * ackWait)
+				collect(t, q, batch, 1, 10*time.Second)
+			}
+		})
+	}
+}
+
+// TestServerRestartMidBatch: the server (file storage) is restarted while
+// two workers are judging a batch; the batch completes with every result
+// once.
+func TestServerRestartMidBatch(t *testing.T) {
+	srv := natstest.Start(t, t.TempDir())
+	const prefix = "RESTART"
+	q := connect(t, srv.URL, prefix)
+	dir := t.TempDir()
+	for i := 0; i < 12; i++ {
+		a := audiotest.DBFS(-20 - float64(i))
+		p := filepath.Join(dir, "saltmarsh-hour-"+string(rune('a'+i))+".wav")
+		if err := os.WriteFile(p, audiotest.PCMWAV(48000, 2, 16, audiotest.Sine(48000, 2, 997, a, a)), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	targets, err := engine.Collect([]string{dir})
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec, _ := engine.LoadSpec("ebu-r128")
+	batch := queue.NewBatch()
+	if _, err := q.Submit(context.Background(), batch, targets, queue.SubmitOptions{Spec: spec, SpecRef: queue.SpecRef{Builtin: "ebu-r128"}}); err != nil {
+		t.Fatal(err)
+	}
+	var judged sync.WaitGroup
+	judged.Add(3)
+	var once sync.Map
+	startWorkers(t, srv.URL, prefix, 2, func(i int) queue.Config {
+		return queue.Config{Name: name(i), AckWait: 2 * time.Second, BeforeJudge: func(_ context.Context, j queue.Job) {
+			if _, dup := once.LoadOrStore(j.Index, true); !dup && j.Index < 3 {
+				judged.Done()
+			}
+			time.Sleep(100 * time.Millisecond)
+		}}
+	})
+	judged.Wait()
+	srv.Restart(500 * time.Millisecond)
+	got := collect(t, q, batch, len(targets), 60*time.Second)
+	for i, tg := range targets {
+		r := got[i].Record
+		if r.Result == nil || r.Result.Verdict == "error" || r.Measurement.Path != tg.Path {
+			t.Errorf("%s: %+v", tg.Path, r.Result)
+		}
+	}
+}
