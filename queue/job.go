@@ -199,3 +199,16 @@ func decodeOutcome(data []byte) (Outcome, *loudness.Series, error) {
 	}
 	return o, series, nil
 }
+
+// NamedSpec is how the spec a user named (a built-in id or a TOML file)
+// travels: the id, or the file's text.
+func NamedSpec(name string) (SpecRef, error) {
+	if _, err := rules.Lookup(name); err == nil {
+		return SpecRef{Builtin: name}, nil
+	}
+	text, err := readSpecText(name)
+	if err != nil {
+		return SpecRef{}, err
+	}
+	return SpecRef{File: name, TOML: text}, nil
+}

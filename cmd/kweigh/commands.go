@@ -15,6 +15,8 @@ const shortUsage = `usage: kweigh COMMAND [options] FILE|DIR|GLOB...
   check     judge files against a delivery spec (the main job)
   measure   measure loudness, loudness range and true peak, no judgement
   specs     list, show or validate delivery specs
+  worker    judge files from a NATS JetStream queue (check --nats hands them out)
+  results   collect a queued batch: kweigh results --nats URL BATCH
   version   print the version
   help      help on a command: kweigh help check
 
