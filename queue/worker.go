@@ -160,6 +160,7 @@ func (q *Queue) handle(ctx, jobCtx context.Context, cfg Config, msg jetstream.Ms
 		q.finish(jobCtx, cfg, msg, job, rec.Result, false, deliveries, logf)
 		return
 	}
+	logf("%s: judging (delivery %d)", job.Name, deliveries)
 	// Heartbeats keep the job while it runs.
 	stopBeat := make(chan struct{})
 	beatDone := make(chan struct{})

@@ -13,10 +13,15 @@ import (
 	"github.com/kweigh/kweigh/queue"
 )
 
-// crashOnEnv names a file (by base name) on which a worker process exits
-// at once, as if it had crashed, when it is about to judge it. It is test
-// support only: the queue's tests use it to make a poison file.
-const crashOnEnv = "KWEIGH_TEST_CRASH_ON"
+// Test support only (the queue's tests of the real binary use them):
+// crashOnEnv names a file (by base name) on which a worker process exits at
+// once, as if it had crashed, when it is about to judge it (a poison file);
+// stallOnEnv names one on which it stalls for a minute, or until it is told
+// to stop, before judging it (a job to kill a worker in the middle of).
+const (
+	crashOnEnv = "KWEIGH_TEST_CRASH_ON"
+	stallOnEnv = "KWEIGH_TEST_STALL_ON"
+)
 
 func workerCommand() *cli.Command {
 	flags := append(queueFlags(true),
@@ -52,11 +57,18 @@ func workerCommand() *cli.Command {
 			if cfg.Jobs < 1 || cfg.MaxDeliveries < 1 || cfg.AckWait < 100*time.Millisecond || cfg.Drain <= 0 {
 				return usagef("--jobs and --max-deliveries must be at least 1, --ack-wait at least 100ms and --drain positive")
 			}
-			if name := os.Getenv(crashOnEnv); name != "" {
-				cfg.BeforeJudge = func(_ context.Context, j queue.Job) {
-					if filepath.Base(j.Name) == name {
-						fmt.Fprintf(cmd.Root().ErrWriter, "kweigh worker: %s=%s: crashing on purpose (test support)\n", crashOnEnv, name)
+			if crash, stall := os.Getenv(crashOnEnv), os.Getenv(stallOnEnv); crash != "" || stall != "" {
+				cfg.BeforeJudge = func(ctx context.Context, j queue.Job) {
+					switch filepath.Base(j.Name) {
+					case crash:
+						fmt.Fprintf(cmd.Root().ErrWriter, "kweigh worker: %s=%s: crashing on purpose (test support)\n", crashOnEnv, crash)
 						os.Exit(3)
+					case stall:
+						fmt.Fprintf(cmd.Root().ErrWriter, "kweigh worker: %s=%s: stalling on purpose (test support)\n", stallOnEnv, stall)
+						select {
+						case <-ctx.Done():
+						case <-time.After(time.Minute):
+						}
 					}
 				}
 			}

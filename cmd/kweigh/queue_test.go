@@ -1,0 +1,222 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"sort"
+	"strings"
+	"sync"
+	"syscall"
+	"testing"
+	"time"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
+	"github.com/kweigh/kweigh/internal/natstest"
+)
+
+// lockedBuffer collects a process's stderr while the test reads it.
+type lockedBuffer struct {
+	mu  sync.Mutex
+	buf bytes.Buffer
+}
+
+func (b *lockedBuffer) Write(p []byte) (int, error) {
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	return b.buf.Write(p)
+}
+
+func (b *lockedBuffer) String() string {
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	return b.buf.String()
+}
+
+// worker is a real kweigh worker process.
+type worker struct {
+	cmd *exec.Cmd
+	log *lockedBuffer
+}
+
+// startWorker runs the binary as a worker with short timings and extra
+// environment (the test hooks).
+func startWorker(t *testing.T, url, prefix, name string, env ...string) *worker {
+	t.Helper()
+	w := &worker{log: &lockedBuffer{}}
+	w.cmd = exec.Command(kweighBinary(t), "worker", "--nats", url, "--queue-prefix", prefix, "--name", name,
+		"--jobs", "1", "--ack-wait", "1s", "--max-deliveries", "2", "--drain", "500ms")
+	w.cmd.Env = append(os.Environ(), env...)
+	w.cmd.Stderr = w.log
+	if err := w.cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() {
+		if w.cmd.ProcessState == nil {
+			w.cmd.Process.Kill()
+			w.cmd.Wait()
+		}
+	})
+	return w
+}
+
+// waitFor waits until the worker's log holds text.
+func (w *worker) waitFor(t *testing.T, text string, limit time.Duration) {
+	t.Helper()
+	deadline := time.Now().Add(limit)
+	for !strings.Contains(w.log.String(), text) {
+		if time.Now().After(deadline) {
+			t.Fatalf("worker log has no %q after %v:\n%s", text, limit, w.log.String())
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+}
+
+// queueDelivery writes three short files for an invented outlet.
+func queueDelivery(t *testing.T, names ...string) string {
+	t.Helper()
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "kweigh.toml"), []byte("name = \"marram-fm\"\nextends = \"ebu-r128\"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for i, n := range names {
+		a := audiotest.DBFS(-22 - float64(i))
+		if err := os.WriteFile(filepath.Join(dir, n), audiotest.PCMWAV(48000, 2, 16, audiotest.Sine(48000, 2, 997, a, 0.9*a)), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return dir
+}
+
+// checkLines runs kweigh check (locally, or with the queue arguments) with
+// JSONL output and returns its records sorted, without the elapsed time.
+func checkLines(t *testing.T, dir string, queueArgs ...string) ([]string, int, string) {
+	t.Helper()
+	args := append([]string{"check", "--format", "jsonl"}, queueArgs...)
+	cmd := exec.Command(kweighBinary(t), append(args, dir)...)
+	var stdout, stderr bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &stdout, &stderr
+	done := make(chan error, 1)
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	go func() { done <- cmd.Wait() }()
+	select {
+	case <-done:
+	case <-time.After(60 * time.Second):
+		cmd.Process.Kill()
+		<-done
+		t.Fatalf("kweigh check %v did not finish:\n%s", queueArgs, stderr.String())
+	}
+	var lines []string
+	for _, l := range strings.Split(strings.TrimSpace(stdout.String()), "\n") {
+		if strings.Contains(l, `"path"`) {
+			lines = append(lines, l)
+		}
+	}
+	sort.Strings(lines)
+	return lines, cmd.ProcessState.ExitCode(), stderr.String()
+}
+
+// TestQueueWorkerKilledMidJob: a worker process killed with SIGKILL while
+// it holds a job loses it; after the ack wait another worker judges it, and
+// check --nats prints every file once, as a local check does.
+func TestQueueWorkerKilledMidJob(t *testing.T) {
+	srv := natstest.Start(t, t.TempDir())
+	dir := queueDelivery(t, "dune-report-1.wav", "dune-report-2.wav", "dune-report-3.wav")
+	want, wantCode, _ := checkLines(t, dir)
+	victim := startWorker(t, srv.URL, "KILLED", "victim", stallOnEnv+"=dune-report-2.wav")
+	type outcome struct {
+		lines  []string
+		code   int
+		stderr string
+	}
+	res := make(chan outcome, 1)
+	go func() {
+		l, c, e := checkLines(t, dir, "--nats", srv.URL, "--queue-prefix", "KILLED")
+		res <- outcome{l, c, e}
+	}()
+	victim.waitFor(t, "dune-report-2.wav: judging", 30*time.Second)
+	if err := victim.cmd.Process.Signal(syscall.SIGKILL); err != nil {
+		t.Fatal(err)
+	}
+	victim.cmd.Wait()
+	rescuer := startWorker(t, srv.URL, "KILLED", "rescuer")
+	got := <-res
+	if got.code != wantCode || strings.Join(got.lines, "\n") != strings.Join(want, "\n") {
+		t.Errorf("check --nats: exit %d, records\n%s\nwant exit %d, records\n%s\nstderr %s",
+			got.code, strings.Join(got.lines, "\n"), wantCode, strings.Join(want, "\n"), got.stderr)
+	}
+	rescuer.waitFor(t, "dune-report-2.wav: judging (delivery 2)", 5*time.Second)
+}
+
+// TestQueuePoisonFile: a file that makes every worker crash is delivered
+// --max-deliveries times (2), then the next worker ends it as an error
+// result: check --nats reports it as an error (exit 2) and the other files
+// normally.
+func TestQueuePoisonFile(t *testing.T) {
+	srv := natstest.Start(t, t.TempDir())
+	dir := queueDelivery(t, "reed-bed-1.wav", "reed-bed-poison.wav")
+	res := make(chan []string, 1)
+	var code int
+	var stderr string
+	go func() {
+		var l []string
+		l, code, stderr = checkLines(t, dir, "--nats", srv.URL, "--queue-prefix", "POISON")
+		res <- l
+	}()
+	// A supervisor: a crashed worker is started again, a bounded number
+	// of times.
+	var lines []string
+	crashes := 0
+	for lines == nil {
+		w := startWorker(t, srv.URL, "POISON", "poisoned", crashOnEnv+"=reed-bed-poison.wav")
+		exited := make(chan struct{})
+		go func() { w.cmd.Wait(); close(exited) }()
+		select {
+		case lines = <-res:
+		case <-exited:
+			crashes++
+			if crashes > 4 {
+				t.Fatalf("%d crashes and no end to the poison loop; last log:\n%s", crashes, w.log.String())
+			}
+		}
+	}
+	if code != 2 || len(lines) != 2 {
+		t.Fatalf("exit %d, %d records, want exit 2 and 2 records; stderr %s", code, len(lines), stderr)
+	}
+	if !strings.Contains(lines[1], `"verdict":"error"`) || !strings.Contains(lines[1], "given up after 2 deliveries") {
+		t.Errorf("poison record: %s", lines[1])
+	}
+	if strings.Contains(lines[0], `"verdict":"error"`) {
+		t.Errorf("the good file: %s", lines[0])
+	}
+	if crashes != 2 {
+		t.Errorf("%d crashes, want 2 (the delivery limit)", crashes)
+	}
+}
+
+// TestQueueWorkerSIGTERMHandsBack: a worker told to stop while it holds a
+// job hands it back after --drain; it exits 0 and another worker judges
+// the job at once (no ack wait).
+func TestQueueWorkerSIGTERMHandsBack(t *testing.T) {
+	srv := natstest.Start(t, t.TempDir())
+	dir := queueDelivery(t, "heron-hour-1.wav")
+	res := make(chan int, 1)
+	go func() { _, c, _ := checkLines(t, dir, "--nats", srv.URL, "--queue-prefix", "TERM"); res <- c }()
+	w := startWorker(t, srv.URL, "TERM", "stopping", stallOnEnv+"=heron-hour-1.wav")
+	w.waitFor(t, "heron-hour-1.wav: judging", 30*time.Second)
+	w.cmd.Process.Signal(syscall.SIGTERM)
+	w.waitFor(t, "handed back", 5*time.Second)
+	if err := w.cmd.Wait(); err != nil {
+		t.Errorf("worker after SIGTERM: %v\n%s", err, w.log.String())
+	}
+	next := startWorker(t, srv.URL, "TERM", "next")
+	// -22 dBFS left and 0.9 of it right read 10·log10((1 + 0.81)/2) dB
+	// from -22: -22.4 LUFS, inside R 128's -23 ± 1 LU, so the file passes.
+	if c := <-res; c != 0 {
+		t.Errorf("check --nats exit %d, want 0 (the file passes R 128)", c)
+	}
+	next.waitFor(t, "heron-hour-1.wav: judging (delivery 2)", time.Second)
+}
