@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -14,6 +15,7 @@ import (
 
 	"github.com/kweigh/kweigh/internal/audiotest"
 	"github.com/kweigh/kweigh/internal/natstest"
+	"github.com/kweigh/kweigh/queue"
 )
 
 // lockedBuffer collects a process's stderr while the test reads it.
@@ -219,4 +221,73 @@ func TestQueueWorkerSIGTERMHandsBack(t *testing.T) {
 		t.Errorf("check --nats exit %d, want 0 (the file passes R 128)", c)
 	}
 	next.waitFor(t, "heron-hour-1.wav: judging (delivery 2)", time.Second)
+}
+
+// TestQueueDetachAndResults: check --nats --detach prints a batch id and
+// exits; an in-process worker judges the batch; kweigh results prints the
+// JSON report and exits exactly as a local check of the demo delivery,
+// apart from the time it was made and took. Collecting twice works.
+func TestQueueDetachAndResults(t *testing.T) {
+	srv := natstest.Start(t, t.TempDir())
+	q := []string{"--nats", srv.URL, "--queue-prefix", "DETACH"}
+	code, out, errOut := kweigh(t, append(append([]string{"check", "--detach"}, q...), demoDir)...)
+	batch := strings.TrimSpace(out)
+	if code != 0 || !queue.ValidBatch(batch) || !strings.Contains(errOut, "kweigh results") {
+		t.Fatalf("detach: exit %d, stdout %q, stderr %s", code, out, errOut)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	wq, err := queue.Connect(ctx, queue.Dial{URL: srv.URL, Prefix: "DETACH"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer wq.Close()
+	go wq.Work(ctx, queue.Config{Jobs: 2, AckWait: 5 * time.Second})
+	wantCode, want, _ := kweigh(t, "check", "--format", "json", demoDir)
+	clean := func(s string) string {
+		var lines []string
+		for _, l := range strings.Split(s, "\n") {
+			if !strings.Contains(l, `"generated"`) && !strings.Contains(l, `"elapsed_s"`) {
+				lines = append(lines, l)
+			}
+		}
+		return strings.Join(lines, "\n")
+	}
+	for round := 0; round < 2; round++ {
+		code, got, errOut := kweigh(t, append(append([]string{"results", "--format", "json"}, q...), batch)...)
+		if code != wantCode || clean(got) != clean(want) {
+			t.Errorf("round %d: results exit %d, want %d; output differs from the local check: %v\nstderr %s", round, code, wantCode, clean(got) != clean(want), errOut)
+		}
+	}
+}
+
+// TestQueueMistakes: queue options without a queue, a malformed or unknown
+// batch id and an unreachable server are clear errors (exit 2) naming the
+// problem, at once.
+func TestQueueMistakes(t *testing.T) {
+	srv := natstest.Start(t, t.TempDir())
+	closed := "nats://127.0.0.1:1" // nothing listens on port 1
+	for _, tc := range []struct {
+		args  []string
+		words string
+	}{
+		{[]string{"check", "--detach", demoDir}, "--detach needs --nats"},
+		{[]string{"check", "--creds", "x.creds", demoDir}, "--creds needs --nats"},
+		{[]string{"check", "--nats", srv.URL, "--queue-prefix", "a.b", demoDir}, "only letters, digits"},
+		{[]string{"results", "--nats", srv.URL, "no/such"}, "not a batch id"},
+		{[]string{"results", "--nats", srv.URL, "20260101T000000-000000000000"}, "no such batch"},
+		{[]string{"results", demoDir}, "nats"},
+		{[]string{"worker", "--nats", closed}, "127.0.0.1:1"},
+		{[]string{"check", "--nats", closed, demoDir}, "127.0.0.1:1"},
+		{[]string{"worker", "--nats", srv.URL, demoDir}, "no file arguments"},
+	} {
+		start := time.Now()
+		code, _, errOut := kweigh(t, tc.args...)
+		if code != 2 || !strings.Contains(errOut, tc.words) {
+			t.Errorf("%v: exit %d, stderr %q; want 2 and %q", tc.args, code, errOut, tc.words)
+		}
+		if d := time.Since(start); d > 10*time.Second {
+			t.Errorf("%v took %v", tc.args, d)
+		}
+	}
 }
