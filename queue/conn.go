@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"sync"
 	"time"
 
 	"github.com/nats-io/nats.go"
@@ -35,6 +36,25 @@ type Queue struct {
 	nc    *nats.Conn
 	js    jetstream.JetStream
 	names Names
+
+	mu    sync.Mutex
+	audio jetstream.ObjectStore // cached handle; nil until first used
+}
+
+// audioStore returns the audio bucket's handle, looked up once (each look-up
+// is a round trip to the server).
+func (q *Queue) audioStore(ctx context.Context) (jetstream.ObjectStore, error) {
+	q.mu.Lock()
+	defer q.mu.Unlock()
+	if q.audio != nil {
+		return q.audio, nil
+	}
+	s, err := q.js.ObjectStore(ctx, q.names.AudioBucket())
+	if err != nil {
+		return nil, err
+	}
+	q.audio = s
+	return s, nil
 }
 
 // Connect connects and makes sure the streams and buckets exist (creating

@@ -45,7 +45,7 @@ func delivery(t *testing.T) []string {
 }
 
 // connect starts a queue client on the server under a fresh prefix.
-func connect(t *testing.T, url, prefix string) *queue.Queue {
+func connect(t testing.TB, url, prefix string) *queue.Queue {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
 	defer cancel()

@@ -43,7 +43,7 @@ func (q *Queue) Upload(ctx context.Context, path string, f *os.File) (object str
 	}
 	object = ObjectName(hex.EncodeToString(h.Sum(nil)))
 	err = retry(ctx, func(ctx context.Context) error {
-		store, err := q.js.ObjectStore(ctx, q.names.AudioBucket())
+		store, err := q.audioStore(ctx)
 		if err != nil {
 			return err
 		}

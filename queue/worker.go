@@ -236,7 +236,7 @@ func (q *Queue) judge(ctx context.Context, cfg Config, job Job) engine.Record {
 	if err != nil {
 		return failed(job, err)
 	}
-	store, err := q.js.ObjectStore(ctx, q.names.AudioBucket())
+	store, err := q.audioStore(ctx)
 	if err != nil {
 		return failed(job, fmt.Errorf("audio bucket %s: %w", q.names.AudioBucket(), err))
 	}
