@@ -93,7 +93,10 @@ type Decoder interface {
 	// len(dst) must be a multiple of Channels. At the clean end of the
 	// stream it returns 0, io.EOF. When the file is damaged it returns the
 	// frames it could still decode together with an *IntegrityError, and
-	// io.EOF after that.
+	// io.EOF after that. A decoder that resynchronises after damage (FLAC)
+	// delivers the good frames that follow it too, and returns the
+	// *IntegrityError, which then describes every damaged stretch, with
+	// the last of them: the error always comes once, at the end.
 	ReadFrames(dst []float64) (int, error)
 }
 
@@ -306,7 +309,7 @@ func (e *FormatError) Error() string {
 func (e *FormatError) Unwrap() error { return e.Err }
 
 // UnsupportedError reports a file that is well-formed but uses a coding
-// kweigh does not measure (µ-law, ADPCM, 32-bit FLAC, MPEG-2.5 …).
+// kweigh does not measure (µ-law, ADPCM, MPEG-2.5 …).
 type UnsupportedError struct {
 	Format string // container, e.g. "wav"
 	What   string // e.g. "µ-law (format tag 0x0007)"

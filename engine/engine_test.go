@@ -132,7 +132,7 @@ func TestFindSpecRelativeDot(t *testing.T) {
 // decoder and layout options at the same time (run with -race): each must
 // see its own options only.
 func TestConcurrentJudgementsOwnOptions(t *testing.T) {
-	flac := filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac")
+	flac := filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep03.flac")
 	mono := writeFile(t, t.TempDir(), "mono.wav", audiotest.PCMWAV(48000, 1, 16, audiotest.Sine(48000, 1, 997, 0.1)))
 	var wg sync.WaitGroup
 	for i := 0; i < 2; i++ {
@@ -194,9 +194,21 @@ func TestRunOrderAndCancel(t *testing.T) {
 		t.Fatalf("%d emitted, want %d", len(got), len(targets))
 	}
 
+	// The first target waits until another one has finished, so it cannot
+	// be emitted first however the machine schedules the goroutines.
+	otherDone := make(chan struct{})
+	var once sync.Once
+	firstWaits := func(ctx context.Context, tg engine.Target) engine.Record {
+		if tg.Path == targets[0].Path {
+			<-otherDone
+		} else {
+			defer once.Do(func() { close(otherDone) })
+		}
+		return engine.Record{Target: tg}
+	}
 	seen := map[int]int{}
 	var order []int
-	engine.Run(context.Background(), targets, 4, slowFirst, func(i int, _ engine.Record) {
+	engine.Run(context.Background(), targets, 4, firstWaits, func(i int, _ engine.Record) {
 		seen[i]++
 		order = append(order, i)
 	}, false)

@@ -18,13 +18,22 @@ import (
 // Targets never started are not emitted: compare the count emitted with
 // len(targets) to see whether the run was complete.
 func Run(ctx context.Context, targets []Target, jobs int, work func(context.Context, Target) Record, emit func(i int, r Record), ordered bool) {
+	RunEach(ctx, len(targets), jobs, func(ctx context.Context, i int) Record { return work(ctx, targets[i]) }, emit, ordered)
+}
+
+// RunEach is Run for any kind of work: it calls work for i = 0 … n-1 on up
+// to jobs goroutines and hands each result to emit, with the same ordering,
+// cancellation and completeness rules as Run. Front ends whose unit of work
+// is not a judgement (fix: correct a file and judge the output) share the
+// pool through it.
+func RunEach[T any](ctx context.Context, n, jobs int, work func(ctx context.Context, i int) T, emit func(i int, r T), ordered bool) {
 	if jobs < 1 {
 		jobs = runtime.NumCPU()
 	}
-	jobs = min(jobs, max(len(targets), 1))
+	jobs = min(jobs, max(n, 1))
 	type finished struct {
 		i int
-		r Record
+		r T
 	}
 	next := make(chan int)
 	out := make(chan finished)
@@ -34,13 +43,13 @@ func Run(ctx context.Context, targets []Target, jobs int, work func(context.Cont
 		go func() {
 			defer wg.Done()
 			for i := range next {
-				out <- finished{i, work(ctx, targets[i])}
+				out <- finished{i, work(ctx, i)}
 			}
 		}()
 	}
 	go func() {
 		defer close(next)
-		for i := range targets {
+		for i := 0; i < n; i++ {
 			// Checked before offering the index too: select picks at
 			// random among ready cases.
 			if ctx.Err() != nil {
@@ -57,8 +66,8 @@ func Run(ctx context.Context, targets []Target, jobs int, work func(context.Cont
 		wg.Wait()
 		close(out)
 	}()
-	pending := map[int]Record{}
-	n := 0
+	pending := map[int]T{}
+	k := 0
 	for f := range out {
 		if !ordered {
 			emit(f.i, f.r)
@@ -68,13 +77,13 @@ func Run(ctx context.Context, targets []Target, jobs int, work func(context.Cont
 		// highest started one is started too and arrives eventually.
 		pending[f.i] = f.r
 		for {
-			r, ok := pending[n]
+			r, ok := pending[k]
 			if !ok {
 				break
 			}
-			delete(pending, n)
-			emit(n, r)
-			n++
+			delete(pending, k)
+			emit(k, r)
+			k++
 		}
 	}
 }

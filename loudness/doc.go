@@ -12,17 +12,29 @@
 //
 //	H(z) = (b0 + b1·z⁻¹ + b2·z⁻²) / (1 + a1·z⁻¹ + a2·z⁻²)
 //
-// BS.1770 publishes the coefficients for 48 kHz only. NewKWeighting designs
-// them for any rate by the bilinear transform with K = tan(π·fc/fs):
+// BS.1770 publishes the coefficients for 48 kHz only and asks other rates
+// for the same response. From 48 kHz up NewKWeighting designs them by the
+// bilinear transform with K = tan(π·fc/fs):
 //
 //	shelf:     a0 = 1 + K/Q + K²
 //	           b0 = (Vh + Vb·K/Q + K²)/a0   b1 = 2(K² − Vh)/a0
 //	           b2 = (Vh − Vb·K/Q + K²)/a0   a1 = 2(K² − 1)/a0   a2 = (1 − K/Q + K²)/a0
-//	high-pass: b = 1, −2, 1                  a1, a2 as above with its own fc, Q
+//	high-pass: b = [1, −2, 1]·a0(48 kHz)/a0(fs), a1, a2 as above with its own fc, Q
 //
 // with fc = 1681.97 Hz, Q = 0.70718, Vh = +4.0 dB, Vb = Vh^0.49967 for the
 // shelf and fc = 38.135 Hz, Q = 0.50033 for the high-pass. At 48 kHz this
-// reproduces the published table to about 1e-15.
+// reproduces the published table to about 1e-15. The published high-pass
+// numerator is not divided by its a0, so the published filter's passband
+// gain is a0(48 kHz) = 1.004995 (+0.043 dB); the scale factor keeps that
+// gain at every rate instead of letting it follow a0(fs).
+//
+// Below 48 kHz the bilinear transform squeezes the shelf towards Nyquist
+// (by up to 0.29 dB near 2.4 kHz at 8 kHz), so there the shelf is the
+// biquad whose magnitude best fits the published shelf's from 10 Hz to
+// Nyquist: a reweighted linear least-squares fit of |H|² as a ratio of
+// quadratics in sin²(ω/2), then spectral factorisation (kweighting_fit.go).
+// From 20 Hz to 0.4·fs the whole filter stays within 0.01 dB of the
+// published 48 kHz response at every rate from 8 to 384 kHz.
 //
 // # Loudness of an interval
 //

@@ -57,9 +57,9 @@ type KWeighting struct {
 	Shelf, HighPass Biquad
 }
 
-// Parameters of the bilinear K-weighting design (STANDARDS.md §1): with
-// K = tan(π·fc/fs) they reproduce the published 48 kHz coefficients of
-// ITU-R BS.1770-4/5 Table 1 and 2 to about 1e-15.
+// Parameters of the bilinear K-weighting design: with K = tan(π·fc/fs)
+// they reproduce the published 48 kHz coefficients of ITU-R BS.1770-4/5
+// Table 1 and 2 to about 1e-15 (the derivation is in the package doc).
 const (
 	shelfFreq    = 1681.974450955533  // Hz
 	shelfQ       = 0.7071752369554196 // quality factor
@@ -67,34 +67,66 @@ const (
 	shelfBandExp = 0.4996667741545416 // Vb = Vh^shelfBandExp
 	highPassFreq = 38.13547087602444  // Hz
 	highPassQ    = 0.5003270373238773 // quality factor
+
+	// referenceRate is the one rate BS.1770 publishes coefficients for.
+	referenceRate = 48000
 )
 
-// NewKWeighting designs the K-weighting filter for sampleRate Hz by the
-// bilinear transform. It gives the same response as the published 48 kHz
-// coefficients at every rate, within the warping of the bilinear transform
-// near Nyquist.
+// NewKWeighting designs the K-weighting filter for sampleRate Hz so that
+// its magnitude response is that of the published 48 kHz filter, which is
+// what BS.1770 asks of other rates:
+//
+//   - From 48 kHz up, both stages come from the bilinear transform of the
+//     analog design behind the published table (at 48 kHz the table
+//     itself, to about 1e-15).
+//   - Below 48 kHz the bilinear transform squeezes the shelf towards
+//     Nyquist (0.29 dB too much at 2.4 kHz at 8 kHz), so the shelf is
+//     instead the biquad whose magnitude best fits the published shelf's
+//     over the whole band of the rate (fitShelf).
+//   - The published high-pass numerator [1, −2, 1] is not normalised: its
+//     passband gain is a0(48 kHz) = 1 + K/Q + K² ≈ 1.004995 (+0.043 dB),
+//     and with the same numerator at another rate that gain would follow
+//     a0(fs) (+0.25 dB at 8 kHz). The numerator is scaled by
+//     a0(48 kHz)/a0(fs) so the passband gain is the published one at
+//     every rate. The factor is carried in the shelf's numerator (the two
+//     stages are in series, so the response is the same) and the high-pass
+//     keeps the exact [1, −2, 1], which Energy and the SIMD kernel use
+//     without multiplying.
 func NewKWeighting(sampleRate int) KWeighting {
 	fs := float64(sampleRate)
 	var k KWeighting
 
-	K := math.Tan(math.Pi * shelfFreq / fs)
-	vb := math.Pow(shelfGain, shelfBandExp)
-	a0 := 1 + K/shelfQ + K*K
-	k.Shelf = Biquad{
-		B0: (shelfGain + vb*K/shelfQ + K*K) / a0,
-		B1: 2 * (K*K - shelfGain) / a0,
-		B2: (shelfGain - vb*K/shelfQ + K*K) / a0,
-		A1: 2 * (K*K - 1) / a0,
-		A2: (1 - K/shelfQ + K*K) / a0,
+	if sampleRate < referenceRate && sampleRate >= MinSampleRate {
+		k.Shelf = fitShelf(fs)
+	} else {
+		K := math.Tan(math.Pi * shelfFreq / fs)
+		vb := math.Pow(shelfGain, shelfBandExp)
+		a0 := 1 + K/shelfQ + K*K
+		k.Shelf = Biquad{
+			B0: (shelfGain + vb*K/shelfQ + K*K) / a0,
+			B1: 2 * (K*K - shelfGain) / a0,
+			B2: (shelfGain - vb*K/shelfQ + K*K) / a0,
+			A1: 2 * (K*K - 1) / a0,
+			A2: (1 - K/shelfQ + K*K) / a0,
+		}
 	}
 
-	K = math.Tan(math.Pi * highPassFreq / fs)
-	a0 = 1 + K/highPassQ + K*K
-	// The numerator stays 1, −2, 1 unnormalised, as published.
+	highPassA0 := func(fs float64) float64 {
+		K := math.Tan(math.Pi * highPassFreq / fs)
+		return 1 + K/highPassQ + K*K
+	}
+	K := math.Tan(math.Pi * highPassFreq / fs)
+	a0 := highPassA0(fs)
 	k.HighPass = Biquad{
 		B0: 1, B1: -2, B2: 1,
 		A1: 2 * (K*K - 1) / a0,
 		A2: (1 - K/highPassQ + K*K) / a0,
+	}
+	if sampleRate != referenceRate {
+		g := highPassA0(referenceRate) / a0
+		k.Shelf.B0 *= g
+		k.Shelf.B1 *= g
+		k.Shelf.B2 *= g
 	}
 	return k
 }

@@ -328,3 +328,32 @@ func TestResetAndRepeat(t *testing.T) {
 		t.Errorf("after Reset: %+v, want %+v", c.Integrated, a.Integrated)
 	}
 }
+
+// TestLowRatesReadTheSame: a signal with content only below 3.2 kHz (0.4
+// of the 8 kHz rate) reads the same at every supported rate as at 48 kHz,
+// within 0.02 LU (issue 9: with the published high-pass numerator kept at
+// every rate, 8 kHz read 0.21 LU and 11.025 kHz 0.14 LU too loud, 384 kHz
+// 0.04 LU too quiet; 0.02 LU is this project's tolerance, common practice,
+// no published source).
+func TestLowRatesReadTheSame(t *testing.T) {
+	tones := []struct{ freq, dbfs float64 }{{50, -22}, {200, -20}, {997, -18}, {2200, -24}, {3100, -27}}
+	signal := func(rate int) []float64 {
+		x := make([]float64, 3*rate)
+		for i := range x {
+			tt := float64(i) / float64(rate)
+			for k, tone := range tones {
+				x[i] += amplitude(tone.dbfs) * math.Sin(2*math.Pi*tone.freq*tt+float64(k))
+			}
+		}
+		return x
+	}
+	x := signal(48000)
+	ref := measure(t, 48000, []float64{1, 1}, interleave(x, x), 0).Integrated.Value
+	for _, rate := range []int{8000, 11025, 16000, 22050, 32000, 44100, 96000, 384000} {
+		x := signal(rate)
+		got := measure(t, rate, []float64{1, 1}, interleave(x, x), 0).Integrated.Value
+		if d := got - ref; math.Abs(d) > 0.02 {
+			t.Errorf("%d Hz reads %.3f LUFS, 48 kHz %.3f: differ by %+.3f LU (want within 0.02)", rate, got, ref, d)
+		}
+	}
+}

@@ -87,9 +87,11 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		Codec:         info.Codec,
 		SampleRateHz:  info.SampleRate,
 		Channels:      info.Channels,
-		BitsPerSample: info.BitsPerSample,
+		BitsPerSample: BitDepth(info.BitsPerSample),
 		SampleFormat:  string(info.SampleFormat),
 		Mode:          info.Mode,
+		BitRateMode:   info.BitRateMode,
+		Tags:          append([]string(nil), info.Tags...),
 		Bext:          info.Bext,
 		Notes:         []string{},
 	}

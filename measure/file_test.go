@@ -3,6 +3,8 @@ package measure_test
 import (
 	"context"
 	"encoding/binary"
+	"encoding/json"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -340,5 +342,58 @@ func TestDecoderNotesReachTheRecord(t *testing.T) {
 	}
 	if !strings.Contains(strings.Join(m.Notes, "\n"), "MD5 verification turned off") {
 		t.Errorf("notes %q lack the decoder's note", m.Notes)
+	}
+}
+
+// lossyTone is a decoder of one second of silence that declares what a
+// lossy decoder declares (no bit depth, a bit rate, its mode and tags),
+// for the plumbing of those facts into the Measurement and its JSON.
+type lossyTone struct{ left int }
+
+func (*lossyTone) Info() decode.Info {
+	return decode.Info{Container: "mp3", Codec: "mpeg-1 layer 3", SampleRate: rate, Channels: 2, SampleFormat: decode.Int,
+		Frames: -1, BitRate: 128000, Mode: "joint stereo", BitRateMode: "cbr", Tags: []string{"id3v2.4", "id3v1"}}
+}
+
+func (d *lossyTone) ReadFrames(dst []float64) (int, error) {
+	if d.left == 0 {
+		return 0, io.EOF
+	}
+	n := min(len(dst)/2, d.left)
+	clear(dst[:2*n])
+	d.left -= n
+	return n, nil
+}
+
+// TestLossyFacts: a lossy file has no bit depth (JSON null, issue 9), and
+// its bit-rate mode and tags reach the record; a PCM file's JSON keeps its
+// depth and has neither key.
+func TestLossyFacts(t *testing.T) {
+	m := measure.Stream(context.Background(), "ep.mp3", &lossyTone{left: rate}, measure.Options{})
+	if m.Error != "" {
+		t.Fatal(m.Error)
+	}
+	if m.BitsPerSample != 0 || m.BitRateMode != "cbr" || strings.Join(m.Tags, " ") != "id3v2.4 id3v1" || m.BitRateKbps != 128 {
+		t.Errorf("facts: bits %d, mode %q, tags %v, %v kbps", m.BitsPerSample, m.BitRateMode, m.Tags, m.BitRateKbps)
+	}
+	b, err := json.Marshal(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{`"bits_per_sample":null`, `"bit_rate_mode":"cbr"`, `"tags":["id3v2.4","id3v1"]`} {
+		if !strings.Contains(string(b), want) {
+			t.Errorf("JSON lacks %s: %s", want, b)
+		}
+	}
+	var back measure.Measurement
+	if err := json.Unmarshal(b, &back); err != nil || back.BitsPerSample != 0 {
+		t.Errorf("round trip: %v, bits %d", err, back.BitsPerSample)
+	}
+	pcm, err := json.Marshal(&measure.Measurement{BitsPerSample: 24})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s := string(pcm); !strings.Contains(s, `"bits_per_sample":24`) || strings.Contains(s, "bit_rate_mode") || strings.Contains(s, `"tags"`) {
+		t.Errorf("PCM JSON: %s", s)
 	}
 }

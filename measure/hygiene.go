@@ -14,6 +14,17 @@ const (
 	// samples counts as clipping (common practice, no published source: a
 	// single full-scale sample may be a legitimate peak).
 	DefaultClipRunMinSamples = 3
+	// DualMonoSideToMidDB: a two-channel file is dual mono when the energy
+	// of L−R (side) is this far or further below that of L+R (mid) over the
+	// whole file (common practice, no published source). Independent
+	// dither on the two channels of one mono signal leaves the side at the
+	// dither's own level, about −76 dB re the mid for a −20 dBFS tone made
+	// 16-bit with TPDF dither and still below −50 dB for programme down to
+	// about −45 dBFS RMS; a real stereo mix, even a narrow one, keeps its
+	// side within 10 to 30 dB of its mid, and a 0.1 dB level difference
+	// between two copies of one signal is already −45 dB. So −50 dB calls
+	// "the same signal twice, up to dither" dual mono and nothing wider.
+	DualMonoSideToMidDB = -50.0
 	// correlationWindowS is the window for MinWindowCorrelation, the same 3 s
 	// as short-term loudness so a phase problem is judged over a stretch a
 	// listener would notice.
@@ -333,8 +344,17 @@ func (h *hygiene) finish(sampleRate int, layout []string, samplePeak []float64, 
 			m := h.minWindow
 			s.MinWindowCorrelation = &m
 		}
-		s.DualMono = h.channels == 2 && h.frames > 0 && h.maxDiff <= h.lsb &&
-			samplePeak[h.left] >= h.silenceLevel
+		// The same samples within one step, or the same signal up to
+		// dither: side energy Σ(L−R)² = ΣL² + ΣR² − 2ΣLR at least
+		// DualMonoSideToMidDB below mid energy Σ(L+R)², both from the
+		// correlation's sums (their rounding error is some eight orders of
+		// magnitude below the threshold).
+		p := &h.pair
+		side, mid := p.sll+p.srr-2*p.slr, p.sll+p.srr+2*p.slr
+		sameSignal := h.maxDiff <= h.lsb ||
+			(mid > 0 && side <= mid*math.Pow(10, DualMonoSideToMidDB/10))
+		s.DualMono = h.channels == 2 && h.frames > 0 && sameSignal &&
+			samplePeak[h.left] >= h.silenceLevel && samplePeak[h.right] >= h.silenceLevel
 	}
 	return s
 }

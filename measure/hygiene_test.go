@@ -200,9 +200,18 @@ func TestDualMonoToleratesOneLSB(t *testing.T) {
 	if s := runHygiene(stereo(a, b), 2, 16, false, lr); !s.DualMono {
 		t.Error("one LSB apart: want dual mono")
 	}
+	// Since issue 9 a few stray samples no longer make two copies of one
+	// signal "different": the side's energy decides (TestDualMonoByLevelOfSide).
 	b[2345] += 3.0 / 32768
+	if s := runHygiene(stereo(a, b), 2, 16, false, lr); !s.DualMono {
+		t.Error("three LSB apart in one sample: want dual mono")
+	}
+	c := noise(hygRate, 0.01, 8) // side about -30 dB re mid
+	for i := range b {
+		b[i] = a[i] + c[i]
+	}
 	if s := runHygiene(stereo(a, b), 2, 16, false, lr); s.DualMono {
-		t.Error("three LSB apart: want not dual mono")
+		t.Error("a second signal 30 dB down on one side: want not dual mono")
 	}
 }
 
@@ -211,4 +220,67 @@ func deref(p *float64) any {
 		return nil
 	}
 	return *p
+}
+
+// tpdf16 makes x 16-bit with TPDF dither (the sum of two independent
+// uniform values of ±½ LSB, the textbook triangular dither of ±1 LSB) from
+// its own generator.
+func tpdf16(x []float64, seed uint64) []float64 {
+	rng := rand.New(rand.NewPCG(seed, 11))
+	y := make([]float64, len(x))
+	for i, v := range x {
+		d := rng.Float64() - rng.Float64()
+		q := math.Round(v*32768 + d)
+		y[i] = math.Max(-32768, math.Min(32767, q)) / 32768
+	}
+	return y
+}
+
+// TestDualMonoByLevelOfSide: dual mono is judged by the energy of L−R
+// against L+R (issue 9; the −50 dB threshold is common practice, no
+// published source), so one mono signal given each channel its own dither
+// is dual mono although no two samples need agree, while a narrow but real
+// stereo signal is not.
+func TestDualMonoByLevelOfSide(t *testing.T) {
+	n := 5 * hygRate
+	tone := sine(n, 0.1, 997) // -20 dBFS
+	l, r := tpdf16(tone, 1), tpdf16(tone, 2)
+	diff := 0.0
+	for i := range l {
+		diff = math.Max(diff, math.Abs(l[i]-r[i]))
+	}
+	if diff <= 1.0/32768 {
+		t.Fatalf("the dithered copies differ by at most %v: the test needs copies more than one step apart", diff*32768)
+	}
+	if s := runHygiene(stereo(l, r), 2, 16, false, lr); !s.DualMono {
+		t.Errorf("a -20 dBFS sine dithered to 16 bits on each channel independently: want dual mono (correlation %v)", deref(s.Correlation))
+	}
+	// Quiet programme: noise at about -45 dBFS RMS still reads dual mono
+	// with independent dither (side about -52 dB re mid, calc: dither
+	// variance LSB²/4 per channel after quantisation).
+	quiet := noise(n, 0.0097, 9) // uniform ±0.0097: RMS 0.0056, -45 dBFS
+	if s := runHygiene(stereo(tpdf16(quiet, 3), tpdf16(quiet, 4)), 2, 16, false, lr); !s.DualMono {
+		t.Error("quiet programme dithered independently: want dual mono")
+	}
+	// A narrow stereo image: the same tone plus independent noise 40 dB
+	// down on each side. Real, if narrow, stereo: not dual mono.
+	nl, nr := noise(n, 0.0017, 5), noise(n, 0.0017, 6)
+	narrowL, narrowR := slices.Clone(tone), slices.Clone(tone)
+	for i := range tone {
+		narrowL[i] += nl[i]
+		narrowR[i] += nr[i]
+	}
+	if s := runHygiene(stereo(narrowL, narrowR), 2, 24, false, lr); s.DualMono {
+		t.Error("narrow stereo (side about -40 dB re mid): want not dual mono")
+	}
+	// One copy 0.1 dB lower than the other: side/mid = (1−g)/(1+g) with
+	// g = 10^(−0.1/20), −45 dB (calc), wider than the threshold.
+	g := math.Pow(10, -0.1/20)
+	lower := make([]float64, n)
+	for i, v := range tone {
+		lower[i] = g * v
+	}
+	if s := runHygiene(stereo(tone, lower), 2, 24, false, lr); s.DualMono {
+		t.Error("0.1 dB level difference: want not dual mono")
+	}
 }

@@ -8,6 +8,9 @@
 package measure
 
 import (
+	"fmt"
+	"strconv"
+
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/loudness"
 )
@@ -25,12 +28,20 @@ type Measurement struct {
 	// LayoutSource says where ChannelLayout came from: "file" (channel mask
 	// or the format's defined order), "default" (by channel count) or "user"
 	// (--layout).
-	LayoutSource  string  `json:"layout_source"`
-	BitsPerSample int     `json:"bits_per_sample"`
-	SampleFormat  string  `json:"sample_format"` // int or float
-	BitRateKbps   float64 `json:"bit_rate_kbps,omitempty"`
-	Mode          string  `json:"mode,omitempty"`
-	DurationS     float64 `json:"duration_s"`
+	LayoutSource string `json:"layout_source"`
+	// BitsPerSample is the file's bit depth; 0 (JSON null) for lossy
+	// formats, which have none.
+	BitsPerSample BitDepth `json:"bits_per_sample"`
+	SampleFormat  string   `json:"sample_format"` // int or float
+	BitRateKbps   float64  `json:"bit_rate_kbps,omitempty"`
+	Mode          string   `json:"mode,omitempty"`
+	// BitRateMode is "cbr", "vbr" or "abr" for compressed files whose
+	// decoder can tell; absent otherwise.
+	BitRateMode string `json:"bit_rate_mode,omitempty"`
+	// Tags lists the metadata blocks the file carries (e.g. "id3v2.4",
+	// "id3v1"); absent when there are none, never null.
+	Tags      []string `json:"tags,omitempty"`
+	DurationS float64  `json:"duration_s"`
 
 	IntegratedLUFS   *float64 `json:"integrated_lufs"`
 	LoudnessRangeLU  *float64 `json:"loudness_range_lu"`
@@ -70,6 +81,32 @@ type Measurement struct {
 	Series *loudness.Series `json:"-"`
 }
 
+// BitDepth is a bit depth in bits, 0 for "none" (a lossy format), which
+// JSON writes as null: an MP3 has no bit depth, not a depth of 0 or 16.
+type BitDepth int
+
+// MarshalJSON writes the depth, or null for 0.
+func (b BitDepth) MarshalJSON() ([]byte, error) {
+	if b == 0 {
+		return []byte("null"), nil
+	}
+	return strconv.AppendInt(nil, int64(b), 10), nil
+}
+
+// UnmarshalJSON reads a depth or null (0).
+func (b *BitDepth) UnmarshalJSON(data []byte) error {
+	if string(data) == "null" {
+		*b = 0
+		return nil
+	}
+	n, err := strconv.Atoi(string(data))
+	if err != nil {
+		return fmt.Errorf("bits_per_sample: %q is not a whole number or null", data)
+	}
+	*b = BitDepth(n)
+	return nil
+}
+
 // Signal holds the signal-hygiene findings that delivery QC looks at besides
 // loudness.
 type Signal struct {
@@ -98,7 +135,9 @@ type Signal struct {
 	Correlation          *float64 `json:"correlation"`
 	MinWindowCorrelation *float64 `json:"min_window_correlation"`
 	// DualMono is true when a two-channel file carries the same signal on
-	// both channels (every sample within one LSB).
+	// both channels: every sample within one LSB, or L−R at least
+	// DualMonoSideToMidDB (50 dB) below L+R in energy, which is the same
+	// signal up to independent dither.
 	DualMono bool `json:"dual_mono"`
 	// SilentChannels lists the labels of channels that hold digital silence
 	// or stay below the silence threshold throughout.

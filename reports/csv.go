@@ -24,7 +24,7 @@ var measurementColumns = []column[*measure.Measurement]{
 	{"sample_rate_hz", func(m *measure.Measurement) string { return strconv.Itoa(m.SampleRateHz) }},
 	{"channels", func(m *measure.Measurement) string { return strconv.Itoa(m.Channels) }},
 	{"channel_layout", func(m *measure.Measurement) string { return strings.Join(m.ChannelLayout, ";") }},
-	{"bits_per_sample", func(m *measure.Measurement) string { return strconv.Itoa(m.BitsPerSample) }},
+	{"bits_per_sample", func(m *measure.Measurement) string { return bitDepthCell(m.BitsPerSample) }},
 	{"sample_format", func(m *measure.Measurement) string { return m.SampleFormat }},
 	{"duration_s", func(m *measure.Measurement) string { return Fixed(m.DurationS, 3) }},
 	{"integrated_lufs", func(m *measure.Measurement) string { return csvFigure(m.IntegratedLUFS) }},
@@ -190,3 +190,12 @@ func (w *checkCSV) Write(r *rules.Result) error {
 
 // Close flushes; the CSV format has no summary row.
 func (w *checkCSV) Close(Summary) error { return w.table.finish() }
+
+// bitDepthCell is the bit depth, or an empty cell for a lossy file, which
+// has none (null in JSON).
+func bitDepthCell(b measure.BitDepth) string {
+	if b == 0 {
+		return ""
+	}
+	return strconv.Itoa(int(b))
+}

@@ -60,7 +60,12 @@ func assertMeasurementRow(t *testing.T, row map[string]string, m *measure.Measur
 		}
 		return
 	}
-	ints := map[string]int{"sample_rate_hz": m.SampleRateHz, "channels": m.Channels, "bits_per_sample": m.BitsPerSample}
+	ints := map[string]int{"sample_rate_hz": m.SampleRateHz, "channels": m.Channels}
+	if m.BitsPerSample != 0 {
+		ints["bits_per_sample"] = int(m.BitsPerSample)
+	} else if row["bits_per_sample"] != "" {
+		t.Errorf("%s: bits_per_sample = %q for a lossy file, want empty", where, row["bits_per_sample"])
+	}
 	for col, want := range ints {
 		if got, err := strconv.Atoi(row[col]); err != nil || got != want {
 			t.Errorf("%s: %s = %q, want %d", where, col, row[col], want)

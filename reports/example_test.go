@@ -93,7 +93,7 @@ func ExampleNewCheckWriter() {
 	//           ✗ fail  true_peak   -0.90 dBTP  limit ≤ -1.0 dBTP
 	//                   0.1 dB over the ceiling
 	//           1 other check passed
-	//           gain -2.7 dB reaches the target
+	//           gain -2.7 dB suggested
 	//           advice: Turn it down by 2.7 dB; that also brings the true peak under the ceiling.
 	//
 	// 0 passed, 0 warned, 1 failed, 0 errors · 1 file, 0:30.0 of audio checked in 1.5 s

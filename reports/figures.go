@@ -11,8 +11,9 @@ import (
 // The figure formatting below is shared by every human-readable report: the
 // text writers here and the HTML page (package reports/htmlpage) call these
 // functions, so the two can never print the same figure differently. The
-// decimals follow issue 2: one for loudness, gains and durations, two for
-// peaks.
+// decimals follow issue 2: one for loudness and durations, two for peaks;
+// gains and limiter figures are package rules' own, exact to 0.01 dB
+// (issue 9: the figure beside a reason is the one the reason implies).
 
 // NotAvailable is what every human-readable report prints for a figure the
 // standard leaves undefined (a file shorter than one gating block, audio
@@ -55,12 +56,22 @@ func Peak(p *float64) string {
 	return Fixed(*p, 2)
 }
 
-// Gain formats a gain in dB with one decimal, like loudness, and an
-// explicit sign ("+3.4", "-2.0"; zero as "0.0"), so a boost cannot be read
-// as a cut.
+// Adjustment formats a gain or a peak reduction in dB as package rules
+// works it out, to 0.01 dB: one decimal when the hundredths digit is 0
+// ("-2.6"), two otherwise ("1.23"), so the figure is the one the advice
+// beside it states.
+func Adjustment(db float64) string {
+	if s := Fixed(db, 2); s != NotAvailable && !strings.HasSuffix(s, "0") {
+		return s
+	}
+	return Fixed(db, 1)
+}
+
+// Gain formats a gain in dB like Adjustment with an explicit sign ("+3.4",
+// "-2.0", "-0.04"; zero as "0.0"), so a boost cannot be read as a cut.
 func Gain(db float64) string {
-	s := Fixed(db, 1)
-	if s != NotAvailable && !strings.HasPrefix(s, "-") && s != "0.0" {
+	s := Adjustment(db)
+	if s != NotAvailable && !strings.HasPrefix(s, "-") && strings.Trim(s, "0.") != "" {
 		s = "+" + s
 	}
 	return s

@@ -151,7 +151,7 @@ func problemText(r *rules.Result, detail string) string {
 		fmt.Fprintf(&b, "\nsuggested gain: %s dB", Gain(*r.SuggestedGainDB))
 	}
 	if Defined(r.LimiterReductionDB) {
-		fmt.Fprintf(&b, "\nlimiter: %s dB of peak reduction after that gain", Fixed(*r.LimiterReductionDB, 1))
+		fmt.Fprintf(&b, "\nlimiter: %s", limiterText(*r.LimiterReductionDB, Defined(r.SuggestedGainDB)))
 	}
 	if r.Advice != "" {
 		b.WriteString("\nadvice: " + r.Advice)

@@ -65,6 +65,14 @@ func (t *checkText) Write(r *rules.Result) error {
 		}
 		t.checks(r.Checks)
 	}
+	if m != nil {
+		// Notes carry what the figures alone do not say (a decoder that
+		// clipped, an assumed layout, an undefined figure), as measure
+		// prints them.
+		for _, n := range m.Notes {
+			t.detail("note: " + n)
+		}
+	}
 	t.fix(r)
 	return t.flush()
 }
@@ -91,7 +99,7 @@ func figuresText(r *rules.Result) string {
 		return s + " " + u
 	}
 	return strings.Join([]string{
-		"integrated " + unit(Loudness(r.IntegratedLUFS), "LUFS"),
+		"integrated " + unit(Loudness(r.IntegratedLUFS), r.Unit()),
 		"range " + unit(Loudness(r.LoudnessRangeLU), "LU"),
 		"true peak " + unit(Peak(r.TruePeakDBTP), "dBTP"),
 		"duration " + Duration(r.DurationS),
@@ -132,21 +140,32 @@ func (t *checkText) checks(all []rules.Check) {
 // reasonIndent puts a check's reason under its id.
 const reasonIndent = "        "
 
-// fix writes the suggested gain, the limiter reduction and the advice.
+// fix writes the suggested gain, the limiter reduction and the advice,
+// each worded for the case at hand: a limiter after a gain, or alone.
 func (t *checkText) fix(r *rules.Result) {
-	if Defined(r.SuggestedGainDB) {
-		text := "gain " + Gain(*r.SuggestedGainDB) + " dB reaches the target"
+	gain := Defined(r.SuggestedGainDB)
+	if gain {
+		text := "gain " + Gain(*r.SuggestedGainDB) + " dB suggested"
 		if *r.SuggestedGainDB > 0 {
 			text += " (this raises the level: check the peaks and listen at a safe volume)"
 		}
 		t.detail(text)
 	}
 	if Defined(r.LimiterReductionDB) {
-		t.detail("limiter needed: " + Fixed(*r.LimiterReductionDB, 1) + " dB of peak reduction after that gain")
+		t.detail("limiter needed: " + limiterText(*r.LimiterReductionDB, gain))
 	}
 	if r.Advice != "" {
 		t.detail("advice: " + r.Advice)
 	}
+}
+
+// limiterText words a limiter reduction: after the suggested gain when
+// there is one, on the file as it is otherwise.
+func limiterText(db float64, afterGain bool) string {
+	if afterGain {
+		return Adjustment(db) + " dB of true-peak reduction after that gain"
+	}
+	return Adjustment(db) + " dB of true-peak reduction, with no change of level"
 }
 
 func (t *checkText) Close(s Summary) error {

@@ -139,16 +139,24 @@ func streamText(m *measure.Measurement) string {
 	}
 	if m.BitsPerSample > 0 {
 		parts = append(parts, fmt.Sprintf("%d-bit %s", m.BitsPerSample, m.SampleFormat))
-	} else if m.SampleFormat != "" {
-		parts = append(parts, m.SampleFormat)
+	} else {
+		// A lossy format has no bit depth.
+		parts = append(parts, "— bits")
 	}
 	if m.BitRateKbps > 0 {
-		parts = append(parts, Fixed(m.BitRateKbps, 0)+" kbps")
+		rate := Fixed(m.BitRateKbps, 0) + " kbps"
+		if m.BitRateMode != "" {
+			rate += " " + strings.ToUpper(m.BitRateMode)
+		}
+		parts = append(parts, rate)
 	}
 	if m.Mode != "" {
 		parts = append(parts, m.Mode)
 	}
 	parts = append(parts, fmt.Sprintf("%d Hz", m.SampleRateHz), plural(m.Channels, "channel"))
+	if len(m.Tags) > 0 {
+		parts = append(parts, "tags "+strings.Join(m.Tags, " "))
+	}
 	return strings.Join(parts, ", ")
 }
 

@@ -60,6 +60,7 @@ func ebuR128S1() *Spec {
 
 func atscA85() *Spec {
 	s := newSpec()
+	s.LoudnessUnit = "LKFS" // the unit the document writes
 	s.ID = "atsc-a85"
 	s.Title = "ATSC A/85:2013, US digital television"
 	s.Description = "Television programmes and commercials at -24 LKFS ±2 dB (LKFS and LUFS are the same unit)."
@@ -76,6 +77,7 @@ func atscA85() *Spec {
 
 func aribTRB32() *Spec {
 	s := newSpec()
+	s.LoudnessUnit = "LKFS" // the unit the document writes
 	s.ID = "arib-tr-b32"
 	s.Title = "ARIB TR-B32, Japanese television"
 	s.Description = "Television programmes at -24 LKFS ±1 dB, LFE excluded from the measurement."
@@ -91,6 +93,7 @@ func aribTRB32() *Spec {
 
 func op59() *Spec {
 	s := newSpec()
+	s.LoudnessUnit = "LKFS" // the unit the document writes
 	s.ID = "op-59"
 	s.Title = "Free TV Australia OP-59, Australian commercial television"
 	s.Description = "Programmes and advertisements at the same target, -24 LKFS."
@@ -141,6 +144,7 @@ func podcast() *Spec {
 	s.Source = Source{Document: "podcast practice", Marker: "common practice"}
 	s.Loudness.TargetLUFS = ptr(-16.0)
 	s.Loudness.MonoTargetLUFS = ptr(-19.0)
+	s.Loudness.MonoOffsetLU = ptr(-3.0) // mono is "3 LU below stereo" in practice
 	s.Loudness.ToleranceLU = 1.0
 	s.Loudness.MaxTruePeakDBTP = ptr(-1.0)
 	s.LimitSources["integrated"] = "podcast practice: -16 LUFS stereo, -19 LUFS mono, ±1 LU (common practice, no published source)"

@@ -7,17 +7,20 @@ import (
 )
 
 // checkBextLoudness compares the loudness a BWF file declares in its bext
-// chunk (EBU Tech 3285 v2: LoudnessValue, LoudnessRange, MaxTruePeakLevel)
-// with the measurement. It applies when the file declares any of them or the
+// chunk (EBU Tech 3285 v2: LoudnessValue, LoudnessRange, MaxTruePeakLevel,
+// MaxMomentaryLoudness, MaxShortTermLoudness) with the measurement; the two
+// maxima are held to the integrated tolerance, as they are loudness values
+// of the same meter. It applies when the file declares any of them or the
 // spec requires them. Measured is the largest difference found, in LU or
 // dB.
 func checkBextLoudness(j *judge) (Check, bool) {
 	b, m, lim := j.m.Bext, j.m, j.spec.Bext
-	declared := b != nil && (b.LoudnessValue != nil || b.LoudnessRange != nil || b.MaxTruePeakLevel != nil)
+	declared := b != nil && (b.LoudnessValue != nil || b.LoudnessRange != nil || b.MaxTruePeakLevel != nil ||
+		b.MaxMomentaryLoudness != nil || b.MaxShortTermLoudness != nil)
 	if !declared && !lim.Required || lim.Mismatch == PolicyAllow && !lim.Required {
 		return Check{}, false
 	}
-	c := Check{ID: "bext_loudness", Unit: "LU", Limit: fmt.Sprintf("declared within ±%s LU (I), ±%s dB (true peak), ±%s LU (LRA) of measured",
+	c := Check{ID: "bext_loudness", Unit: "LU", Limit: fmt.Sprintf("declared within ±%s LU (I, max M, max S), ±%s dB (true peak), ±%s LU (LRA) of measured",
 		magnitude(lim.LoudnessToleranceLU), magnitude(lim.TruePeakToleranceDB), magnitude(lim.LRAToleranceLU))}
 	if lim.Required {
 		c.Limit = "present; " + c.Limit
@@ -34,10 +37,13 @@ func checkBextLoudness(j *judge) (Check, bool) {
 		declared, measured *float64
 		tol                float64
 	}
+	u := j.spec.Unit()
 	fields := []field{
-		{"integrated", "LUFS", b.LoudnessValue, m.IntegratedLUFS, lim.LoudnessToleranceLU},
+		{"integrated", u, b.LoudnessValue, m.IntegratedLUFS, lim.LoudnessToleranceLU},
 		{"true peak", "dBTP", b.MaxTruePeakLevel, m.TruePeakDBTP, lim.TruePeakToleranceDB},
 		{"loudness range", "LU", b.LoudnessRange, m.LoudnessRangeLU, lim.LRAToleranceLU},
+		{"max momentary", u, b.MaxMomentaryLoudness, m.MaxMomentaryLUFS, lim.LoudnessToleranceLU},
+		{"max short-term", u, b.MaxShortTermLoudness, m.MaxShortTermLUFS, lim.LoudnessToleranceLU},
 	}
 	var worst float64
 	var off, ok []string
@@ -52,13 +58,19 @@ func checkBextLoudness(j *judge) (Check, bool) {
 		if notFinite(&c, *f.measured, "measured "+f.what) {
 			return c, true
 		}
-		d := math.Abs(*f.measured - *f.declared)
+		// The difference of the two figures as printed (two decimals), so
+		// that it is their visible difference.
+		d := math.Abs(float64(hundredths(*f.measured)-hundredths(*f.declared)) / 100)
 		if d > worst {
 			worst = d
 		}
 		if above(d, f.tol) {
-			off = append(off, fmt.Sprintf("%s declared %s %s, measured %s %s (%s apart, tolerance ±%s)",
-				f.what, signed(*f.declared, 2), f.unit, signed(*f.measured, 2), f.unit, near(d, f.tol), magnitude(f.tol)))
+			diff := "LU"
+			if f.unit == "dBTP" {
+				diff = "dB"
+			}
+			off = append(off, fmt.Sprintf("%s declared %s %s, measured %s %s (%s %s apart, tolerance ±%s %s)",
+				f.what, signed(*f.declared, 2), f.unit, signed(*f.measured, 2), f.unit, exact(d), diff, magnitude(f.tol), diff))
 		} else {
 			ok = append(ok, f.what)
 		}

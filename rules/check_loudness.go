@@ -1,6 +1,9 @@
 package rules
 
-import "fmt"
+import (
+	"fmt"
+	"strings"
+)
 
 // limitNum writes a spec value with one decimal, or two when it has
 // hundredths (e.g. a house tolerance of 0.25 LU).
@@ -20,11 +23,12 @@ func magnitude(x float64) string {
 }
 
 // integratedLimit writes the integrated requirement for a file with the
-// given channel count, e.g. "-23.0 LUFS ±1.0 LU" or "-20.0 to -16.0 LUFS".
+// given channel count, e.g. "-23.0 LUFS ±1.0 LU" or "-20.0 to -16.0 LUFS",
+// in the spec's loudness unit.
 func (s *Spec) integratedLimit(channels int) string {
-	l := s.Loudness
+	l, u := s.Loudness, s.Unit()
 	if t := s.targetFor(channels); t != nil {
-		text := fmt.Sprintf("%s LUFS ±%s LU", limitNum(*t), magnitude(l.ToleranceLU))
+		text := fmt.Sprintf("%s %s ±%s LU", limitNum(*t), u, magnitude(l.ToleranceLU))
 		if channels == 1 && l.MonoTargetLUFS != nil {
 			text += " (mono)"
 		}
@@ -32,70 +36,112 @@ func (s *Spec) integratedLimit(channels int) string {
 	}
 	switch {
 	case l.MinIntegratedLUFS != nil && l.MaxIntegratedLUFS != nil:
-		return fmt.Sprintf("%s to %s LUFS", limitNum(*l.MinIntegratedLUFS), limitNum(*l.MaxIntegratedLUFS))
+		return fmt.Sprintf("%s to %s %s", limitNum(*l.MinIntegratedLUFS), limitNum(*l.MaxIntegratedLUFS), u)
 	case l.MinIntegratedLUFS != nil:
-		return fmt.Sprintf("≥ %s LUFS", limitNum(*l.MinIntegratedLUFS))
+		return fmt.Sprintf("≥ %s %s", limitNum(*l.MinIntegratedLUFS), u)
 	case l.MaxIntegratedLUFS != nil:
-		return fmt.Sprintf("≤ %s LUFS", limitNum(*l.MaxIntegratedLUFS))
+		return fmt.Sprintf("≤ %s %s", limitNum(*l.MaxIntegratedLUFS), u)
 	}
 	return ""
+}
+
+// integratedShown is an integrated loudness v as the integrated check's
+// reason prints it for a file with the given channel count: the text and
+// the number that text means. The gain advice starts from the same number,
+// so the deviation a reason states and the gain beside it always agree.
+// One decimal is used, or two within 0.1 LU of the edge that decides the
+// verdict (so that the printed figure never seems to sit on the wrong side
+// of it) and when one decimal would print the target itself for a value
+// that is not on it.
+func (s *Spec) integratedShown(v float64, channels int) (float64, string) {
+	lo, hi, _, _ := s.integratedWindow(channels)
+	if t := s.targetFor(channels); t != nil {
+		dev := hundredths(v) - hundredths(*t)
+		if dev == 0 {
+			return shown(v, *t)
+		}
+		x, text := shown(v, *t+signOf(dev)*s.Loudness.ToleranceLU)
+		if hundredths(x) == hundredths(*t) {
+			return round2(v), num(v, 2)
+		}
+		return x, text
+	}
+	edge := v
+	switch {
+	case hi != nil && lo != nil:
+		edge = *lo
+		if hundredths(v)*2 > hundredths(*lo)+hundredths(*hi) {
+			edge = *hi
+		}
+	case hi != nil:
+		edge = *hi
+	case lo != nil:
+		edge = *lo
+	}
+	return shown(v, edge)
 }
 
 // checkIntegrated judges integrated loudness against the target and
 // tolerance (the mono target for one-channel files) or the window.
 func checkIntegrated(j *judge) (Check, bool) {
 	s, m := j.spec, j.m
-	lo, hi, _, ok := s.integratedWindow(m.Channels)
-	if !ok {
+	if _, _, _, ok := s.integratedWindow(m.Channels); !ok {
 		return Check{}, false
 	}
-	c := Check{ID: "integrated", Unit: "LUFS", Limit: s.integratedLimit(m.Channels)}
+	c := Check{ID: "integrated", Unit: s.Unit(), Limit: s.integratedLimit(m.Channels)}
 	if m.IntegratedLUFS == nil {
 		c.Verdict = Fail
-		c.Reason = "integrated loudness is undefined: nothing rose above the -70 LUFS absolute gate (silent or too short)"
+		c.Reason = fmt.Sprintf("integrated loudness is undefined: nothing rose above the -70 %s absolute gate (silent or too short)", s.Unit())
 		return c, true
 	}
-	v := *m.IntegratedLUFS
-	if notFinite(&c, v, "integrated loudness") {
+	if notFinite(&c, *m.IntegratedLUFS, "integrated loudness") {
 		return c, true
 	}
-	c.Measured = round2(v)
-	margin := hundredths(s.Loudness.WarnMarginLU)
-	if t := s.targetFor(m.Channels); t != nil {
-		c.Verdict, c.Reason = judgeTarget(v, *t, s.Loudness.ToleranceLU, margin, m.Channels == 1 && s.Loudness.MonoTargetLUFS != nil)
-		return c, true
-	}
-	c.Verdict, c.Reason = judgeWindow(v, lo, hi, margin)
+	c.Measured = *m.IntegratedLUFS
+	c.Verdict, c.Reason = s.judgeIntegrated(*m.IntegratedLUFS, m.Channels, m.Channels == 1 && s.Loudness.MonoTargetLUFS != nil)
 	return c, true
 }
 
+// judgeIntegrated judges an integrated loudness v against the requirement
+// for a file with the given channel count and says why in words.
+func (s *Spec) judgeIntegrated(v float64, channels int, mono bool) (Verdict, string) {
+	lo, hi, _, _ := s.integratedWindow(channels)
+	margin := hundredths(s.Loudness.WarnMarginLU)
+	vs, text := s.integratedShown(v, channels)
+	if t := s.targetFor(channels); t != nil {
+		return judgeTarget(v, vs, text, *t, s.Loudness.ToleranceLU, margin, mono, s.Unit())
+	}
+	return judgeWindow(v, vs, text, lo, hi, margin, s.Unit())
+}
+
 // judgeTarget judges v against target ± tol with a near-edge warning margin
-// (in hundredths).
-func judgeTarget(v, target, tol float64, margin int64, mono bool) (Verdict, string) {
-	what := fmt.Sprintf("the %s LUFS target", limitNum(target))
+// (in hundredths). The verdict is taken on v at 0.01; the words use vs and
+// its text (integratedShown), and the deviation they state is vs − target.
+func judgeTarget(v, vs float64, text string, target, tol float64, margin int64, mono bool, unit string) (Verdict, string) {
+	what := fmt.Sprintf("the %s %s target", limitNum(target), unit)
 	if mono {
-		what = fmt.Sprintf("the %s LUFS mono target", limitNum(target))
+		what = fmt.Sprintf("the %s %s mono target", limitNum(target), unit)
 	}
 	dev := hundredths(v) - hundredths(target)
 	if dev == 0 {
-		return Pass, fmt.Sprintf("integrated %s LUFS is on %s", num(v, 1), what)
+		return Pass, fmt.Sprintf("integrated %s %s is on %s", text, unit, what)
 	}
 	side, absDev := "above", dev
 	if dev < 0 {
 		side, absDev = "below", -dev
 	}
-	d := float64(absDev) / 100
+	d := exact(abs(vs - target))
 	tolQ := hundredths(tol)
 	switch {
 	case absDev > tolQ:
-		return Fail, fmt.Sprintf("integrated %s LUFS is %s LU %s %s (tolerance ±%s LU)",
-			near(v, target+signOf(dev)*tol), near(d, tol), side, what, magnitude(tol))
+		return Fail, fmt.Sprintf("integrated %s %s is %s LU %s %s (tolerance ±%s LU)",
+			text, unit, d, side, what, magnitude(tol))
 	case tolQ-absDev < margin:
-		return Warn, fmt.Sprintf("integrated %s LUFS is %s LU %s %s: inside ±%s LU but within %s LU of the edge",
-			near(v, target+signOf(dev)*tol), near(d, tol), side, what, magnitude(tol), magnitude(float64(margin)/100))
+		return Warn, fmt.Sprintf("integrated %s %s is %s LU %s %s: inside ±%s LU but within %s LU of the edge",
+			text, unit, d, side, what, magnitude(tol), magnitude(float64(margin)/100))
 	}
-	return Pass, fmt.Sprintf("integrated %s LUFS is %s LU %s %s, within ±%s LU",
-		near(v, target+signOf(dev)*tol), near(d, tol), side, what, magnitude(tol))
+	return Pass, fmt.Sprintf("integrated %s %s is %s LU %s %s, within ±%s LU",
+		text, unit, d, side, what, magnitude(tol))
 }
 
 func signOf(q int64) float64 {
@@ -106,46 +152,49 @@ func signOf(q int64) float64 {
 }
 
 // judgeWindow judges v against a window whose sides may be open, with a
-// near-edge warning margin (in hundredths).
-func judgeWindow(v float64, lo, hi *float64, margin int64) (Verdict, string) {
+// near-edge warning margin (in hundredths); the words use vs and its text
+// as judgeTarget does.
+func judgeWindow(v, vs float64, text string, lo, hi *float64, margin int64, unit string) (Verdict, string) {
 	q := hundredths(v)
 	if hi != nil && q > hundredths(*hi) {
-		d := float64(q-hundredths(*hi)) / 100
-		return Fail, fmt.Sprintf("integrated %s LUFS is %s LU above the %s LUFS maximum", near(v, *hi), amount(d), limitNum(*hi))
+		return Fail, fmt.Sprintf("integrated %s %s is %s LU above the %s %s maximum", text, unit, exact(vs-*hi), limitNum(*hi), unit)
 	}
 	if lo != nil && q < hundredths(*lo) {
-		d := float64(hundredths(*lo)-q) / 100
-		return Fail, fmt.Sprintf("integrated %s LUFS is %s LU below the %s LUFS minimum", near(v, *lo), amount(d), limitNum(*lo))
+		return Fail, fmt.Sprintf("integrated %s %s is %s LU below the %s %s minimum", text, unit, exact(*lo-vs), limitNum(*lo), unit)
 	}
 	if hi != nil && hundredths(*hi)-q < margin {
-		return Warn, fmt.Sprintf("integrated %s LUFS is inside the window but within %s LU of its %s LUFS maximum", near(v, *hi), magnitude(float64(margin)/100), limitNum(*hi))
+		return Warn, fmt.Sprintf("integrated %s %s is inside the window but within %s LU of its %s %s maximum", text, unit, magnitude(float64(margin)/100), limitNum(*hi), unit)
 	}
 	if lo != nil && q-hundredths(*lo) < margin {
-		return Warn, fmt.Sprintf("integrated %s LUFS is inside the window but within %s LU of its %s LUFS minimum", near(v, *lo), magnitude(float64(margin)/100), limitNum(*lo))
+		return Warn, fmt.Sprintf("integrated %s %s is inside the window but within %s LU of its %s %s minimum", text, unit, magnitude(float64(margin)/100), limitNum(*lo), unit)
 	}
-	return Pass, fmt.Sprintf("integrated %s LUFS is inside the window", num(v, 1))
+	return Pass, fmt.Sprintf("integrated %s %s is inside the window", text, unit)
 }
 
 // checkTruePeak judges the maximum true peak against the ceiling.
 func checkTruePeak(j *judge) (Check, bool) {
-	return checkMaximum(j.spec.Loudness.MaxTruePeakDBTP, j.m.TruePeakDBTP, maximum{
-		id: "true_peak", unit: "dBTP", diffUnit: "dB", what: "true peak", limitName: "ceiling",
-		undefined: "there is no true peak: the file is digital silence",
-	})
+	return checkMaximum(j.spec.Loudness.MaxTruePeakDBTP, j.m.TruePeakDBTP, truePeakWords("true peak", "there is no true peak: the file is digital silence"))
+}
+
+// truePeakWords describes a true peak for checkMaximum; what names it.
+func truePeakWords(what, undefined string) maximum {
+	return maximum{id: "true_peak", unit: "dBTP", diffUnit: "dB", what: what, limitName: "ceiling", undefined: undefined, peak: true}
 }
 
 // checkMaxShortTerm judges the loudest 3 s window (EBU Tech 3341 S).
 func checkMaxShortTerm(j *judge) (Check, bool) {
+	u := j.spec.Unit()
 	return checkMaximum(j.spec.Loudness.MaxShortTermLUFS, j.m.MaxShortTermLUFS, maximum{
-		id: "max_short_term", unit: "LUFS", diffUnit: "LU", what: "loudest 3 s window (short-term)",
+		id: "max_short_term", unit: u, diffUnit: "LU", what: "loudest 3 s window (short-term)",
 		limitName: "maximum", undefined: "short-term loudness is undefined (file shorter than 3 s or silent)",
 	})
 }
 
 // checkMaxMomentary judges the loudest 400 ms window (EBU Tech 3341 M).
 func checkMaxMomentary(j *judge) (Check, bool) {
+	u := j.spec.Unit()
 	return checkMaximum(j.spec.Loudness.MaxMomentaryLUFS, j.m.MaxMomentaryLUFS, maximum{
-		id: "max_momentary", unit: "LUFS", diffUnit: "LU", what: "loudest 400 ms window (momentary)",
+		id: "max_momentary", unit: u, diffUnit: "LU", what: "loudest 400 ms window (momentary)",
 		limitName: "maximum", undefined: "momentary loudness is undefined (file shorter than 400 ms or silent)",
 	})
 }
@@ -154,6 +203,24 @@ func checkMaxMomentary(j *judge) (Check, bool) {
 type maximum struct {
 	id, unit, diffUnit, what, limitName string
 	undefined                           string // reason when the figure is undefined (a pass)
+	// peak makes the figure print with two decimals, as every report
+	// prints peaks; other figures print as maximumShown says.
+	peak bool
+}
+
+// maximumShown is a value judged against a maximum as the reason prints it:
+// two decimals for peaks; for loudness one decimal, or two when it has a
+// hundredths digit and exceeds the limit, so that the excess the reason
+// states is the one the advice asks to remove. Returns the text and the
+// number it means.
+func maximumShown(v, limit float64, peak bool) (float64, string) {
+	if peak || (above(v, limit) && hundredths(v)%10 != 0) {
+		return round2(v), num(v, 2)
+	}
+	if above(v, limit) {
+		return round2(v), num(v, 1)
+	}
+	return shown(v, limit)
 }
 
 func checkMaximum(limit, value *float64, d maximum) (Check, bool) {
@@ -170,20 +237,24 @@ func checkMaximum(limit, value *float64, d maximum) (Check, bool) {
 	if notFinite(&c, v, d.what) {
 		return c, true
 	}
-	c.Measured = round2(v)
+	c.Measured = v
+	vs, text := maximumShown(v, lim, d.peak)
+	if vs > 0 && !strings.HasPrefix(text, "+") {
+		text = "+" + text
+	}
 	diff := float64(hundredths(v)-hundredths(lim)) / 100
 	switch {
 	case diff > 0:
 		c.Verdict = Fail
-		c.Reason = fmt.Sprintf("%s %s %s is %s %s above the %s %s %s", d.what, nearSigned(v, lim), d.unit,
-			amount(diff), d.diffUnit, limitNum(lim), d.unit, d.limitName)
+		c.Reason = fmt.Sprintf("%s %s %s is %s %s above the %s %s %s", d.what, text, d.unit,
+			exact(vs-lim), d.diffUnit, limitNum(lim), d.unit, d.limitName)
 	case diff == 0:
 		c.Verdict = Pass
-		c.Reason = fmt.Sprintf("%s %s %s is at the %s %s %s", d.what, signed(v, 1), d.unit, limitNum(lim), d.unit, d.limitName)
+		c.Reason = fmt.Sprintf("%s %s %s is at the %s %s %s", d.what, text, d.unit, limitNum(lim), d.unit, d.limitName)
 	default:
 		c.Verdict = Pass
-		c.Reason = fmt.Sprintf("%s %s %s is %s %s below the %s %s %s", d.what, nearSigned(v, lim), d.unit,
-			amount(-diff), d.diffUnit, limitNum(lim), d.unit, d.limitName)
+		c.Reason = fmt.Sprintf("%s %s %s is %s %s below the %s %s %s", d.what, text, d.unit,
+			exact(lim-vs), d.diffUnit, limitNum(lim), d.unit, d.limitName)
 	}
 	return c, true
 }
@@ -211,7 +282,7 @@ func checkLoudnessRange(j *judge) (Check, bool) {
 	if notFinite(&c, v, "loudness range") {
 		return c, true
 	}
-	c.Measured = round2(v)
+	c.Measured = v
 	c.Verdict, c.Reason = judgeRange(v, l.MinLRALU, l.MaxLRALU, out, rangeWords{
 		what: "loudness range", unit: "LU", over: "wider", under: "narrower", limit: limitNum,
 	})
@@ -260,28 +331,38 @@ func checkDownmixIntegrated(j *judge) (Check, bool) {
 	if !s.Loudness.CheckDownmix || m.StereoDownmix == nil {
 		return Check{}, false
 	}
-	lo, hi, _, ok := s.integratedWindow(2)
-	if !ok {
+	if _, _, _, ok := s.integratedWindow(2); !ok {
 		return Check{}, false
 	}
-	c := Check{ID: "downmix_integrated", Unit: "LUFS", Limit: s.integratedLimit(2) + " (stereo fold-down)"}
+	c := Check{ID: "downmix_integrated", Unit: s.Unit(), Limit: s.integratedLimit(2) + " (stereo fold-down)"}
 	if m.StereoDownmix.IntegratedLUFS == nil {
 		c.Verdict = Fail
-		c.Reason = "the stereo fold-down has no integrated loudness: nothing rose above the -70 LUFS absolute gate"
+		c.Reason = fmt.Sprintf("the stereo fold-down has no integrated loudness: nothing rose above the -70 %s absolute gate", s.Unit())
 		return c, true
 	}
 	v := *m.StereoDownmix.IntegratedLUFS
 	if notFinite(&c, v, "the stereo fold-down's integrated loudness") {
 		return c, true
 	}
-	c.Measured = round2(v)
-	margin := hundredths(s.Loudness.WarnMarginLU)
+	c.Measured = v
 	var reason string
-	if t := s.targetFor(2); t != nil {
-		c.Verdict, reason = judgeTarget(v, *t, s.Loudness.ToleranceLU, margin, false)
-	} else {
-		c.Verdict, reason = judgeWindow(v, lo, hi, margin)
-	}
+	c.Verdict, reason = s.judgeIntegrated(v, 2, false)
 	c.Reason = "stereo fold-down: " + reason
 	return c, true
+}
+
+// checkDownmixTruePeak judges the true peak of a surround file's stereo
+// fold-down against the ceiling, for specs that judge the fold-down: the
+// fold-down adds channels together, so it can peak higher than any one of
+// them.
+func checkDownmixTruePeak(j *judge) (Check, bool) {
+	s, m := j.spec, j.m
+	if !s.Loudness.CheckDownmix || m.StereoDownmix == nil || s.Loudness.MaxTruePeakDBTP == nil {
+		return Check{}, false
+	}
+	w := truePeakWords("stereo fold-down true peak", "the stereo fold-down has no true peak: it is digital silence")
+	w.id = "downmix_true_peak"
+	c, ok := checkMaximum(s.Loudness.MaxTruePeakDBTP, m.StereoDownmix.TruePeakDBTP, w)
+	c.Limit += " (stereo fold-down)"
+	return c, ok
 }

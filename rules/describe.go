@@ -18,10 +18,16 @@ type limitRow struct{ check, limit, source string }
 // source, for `kweigh specs`, e.g.
 // "-23.0 LUFS ±1.0 LU, true peak ≤ -1.0 dBTP; EBU R 128 v4.0 (2020)".
 func (s *Spec) Summary() string {
+	return strings.Join(s.summaryParts(), ", ") + "; " + s.Source.String()
+}
+
+// summaryParts lists the main limits in words, from the effective values.
+func (s *Spec) summaryParts() []string {
 	var parts []string
+	u := s.Unit()
 	if lim := s.integratedLimit(2); lim != "" {
 		if s.Loudness.MonoTargetLUFS != nil {
-			lim += fmt.Sprintf(" (mono %s LUFS)", limitNum(*s.Loudness.MonoTargetLUFS))
+			lim += fmt.Sprintf(" (mono %s %s)", limitNum(*s.Loudness.MonoTargetLUFS), u)
 		}
 		parts = append(parts, lim)
 	}
@@ -29,15 +35,25 @@ func (s *Spec) Summary() string {
 		parts = append(parts, fmt.Sprintf("true peak ≤ %s dBTP", limitNum(*v)))
 	}
 	if v := s.Loudness.MaxShortTermLUFS; v != nil {
-		parts = append(parts, fmt.Sprintf("short-term ≤ %s LUFS", limitNum(*v)))
+		parts = append(parts, fmt.Sprintf("short-term ≤ %s %s", limitNum(*v), u))
 	}
 	if v := s.Loudness.MaxMomentaryLUFS; v != nil {
-		parts = append(parts, fmt.Sprintf("momentary ≤ %s LUFS", limitNum(*v)))
+		parts = append(parts, fmt.Sprintf("momentary ≤ %s %s", limitNum(*v), u))
 	}
 	if len(parts) == 0 {
 		parts = append(parts, "no loudness limits")
 	}
-	return strings.Join(parts, ", ") + "; " + s.Source.String()
+	return parts
+}
+
+// EffectiveDescription is the spec's own description, or for a spec that
+// has none (a user spec, which never inherits its base's wording), one
+// generated from the effective limits: what `specs show` prints.
+func (s *Spec) EffectiveDescription() string {
+	if s.Description != "" {
+		return s.Description
+	}
+	return "Loudness limits: " + strings.Join(s.summaryParts(), ", ") + "."
 }
 
 // Describe writes the spec in words for `kweigh specs show`: its title,
@@ -45,9 +61,7 @@ func (s *Spec) Summary() string {
 func (s *Spec) Describe(w io.Writer) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s: %s\n", s.ID, s.Title)
-	if s.Description != "" {
-		fmt.Fprintf(&b, "%s\n", s.Description)
-	}
+	fmt.Fprintf(&b, "%s\n", s.EffectiveDescription())
 	fmt.Fprintf(&b, "Source: %s", s.Source)
 	if s.Source.Marker != "" {
 		fmt.Fprintf(&b, " [%s]", s.Source.Marker)
@@ -108,10 +122,10 @@ func (s *Spec) limitRows() []limitRow {
 		add("true_peak", fmt.Sprintf("≤ %s dBTP", limitNum(*v)), s.sourceOf("true_peak"))
 	}
 	if v := l.MaxShortTermLUFS; v != nil {
-		add("max_short_term", fmt.Sprintf("≤ %s LUFS", limitNum(*v)), s.sourceOf("max_short_term"))
+		add("max_short_term", fmt.Sprintf("≤ %s %s", limitNum(*v), s.Unit()), s.sourceOf("max_short_term"))
 	}
 	if v := l.MaxMomentaryLUFS; v != nil {
-		add("max_momentary", fmt.Sprintf("≤ %s LUFS", limitNum(*v)), s.sourceOf("max_momentary"))
+		add("max_momentary", fmt.Sprintf("≤ %s %s", limitNum(*v), s.Unit()), s.sourceOf("max_momentary"))
 	}
 	if l.MinLRALU != nil || l.MaxLRALU != nil {
 		lim := rangeLimit(l.MinLRALU, l.MaxLRALU, "LU")
@@ -122,6 +136,9 @@ func (s *Spec) limitRows() []limitRow {
 	}
 	if l.CheckDownmix {
 		add("downmix_integrated", "surround files: the Lo/Ro fold-down within the integrated limit too", s.sourceOf("downmix_integrated"))
+		if l.MaxTruePeakDBTP != nil {
+			add("downmix_true_peak", "surround files: the Lo/Ro fold-down's true peak under the ceiling too", s.sourceOf("downmix_integrated"))
+		}
 	}
 	f := s.Format
 	if len(f.Containers) > 0 {
@@ -132,6 +149,12 @@ func (s *Spec) limitRows() []limitRow {
 	}
 	if len(f.BitDepths) > 0 {
 		add("bit_depth", "one of "+joinInts(f.BitDepths)+" bits", s.sourceOf("bit_depth"))
+	}
+	if f.MinBitRateKbps != nil || f.MaxBitRateKbps != nil {
+		add("bit_rate", "compressed files: "+rangeLimit(f.MinBitRateKbps, f.MaxBitRateKbps, "kbps"), s.sourceOf("bit_rate"))
+	}
+	if len(f.BitRateModes) > 0 {
+		add("bit_rate_mode", "compressed files: one of "+strings.Join(f.BitRateModes, ", "), s.sourceOf("bit_rate_mode"))
 	}
 	if len(f.SampleFormats) > 0 {
 		add("sample_format", "one of "+strings.Join(f.SampleFormats, ", "), s.sourceOf("sample_format"))
@@ -169,7 +192,7 @@ func (s *Spec) limitRows() []limitRow {
 	add(policyRow("silent_channels", "no silent channel (LFE excepted)", sig.SilentChannels, s))
 	bx := s.Bext
 	if bx.Mismatch != PolicyAllow || bx.Required {
-		lim := fmt.Sprintf("declared within ±%s LU (I), ±%s dB (true peak), ±%s LU (LRA) of measured; mismatch: %s",
+		lim := fmt.Sprintf("declared within ±%s LU (I, max M, max S), ±%s dB (true peak), ±%s LU (LRA) of measured; mismatch: %s",
 			magnitude(bx.LoudnessToleranceLU), magnitude(bx.TruePeakToleranceDB), magnitude(bx.LRAToleranceLU), policyOrWarn(bx.Mismatch))
 		if bx.Required {
 			lim = "required; " + lim

@@ -19,12 +19,19 @@
 //   - Values are compared with their limits after rounding both to 0.01 (the
 //     resolution of the BWF bext loudness fields): a value that rounds onto
 //     the edge of a tolerance passes, 0.01 beyond it does not.
-//   - Loudness, true peak, gain and durations are written with one decimal;
-//     a value within 0.1 of its limit that has a hundredths digit is written
-//     with two, so that -21.96 LUFS is not shown as the -22.0 edge it
-//     fails. Check.Measured carries the value rounded to 0.01. Suggested
-//     gains are rounded to 0.1 dB; limiter reductions are rounded up to the
-//     next 0.1 dB so that following the advice is enough.
+//   - Loudness and durations are written with one decimal; a value within
+//     0.1 of its limit that has a hundredths digit is written with two, so
+//     that -21.96 LUFS is not shown as the -22.0 edge it fails. True peaks
+//     are written with two decimals, as every report writes them.
+//     Check.Measured carries loudness and peak values unrounded, others
+//     rounded to 0.01.
+//   - One number in every sentence: a reason's deviation is its printed
+//     value minus the printed limit; the suggested gain starts from the
+//     same printed value, and the limiter reduction from the printed true
+//     peak plus that gain. Gains and reductions are exact to 0.01 dB
+//     (written with one decimal when the second is 0), the resolution of
+//     every comparison, so following the advice is enough without rounding
+//     anything up.
 //   - The integrated warning margin (Spec.Loudness.WarnMarginLU, default
 //     0.2 LU) turns a pass within that distance of the tolerance edge into a
 //     warning; exactly on the edge is therefore a warning, not a failure.

@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/kweigh/kweigh/measure"
@@ -66,6 +67,13 @@ func TestDownmixCheck(t *testing.T) {
 	}
 	if v := verdictOf(r, "downmix_integrated"); v != rules.Fail {
 		t.Errorf("fold-down %v: %q, want fail (below -26 LKFS)", *surroundHeavy.StereoDownmix.IntegratedLUFS, v)
+	}
+	// The advice follows the failing fold-down (issue 9). The fold-down
+	// reads 4.5 LU below the file (surrounds at 0.707 instead of weight
+	// 1.41: 20·log10(0.707) − 10·log10(1.41) = −4.5 dB, calc), more than the
+	// ±2 dB window spans, so no gain fixes both: the mix must change.
+	if r.SuggestedGainDB != nil || !strings.Contains(r.Advice, "stereo fold-down reads 4.5 LU quieter") || !strings.Contains(r.Advice, "rebalance") {
+		t.Errorf("advice for a failing fold-down: gain %v, %q", r.SuggestedGainDB, r.Advice)
 	}
 	// A front-only mix folds down to the same loudness: both pass.
 	b := math.Pow(10, -24.0/20)

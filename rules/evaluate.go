@@ -17,8 +17,8 @@ type checkRun func(j *judge) (c Check, ok bool)
 var checkOrder = []checkRun{
 	checkIntegrity,
 	checkIntegrated, checkTruePeak, checkMaxShortTerm, checkMaxMomentary, checkLoudnessRange,
-	checkDownmixIntegrated,
-	checkContainer, checkSampleRate, checkBitDepth, checkSampleFormat, checkChannels, checkChannelLayout,
+	checkDownmixIntegrated, checkDownmixTruePeak,
+	checkContainer, checkSampleRate, checkBitDepth, checkBitRate, checkBitRateMode, checkSampleFormat, checkChannels, checkChannelLayout,
 	checkDuration, checkLeadingSilence, checkTrailingSilence,
 	checkClipping, checkDCOffset, checkPhase, checkPhaseWindow, checkDualMono, checkSilentChannels,
 	checkBextLoudness,
@@ -29,8 +29,8 @@ var checkOrder = []checkRun{
 var CheckIDs = []string{
 	"integrity",
 	"integrated", "true_peak", "max_short_term", "max_momentary", "loudness_range",
-	"downmix_integrated",
-	"container", "sample_rate", "bit_depth", "sample_format", "channels", "channel_layout",
+	"downmix_integrated", "downmix_true_peak",
+	"container", "sample_rate", "bit_depth", "bit_rate", "bit_rate_mode", "sample_format", "channels", "channel_layout",
 	"duration", "leading_silence", "trailing_silence",
 	"clipping", "dc_offset", "phase", "phase_window", "dual_mono", "silent_channels",
 	"bext_loudness",
@@ -44,7 +44,7 @@ var CheckIDs = []string{
 // check. spec must not be nil. Evaluate does not modify spec or m and is safe
 // for concurrent use.
 func Evaluate(spec *Spec, m *measure.Measurement) Result {
-	r := Result{Measurement: m, Spec: spec.ID, Checks: []Check{}}
+	r := Result{Measurement: m, Spec: spec.ID, LoudnessUnit: spec.Unit(), Checks: []Check{}}
 	if m == nil || m.Error != "" {
 		reason := "the file could not be measured"
 		if m != nil {

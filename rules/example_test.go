@@ -35,14 +35,14 @@ func ExampleEvaluate() {
 	// podcast fail
 	// integrity        pass  the audio decoded without damage
 	// integrated       fail  integrated -18.6 LUFS is 2.6 LU below the -16.0 LUFS target (tolerance ±1.0 LU)
-	// true_peak        pass  true peak -1.4 dBTP is 0.4 dB below the -1.0 dBTP ceiling
+	// true_peak        pass  true peak -1.40 dBTP is 0.4 dB below the -1.0 dBTP ceiling
 	// clipping         pass  no full-scale samples
 	// dc_offset        pass  no DC offset
 	// phase            pass  L/R correlation over the whole file is 0.80, not below -0.30
 	// phase_window     pass  lowest L/R correlation over 3 s windows is 0.40, not below -0.50
 	// dual_mono        pass  the two channels carry different signals
 	// silent_channels  pass  every channel carries signal
-	// Raise the level by 2.6 dB to reach -16.0 LUFS. That would put the true peak at +1.2 dBTP, so a true-peak limiter must take the peaks down by a further 2.2 dB to stay at or below -1.0 dBTP. Raising the level makes the file louder: check the result at a moderate listening level.
+	// Raise the level by 2.6 dB to reach -16.0 LUFS. That would put the true peak at +1.20 dBTP, so a true-peak limiter must take the peaks down by a further 2.2 dB to stay at or below -1.0 dBTP. Raising the level makes the file louder: check the result at a moderate listening level.
 }
 
 func ExampleSpec_Summary() {
@@ -105,7 +105,7 @@ func ExampleSpec_Describe() {
 	//                         source: kweigh QC default, warn only (common practice, no published source)
 	// silent_channels       no silent channel (LFE excepted)
 	//                         source: kweigh QC default, warn only (common practice, no published source)
-	// bext_loudness         declared within ±0.5 LU (I), ±1.0 dB (true peak), ±2.0 LU (LRA) of measured; mismatch: warn
+	// bext_loudness         declared within ±0.5 LU (I, max M, max S), ±1.0 dB (true peak), ±2.0 LU (LRA) of measured; mismatch: warn
 	//                         source: kweigh QC default, warn only (common practice, no published source)
 	//
 	// Notes:

@@ -30,6 +30,7 @@ func FuzzParse(f *testing.F) {
 	f.Add([]byte(strings.Repeat("a.", 8000) + "b = 1\n"))
 	f.Add([]byte(""))
 	f.Add([]byte("name = \"x\"\n"))
+	f.Add([]byte("extends = \"podcast\"\n[loudness]\ntarget_lufs = -14\n[format]\nmin_bit_rate_kbps = 96\nbit_rate_modes = [\"cbr\"]\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		s, err := Parse("fuzz.toml", data)
 		if err != nil {

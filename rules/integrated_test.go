@@ -148,7 +148,7 @@ func TestMaximaChecks(t *testing.T) {
 	m.MaxShortTermLUFS = ptr(-16.2)
 	r := Evaluate(s, m)
 	tp := mustCheck(t, r, "true_peak")
-	if tp.Verdict != Fail || tp.Reason != "true peak +0.4 dBTP is 1.4 dB above the -1.0 dBTP ceiling" || tp.Limit != "≤ -1.0 dBTP" {
+	if tp.Verdict != Fail || tp.Reason != "true peak +0.40 dBTP is 1.4 dB above the -1.0 dBTP ceiling" || tp.Limit != "≤ -1.0 dBTP" {
 		t.Errorf("true peak: %+v", tp)
 	}
 	st := mustCheck(t, r, "max_short_term")
@@ -158,7 +158,7 @@ func TestMaximaChecks(t *testing.T) {
 	m = cleanStereo(-23, -1.0)
 	m.MaxShortTermLUFS = ptr(-18.0)
 	r = Evaluate(s, m)
-	if c := mustCheck(t, r, "true_peak"); c.Verdict != Pass || c.Reason != "true peak -1.0 dBTP is at the -1.0 dBTP ceiling" {
+	if c := mustCheck(t, r, "true_peak"); c.Verdict != Pass || c.Reason != "true peak -1.00 dBTP is at the -1.0 dBTP ceiling" {
 		t.Errorf("true peak at ceiling: %+v", c)
 	}
 	if c := mustCheck(t, r, "max_short_term"); c.Verdict != Pass {

@@ -142,7 +142,7 @@ func TestBextLoudness(t *testing.T) {
 	}
 	m.Bext.LoudnessValue = ptr(-23.55) // 0.55 LU from -23.0: beyond 0.5
 	c := mustCheck(t, Evaluate(s, m), "bext_loudness")
-	if c.Verdict != Warn || !strings.Contains(c.Reason, "integrated declared -23.55 LUFS, measured -23.00 LUFS (0.55 apart, tolerance ±0.5)") {
+	if c.Verdict != Warn || !strings.Contains(c.Reason, "integrated declared -23.55 LUFS, measured -23.00 LUFS (0.55 LU apart, tolerance ±0.5 LU)") {
 		t.Errorf("disagreeing bext, default policy: %+v", c)
 	}
 	u := s.Clone()
@@ -158,5 +158,24 @@ func TestBextLoudness(t *testing.T) {
 	m.Bext = &decode.Bext{Version: 1}
 	if c := mustCheck(t, Evaluate(u, m), "bext_loudness"); c.Verdict != Fail || !strings.Contains(c.Reason, "requires") {
 		t.Errorf("required bext missing: %+v", c)
+	}
+}
+
+// TestBextMaxima: the declared maximum momentary and short-term loudness
+// (EBU Tech 3285 v2 MaxMomentaryLoudness, MaxShortTermLoudness) are
+// compared with the measurement like the other declared values, at the
+// integrated tolerance (kweigh's default ±0.5 LU, common practice, no
+// published source).
+func TestBextMaxima(t *testing.T) {
+	s := mustLookup(t, "ebu-r128")
+	m := cleanStereo(-23, -3) // max M -17, max S -20 (cleanStereo)
+	m.Bext = &decode.Bext{Version: 2, MaxMomentaryLoudness: ptr(-17.2), MaxShortTermLoudness: ptr(-20.1)}
+	if c := mustCheck(t, Evaluate(s, m), "bext_loudness"); c.Verdict != Pass || c.Reason != "bext max momentary, max short-term agree with the measurement" {
+		t.Errorf("agreeing maxima: %+v", c)
+	}
+	m.Bext.MaxShortTermLoudness = ptr(-21.26)
+	c := mustCheck(t, Evaluate(s, m), "bext_loudness")
+	if c.Verdict != Warn || c.Measured != 1.26 || !strings.Contains(c.Reason, "max short-term declared -21.26 LUFS, measured -20.00 LUFS (1.26 LU apart, tolerance ±0.5 LU)") {
+		t.Errorf("short-term maximum 1.26 LU off: %+v", c)
 	}
 }

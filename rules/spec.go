@@ -27,6 +27,11 @@ type Spec struct {
 	// Root is set by "root = true" in a spec file: the search for a folder's
 	// spec (from a file's folder upwards) ends at this file's folder.
 	Root bool
+	// LoudnessUnit is the name the spec's own document gives loudness
+	// figures: "LKFS" (ATSC A/85, ARIB TR-B32, OP-59) or "LUFS" (empty means
+	// LUFS). The two are the same unit; reports and reasons use the spec's
+	// word, JSON keys keep _lufs.
+	LoudnessUnit string
 
 	Loudness LoudnessLimits
 	Format   FormatLimits
@@ -75,7 +80,12 @@ type LoudnessLimits struct {
 	ToleranceLU float64  // ± around TargetLUFS
 	// MonoTargetLUFS replaces TargetLUFS for one-channel files (podcast
 	// practice: -16 LUFS stereo, -19 LUFS mono); needs TargetLUFS.
-	MonoTargetLUFS    *float64
+	MonoTargetLUFS *float64
+	// MonoOffsetLU, when set, says the mono target is defined relative to
+	// the stereo one (podcast practice: 3 LU below): a user spec that
+	// extends this one and moves TargetLUFS without setting a mono target
+	// moves the mono target with it.
+	MonoOffsetLU      *float64
 	MinIntegratedLUFS *float64 // window, lower bound
 	MaxIntegratedLUFS *float64 // window, upper bound
 	// WarnMarginLU turns a pass into a warning when the integrated loudness
@@ -111,6 +121,13 @@ type FormatLimits struct {
 	// Layouts lists accepted channel layouts, each as channel labels in
 	// stream order (package decode's vocabulary, e.g. [L R]).
 	Layouts [][]string
+	// MinBitRateKbps and MaxBitRateKbps bound the average coded bit rate of
+	// compressed files (kbit/s); uncompressed files are not judged.
+	MinBitRateKbps *float64
+	MaxBitRateKbps *float64
+	// BitRateModes lists the accepted ways a compressed file spends its
+	// bits: "cbr", "vbr", "abr".
+	BitRateModes []string
 }
 
 // TimingLimits restrict duration and silence at the ends, in seconds.
@@ -215,6 +232,9 @@ func (s *Spec) Clone() *Spec {
 	c.Format.BitDepths = append([]int(nil), s.Format.BitDepths...)
 	c.Format.SampleFormats = append([]string(nil), s.Format.SampleFormats...)
 	c.Format.Channels = append([]int(nil), s.Format.Channels...)
+	c.Format.BitRateModes = append([]string(nil), s.Format.BitRateModes...)
+	c.Format.MinBitRateKbps = clonePtr(s.Format.MinBitRateKbps)
+	c.Format.MaxBitRateKbps = clonePtr(s.Format.MaxBitRateKbps)
 	c.Format.Layouts = nil
 	for _, l := range s.Format.Layouts {
 		c.Format.Layouts = append(c.Format.Layouts, append([]string(nil), l...))
@@ -228,6 +248,7 @@ func (s *Spec) Clone() *Spec {
 	// them is safe; copy them anyway so the clone is fully independent.
 	c.Loudness.TargetLUFS = clonePtr(s.Loudness.TargetLUFS)
 	c.Loudness.MonoTargetLUFS = clonePtr(s.Loudness.MonoTargetLUFS)
+	c.Loudness.MonoOffsetLU = clonePtr(s.Loudness.MonoOffsetLU)
 	c.Loudness.MinIntegratedLUFS = clonePtr(s.Loudness.MinIntegratedLUFS)
 	c.Loudness.MaxIntegratedLUFS = clonePtr(s.Loudness.MaxIntegratedLUFS)
 	c.Loudness.MaxTruePeakDBTP = clonePtr(s.Loudness.MaxTruePeakDBTP)
@@ -275,6 +296,14 @@ func (s *Spec) integratedWindow(channels int) (lo, hi *float64, aim float64, ok 
 		return nil, l.MaxIntegratedLUFS, *l.MaxIntegratedLUFS, true
 	}
 	return nil, nil, 0, false
+}
+
+// Unit returns the spec's loudness unit, "LUFS" or "LKFS".
+func (s *Spec) Unit() string {
+	if s.LoudnessUnit == "" {
+		return "LUFS"
+	}
+	return s.LoudnessUnit
 }
 
 // targetFor returns the integrated target for a file with the given channel

@@ -49,7 +49,8 @@ func LoadFile(path string) (*Spec, error) {
 //	            max_true_peak_dbtp, max_short_term_lufs, max_momentary_lufs,
 //	            min_lra_lu, max_lra_lu, lra_advisory
 //	[format]    containers, sample_rates_hz, bit_depths, sample_formats,
-//	            channels, layouts
+//	            channels, layouts, min_bit_rate_kbps, max_bit_rate_kbps,
+//	            bit_rate_modes
 //	[timing]    min_duration_s, max_duration_s, max_leading_silence_s,
 //	            max_trailing_silence_s
 //	[signal]    max_clip_runs, max_dc_offset_dbfs, min_correlation,
@@ -97,6 +98,7 @@ func Parse(file string, data []byte) (*Spec, error) {
 		}
 	}
 	p.crossCheck(spec)
+	p.integratedSource(spec)
 	if _, extends := raw["extends"]; !extends && len(p.set) == 0 && len(p.errs) == 0 {
 		p.errs = append(p.errs, &SpecError{File: file, Problem: "the spec sets no limits and extends no built-in spec, so every file would pass: " +
 			`add extends = "ebu-r128" (or another built-in) or a [loudness] table`})
@@ -117,6 +119,9 @@ type specParser struct {
 	source    string            // what LimitSources says for limits this file sets
 	lineSets  map[string][]int  // per check, the lines of this file that set it
 	inherited map[string]string // per check, the base's source before this file
+	// parent is the ID of the built-in this file extends, parentSource its
+	// document and marker; empty when it extends none.
+	parent, parentSource string
 }
 
 func (p *specParser) fail(key, format string, args ...any) {
@@ -150,6 +155,19 @@ func (p *specParser) base(raw map[string]any) *Spec {
 		return newSpec()
 	}
 	s.Extends = s.ID
+	p.parent = s.ID
+	p.parentSource = s.Source.String()
+	if s.Source.Marker != "" {
+		p.parentSource += " [" + s.Source.Marker + "]"
+	}
+	// The parent's description speaks of the parent's numbers: a spec that
+	// extends it says its own (Describe generates one from the effective
+	// limits when the file gives none), and the parent's notes are marked
+	// as the parent's.
+	s.Description = ""
+	for i, n := range s.Notes {
+		s.Notes[i] = fmt.Sprintf("From %s: %s", s.ID, n)
+	}
 	s.Notes = append(s.Notes, fmt.Sprintf("Extends %s: %s.", s.ID, s.Title))
 	return s
 }
@@ -299,7 +317,16 @@ func (p *specParser) crossCheck(s *Spec) {
 	case minI || maxI:
 		// A window replaces an inherited target and what hangs on it; an
 		// inherited window keeps the bound this file does not set.
-		l.TargetLUFS, l.MonoTargetLUFS, l.ToleranceLU = nil, nil, 0
+		l.TargetLUFS, l.MonoTargetLUFS, l.MonoOffsetLU, l.ToleranceLU = nil, nil, nil, 0
+	}
+	_, mono := p.set["loudness.mono_target_lufs"]
+	switch {
+	case mono:
+		l.MonoOffsetLU = nil // set on its own: no longer relative
+	case target && l.MonoOffsetLU != nil && l.MonoTargetLUFS != nil && l.TargetLUFS != nil:
+		// A mono target the base defines relative to the stereo one
+		// follows the new stereo target.
+		l.MonoTargetLUFS = ptr(*l.TargetLUFS + *l.MonoOffsetLU)
 	}
 	if _, ok := p.set["loudness.tolerance_lu"]; ok && l.TargetLUFS == nil && !(target && (minI || maxI)) {
 		p.fail("loudness.tolerance_lu", "needs target_lufs (this spec judges integrated loudness by a min/max window)")
@@ -310,6 +337,57 @@ func (p *specParser) crossCheck(s *Spec) {
 	p.ordered("loudness.min_integrated_lufs", l.MinIntegratedLUFS, "loudness.max_integrated_lufs", l.MaxIntegratedLUFS)
 	p.ordered("loudness.min_lra_lu", l.MinLRALU, "loudness.max_lra_lu", l.MaxLRALU)
 	p.ordered("timing.min_duration_s", s.Timing.MinDurationS, "timing.max_duration_s", s.Timing.MaxDurationS)
+	p.ordered("format.min_bit_rate_kbps", s.Format.MinBitRateKbps, "format.max_bit_rate_kbps", s.Format.MaxBitRateKbps)
+}
+
+// integratedSource writes where each value of the integrated requirement
+// comes from, value by value, when this file sets any of them: the file
+// and line for values it sets, the base spec's document for values it
+// inherits, and for a mono target that follows the stereo one, the offset.
+// Inherited values name the base's document, not its own wording, which
+// speaks of the base's numbers.
+func (p *specParser) integratedSource(s *Spec) {
+	keys := []string{"target_lufs", "tolerance_lu", "mono_target_lufs", "min_integrated_lufs", "max_integrated_lufs"}
+	touched := false
+	for _, k := range keys {
+		if _, ok := p.set["loudness."+k]; ok {
+			touched = true
+		}
+	}
+	if !touched {
+		return
+	}
+	from := func(key string) string {
+		if line, ok := p.set["loudness."+key]; ok {
+			return fmt.Sprintf("%s (%s line %d)", p.source, p.file, line)
+		}
+		if p.parent != "" {
+			return fmt.Sprintf("inherited from %s, %s", p.parent, p.parentSource)
+		}
+		return "kweigh default"
+	}
+	l, u := s.Loudness, s.Unit()
+	var parts []string
+	if l.TargetLUFS != nil {
+		parts = append(parts, fmt.Sprintf("target %s %s: %s", limitNum(*l.TargetLUFS), u, from("target_lufs")),
+			fmt.Sprintf("tolerance ±%s LU: %s", magnitude(l.ToleranceLU), from("tolerance_lu")))
+		if m := l.MonoTargetLUFS; m != nil {
+			_, set := p.set["loudness.mono_target_lufs"]
+			_, moved := p.set["loudness.target_lufs"]
+			if !set && moved && l.MonoOffsetLU != nil {
+				parts = append(parts, fmt.Sprintf("mono target %s %s: %s LU below the target, as %s defines it", limitNum(*m), u, magnitude(-*l.MonoOffsetLU), p.parent))
+			} else {
+				parts = append(parts, fmt.Sprintf("mono target %s %s: %s", limitNum(*m), u, from("mono_target_lufs")))
+			}
+		}
+	}
+	if v := l.MinIntegratedLUFS; v != nil {
+		parts = append(parts, fmt.Sprintf("minimum %s %s: %s", limitNum(*v), u, from("min_integrated_lufs")))
+	}
+	if v := l.MaxIntegratedLUFS; v != nil {
+		parts = append(parts, fmt.Sprintf("maximum %s %s: %s", limitNum(*v), u, from("max_integrated_lufs")))
+	}
+	s.LimitSources["integrated"] = strings.Join(parts, "; ")
 }
 
 // ordered reports min > max, at whichever of the two keys this file set

@@ -35,6 +35,9 @@ type specKey struct {
 	apply func(s *Spec, v any) string
 }
 
+// knownBitRateModes are the values of measure.Measurement.BitRateMode.
+var knownBitRateModes = []string{"cbr", "vbr", "abr"}
+
 // Known containers: the names measure.Measurement.Format uses.
 var knownContainers = []string{"wav", "rf64", "bw64", "flac", "mp3", "aiff", "aifc"}
 
@@ -63,6 +66,9 @@ var specTables = map[string][]specKey{
 		stringList("sample_formats", "sample_format", oneOf([]string{string(decode.Int), string(decode.Float)}), func(s *Spec, v []string) { s.Format.SampleFormats = v }),
 		intList("channels", "channels", 1, 64, func(s *Spec, v []int) { s.Format.Channels = v }),
 		{name: "layouts", kind: kindStringList, check: "channel_layout", apply: applyLayouts},
+		number("min_bit_rate_kbps", "bit_rate", inRange(8, 640, "kbps"), func(s *Spec, v float64) { s.Format.MinBitRateKbps = &v }),
+		number("max_bit_rate_kbps", "bit_rate", inRange(8, 640, "kbps"), func(s *Spec, v float64) { s.Format.MaxBitRateKbps = &v }),
+		stringList("bit_rate_modes", "bit_rate_mode", oneOf(knownBitRateModes), func(s *Spec, v []string) { s.Format.BitRateModes = v }),
 	},
 	"timing": {
 		number("min_duration_s", "duration", inRange(0, math.Inf(1), "s"), func(s *Spec, v float64) { s.Timing.MinDurationS = &v }),

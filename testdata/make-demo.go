@@ -37,7 +37,7 @@ func main() {
 	}
 	radio := filepath.Join(dir, "harbourlight-radio")
 	pods := filepath.Join(dir, "northgate-podcasts")
-	stream := filepath.Join(dir, "cobalt-stream")
+	stream := filepath.Join(dir, "quillbrook-stream")
 	for _, d := range []string{radio, pods, stream} {
 		must(os.MkdirAll(d, 0o755))
 	}
@@ -64,7 +64,7 @@ func main() {
 	s14 := appendSilence(level(mixStereo(speech(44100, 15), music(44100, 2, 16), 0.2), -16.0), 44100, 6)
 	encodeFLAC(filepath.Join(pods, "lamplighters-almanac-s02e14.flac"), 44100, 16, s14)
 
-	// Cobalt Stream: music streaming, FLAC.
+	// Quillbrook Stream: music streaming, FLAC.
 	q3 := level(music(44100, 2, 17), -17.5)
 	encodeFLAC(filepath.Join(stream, "quayside-sessions-ep03.flac"), 44100, 16, q3)
 	q4 := level(music(44100, 2, 18), -19.9)

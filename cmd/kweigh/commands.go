@@ -9,26 +9,33 @@ import (
 	"github.com/urfave/cli/v3"
 )
 
-// shortUsage is what a bare `kweigh` prints (to stderr, exit 2).
-const shortUsage = `usage: kweigh COMMAND [options] FILE|DIR|GLOB...
-
-  check     judge files against a delivery spec (the main job)
-  measure   measure loudness, loudness range and true peak, no judgement
-  specs     list, show or validate delivery specs
-  worker    judge files from a NATS JetStream queue (check --nats hands them out)
-  results   collect a queued batch: kweigh results --nats URL BATCH
-  version   print the version
-  help      help on a command: kweigh help check
-
-Example: kweigh check --spec ebu-r128 deliveries/
-`
+// writeShortUsage is what a bare `kweigh` prints (to stderr, exit 2): one
+// line per registered command, from the commands themselves, so a command
+// added later is listed without touching this file.
+func writeShortUsage(w io.Writer, root *cli.Command) {
+	fmt.Fprintln(w, "usage: kweigh COMMAND [options] ARGUMENTS...")
+	fmt.Fprintln(w)
+	width := 0
+	for _, c := range root.Commands {
+		if !c.Hidden {
+			width = max(width, len(c.Name))
+		}
+	}
+	for _, c := range root.Commands {
+		if !c.Hidden {
+			fmt.Fprintf(w, "  %-*s  %s\n", width, c.Name, c.Usage)
+		}
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "Example: kweigh check --spec ebu-r128 deliveries/   (kweigh help COMMAND for a command's options)")
+}
 
 // rootAction runs when no subcommand matched: no arguments at all is a
 // usage mistake with the short usage; an unknown word gets a suggestion.
 func rootAction(stderr io.Writer) cli.ActionFunc {
 	return func(_ context.Context, cmd *cli.Command) error {
 		if cmd.Args().Len() == 0 {
-			fmt.Fprint(stderr, shortUsage)
+			writeShortUsage(stderr, cmd)
 			return quietUsage{}
 		}
 		return unknownCommand(cmd, cmd.Args().First())

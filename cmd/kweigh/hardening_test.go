@@ -82,7 +82,7 @@ func TestDamagedDeliveriesAreErrors(t *testing.T) {
 	writeTestFile(t, dir, "behind-zeros.mp3", append(make([]byte, 5000), mp3...))
 	// An ID3v2.4 header (id3.org, ID3v2.4.0 structure, section 3.1) whose
 	// synchsafe size, 0x7f7f7f7f = 256 MiB, runs far past the end.
-	flac := readTestFile(t, filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac"))
+	flac := readTestFile(t, filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep03.flac"))
 	writeTestFile(t, dir, "big-tag.flac", append([]byte("ID3\x04\x00\x00\x7f\x7f\x7f\x7f"), flac...))
 	writeTestFile(t, dir, "cue-sheet.txt", []byte("00:00 opening theme\n"))
 	junit := filepath.Join(dir, "out", "results.xml")
@@ -322,7 +322,7 @@ func TestMixedFolderConcurrent(t *testing.T) {
 	dir := t.TempDir()
 	writeTestFile(t, dir, "kweigh.toml", []byte("name = \"saltmarsh-fm\"\nextends = \"ebu-r128\"\n"))
 	writeTestFile(t, dir, "a-tone.wav", lineUpWAV())
-	writeTestFile(t, dir, "b-music.flac", readTestFile(t, filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac")))
+	writeTestFile(t, dir, "b-music.flac", readTestFile(t, filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep03.flac")))
 	writeTestFile(t, dir, "c-talk.mp3", readTestFile(t, filepath.Join(demoDir, "northgate-podcasts", "lamplighters-almanac-s02e12.mp3")))
 	writeTestFile(t, dir, "d-cut.wav", lineUpWAV()[:30])
 	writeTestFile(t, dir, "e-notes.txt", []byte("running order\n"))

@@ -190,7 +190,11 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 			checkCommand(),
 			workerCommand(),
 			resultsCommand(),
+			fixCommand(),
 			specsCommand(),
+			watchCommand(),
+			historyCommand(),
+			serveCommand(),
 			versionCommand(),
 		},
 	}

@@ -57,8 +57,8 @@ func TestDemoVerdicts(t *testing.T) {
 		spec, verdict string
 		failing       []string // check ids that must fail
 	}{
-		"cobalt-stream/quayside-sessions-ep03.flac":           {"cobalt-stream", "pass", nil},
-		"cobalt-stream/quayside-sessions-ep04.flac":           {"cobalt-stream", "warn", nil},
+		"quillbrook-stream/quayside-sessions-ep03.flac":       {"quillbrook-stream", "pass", nil},
+		"quillbrook-stream/quayside-sessions-ep04.flac":       {"quillbrook-stream", "warn", nil},
 		"harbourlight-radio/archive-interview-1987.wav":       {"harbourlight-radio", "error", nil},
 		"harbourlight-radio/harbour-lights-promo.wav":         {"harbourlight-radio", "fail", []string{"true_peak"}},
 		"harbourlight-radio/tidewater-evenings-ep07.wav":      {"harbourlight-radio", "pass", nil},
@@ -119,8 +119,8 @@ func TestCheckExitStatus(t *testing.T) {
 	}{
 		{"pass", []string{"check", filepath.Join(radio, "tidewater-evenings-ep07.wav")}, exitOK},
 		{"fail", []string{"check", filepath.Join(radio, "tidewater-evenings-ep08.wav")}, exitFailed},
-		{"warn is a pass", []string{"check", filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep04.flac")}, exitOK},
-		{"warn with --strict fails", []string{"check", "--strict", filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep04.flac")}, exitFailed},
+		{"warn is a pass", []string{"check", filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep04.flac")}, exitOK},
+		{"warn with --strict fails", []string{"check", "--strict", filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep04.flac")}, exitFailed},
 		{"unmeasurable", []string{"check", filepath.Join(radio, "archive-interview-1987.wav")}, exitTrouble},
 		{"no such file", []string{"check", "--spec", "ebu-r128", "no/such/file.wav"}, exitTrouble},
 		{"unknown spec", []string{"check", "--spec", "no-such-spec", radio}, exitTrouble},
@@ -209,7 +209,7 @@ func TestMeasureJSONLStreamsEveryFile(t *testing.T) {
 func TestOutputFileKeepsTextOnTerminal(t *testing.T) {
 	dir := t.TempDir()
 	xmlPath := filepath.Join(dir, "results.xml")
-	code, out, _ := kweigh(t, "check", "--format", "junit", "--output", xmlPath, filepath.Join(demoDir, "cobalt-stream"))
+	code, out, _ := kweigh(t, "check", "--format", "junit", "--output", xmlPath, filepath.Join(demoDir, "quillbrook-stream"))
 	if code != exitOK {
 		t.Fatalf("exit %d", code)
 	}
@@ -356,7 +356,7 @@ func TestReportAndPlots(t *testing.T) {
 	dir := t.TempDir()
 	report := filepath.Join(dir, "qc.html")
 	plots := filepath.Join(dir, "plots")
-	code, _, errOut := kweigh(t, "check", "--report", report, "--plots", plots, filepath.Join(demoDir, "cobalt-stream"))
+	code, _, errOut := kweigh(t, "check", "--report", report, "--plots", plots, filepath.Join(demoDir, "quillbrook-stream"))
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errOut)
 	}
@@ -403,7 +403,7 @@ func TestEmptyDeliveryIsAnError(t *testing.T) {
 }
 
 func TestSkipFlacMD5(t *testing.T) {
-	file := filepath.Join(demoDir, "cobalt-stream", "quayside-sessions-ep03.flac")
+	file := filepath.Join(demoDir, "quillbrook-stream", "quayside-sessions-ep03.flac")
 	for _, tc := range []struct {
 		args []string
 		note bool

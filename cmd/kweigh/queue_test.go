@@ -18,24 +18,6 @@ import (
 	"github.com/kweigh/kweigh/queue"
 )
 
-// lockedBuffer collects a process's stderr while the test reads it.
-type lockedBuffer struct {
-	mu  sync.Mutex
-	buf bytes.Buffer
-}
-
-func (b *lockedBuffer) Write(p []byte) (int, error) {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.buf.Write(p)
-}
-
-func (b *lockedBuffer) String() string {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.buf.String()
-}
-
 // worker is a real kweigh worker process.
 type worker struct {
 	cmd *exec.Cmd

@@ -2,10 +2,8 @@ package flac
 
 import (
 	"bytes"
-	"errors"
 	"path/filepath"
 	"reflect"
-	"strings"
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
@@ -144,15 +142,19 @@ func TestMatch(t *testing.T) {
 	}
 }
 
-func TestThirtyTwoBitUnsupported(t *testing.T) {
-	data := audiotest.Fixture(t, "mono32-48k.flac")
-	_, err := NewDecoder(bytes.NewReader(data), int64(len(data)), DefaultOptions())
-	var ue *decode.UnsupportedError
-	if !errors.As(err, &ue) {
-		t.Fatalf("err = %v, want *decode.UnsupportedError", err)
+func TestThirtyTwoBitFixture(t *testing.T) {
+	// mono32-48k.flac was written by flac 1.4.2 from a 32-bit WAV
+	// (make-fixtures.sh); the MD5 in its STREAMINFO is the encoder's MD5 of
+	// that WAV's samples, so a verified MD5 proves every sample exact.
+	got, err, d := decodeAll(t, audiotest.Fixture(t, "mono32-48k.flac"), DefaultOptions(), 1000)
+	if err != nil {
+		t.Fatal(err)
 	}
-	if !strings.Contains(err.Error(), "32-bit") {
-		t.Errorf("error %q does not name the sample size", err)
+	if info := d.Info(); info.BitsPerSample != 32 || info.Frames != 2400 || len(got) != 2400 {
+		t.Fatalf("info %+v, %d samples; want 32 bits, 2400 frames (0.05 s at 48 kHz)", info, len(got))
+	}
+	if !d.MD5Verified() {
+		t.Error("MD5 not verified")
 	}
 }
 

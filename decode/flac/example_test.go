@@ -51,3 +51,31 @@ func Example_skipMD5() {
 	// Output:
 	// [FLAC MD5 verification turned off: only the frame checksums were checked]
 }
+
+// A damaged file (one bit flipped in the middle of stereo24-48k.flac, see
+// testdata/README.md) is decoded to its end: the frame that fails its
+// checksum is skipped, the frames after it are delivered, and the error
+// that comes with the last of them says what was lost.
+func Example_damaged() {
+	f, err := decode.Open("testdata/stereo24-48k-bitflip.flac")
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer f.Close()
+	buf := make([]float64, 4096*f.Info().Channels)
+	var frames int
+	for {
+		n, err := f.ReadFrames(buf)
+		frames += n
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			fmt.Println(err)
+		}
+	}
+	fmt.Println(frames, "of", f.Info().Frames, "frames delivered")
+	// Output:
+	// damaged flac file at byte 33330: frame 3 at byte 33330: frame CRC-16 is 0x17a4, computed 0x2a51; resumed at the next valid frame, byte 43582: 4096 samples per channel (0.085 s) lost
+	// 24704 of 28800 frames delivered
+}

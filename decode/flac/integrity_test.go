@@ -12,21 +12,38 @@ import (
 )
 
 func TestBitFlipFixtureIsDamaged(t *testing.T) {
-	// make-fixtures.sh flips one bit in the middle of stereo24-48k.flac;
-	// the reference decoder (flac -t) reports a frame CRC mismatch there.
-	got, err, _ := decodeAll(t, audiotest.Fixture(t, "stereo24-48k-bitflip.flac"), DefaultOptions(), 4096)
+	// make-fixtures.sh flips one bit of the byte at 37815 (half the file)
+	// in stereo24-48k.flac; the reference decoder (flac -t) reports a frame
+	// CRC mismatch there. The decoder must skip that frame, resume at the
+	// next one and say how much was lost: one 4096-sample block (the
+	// block size flac --best uses at 48 kHz).
+	data := audiotest.Fixture(t, "stereo24-48k-bitflip.flac")
+	offs := frameOffsets(t, audiotest.Fixture(t, "stereo24-48k.flac"))
+	k := 0
+	for offs[k+1] <= 37815 {
+		k++
+	}
+	got, err, d := decodeAll(t, data, DefaultOptions(), 4096)
 	if !isIntegrity(err) {
 		t.Fatalf("err = %v, want *decode.IntegrityError", err)
 	}
-	want := audiotest.FixtureWAV(t, "stereo24-48k.wav").Scaled()
-	if len(got) == 0 || len(got) >= len(want) {
-		t.Fatalf("delivered %d samples before the damage, want some but fewer than %d", len(got), len(want))
+	for _, want := range []string{fmt.Sprintf("frame %d at byte %d", k, offs[k]), "CRC-16",
+		fmt.Sprintf("next valid frame, byte %d", offs[k+1]), "4096 samples per channel (0.085 s) lost"} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("error %q does not say %q", err, want)
+		}
 	}
-	if !reflect.DeepEqual(got, want[:len(got)]) {
-		t.Error("samples delivered before the damage differ from the source")
+	src := audiotest.FixtureWAV(t, "stereo24-48k.wav").Scaled()
+	want := append(clone64(src[:2*k*4096]), src[2*(k+1)*4096:]...)
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("delivered %d samples; want the %d of the source without frame %d", len(got), len(want), k)
 	}
-	t.Logf("%v (after %d of %d frames)", err, len(got)/2, len(want)/2)
+	if d.MD5Verified() {
+		t.Error("MD5 reported verified for a damaged stream")
+	}
 }
+
+func clone64(b []float64) []float64 { return append([]float64(nil), b...) }
 
 func TestCRCValidFlipCaughtByMD5(t *testing.T) {
 	// Flip one audio bit and repair the frame's CRC-16 so that only the MD5
@@ -92,6 +109,8 @@ func TestStreamInfoEdits(t *testing.T) {
 	copy(noLength[totalSamplesByte+1:totalSamplesByte+5], make([]byte, 4))
 	longer := clone(data)
 	longer[totalSamplesByte+4]++ // declares one sample more than the stream holds
+	shorter := clone(data)
+	shorter[totalSamplesByte+4]-- // declares one sample fewer
 	trailing := append(clone(data), append([]byte("TAG"), make([]byte, 125)...)...)
 
 	tests := []struct {
@@ -109,6 +128,7 @@ func TestStreamInfoEdits(t *testing.T) {
 		{"MD5 all zero", zeroMD5, DefaultOptions(), "", false, 66150, "no MD5 signature"},
 		{"length unknown", noLength, DefaultOptions(), "", true, -1, ""},
 		{"declares one sample more", longer, DefaultOptions(), "STREAMINFO declares 66151", false, 66151, ""},
+		{"declares one sample fewer", shorter, DefaultOptions(), "the stream holds 66150 samples per channel, STREAMINFO declares 66149", false, 66149, ""},
 		{"ID3v1 tag after the frames", trailing, DefaultOptions(), "", true, 66150, "ignored the bytes after the last FLAC frame"},
 	}
 	for _, tc := range tests {

@@ -2,12 +2,10 @@ package flac
 
 import (
 	"fmt"
-	"io"
 	"strconv"
 	"strings"
 
 	"github.com/kweigh/kweigh/decode"
-	"github.com/mewkiz/flac/meta"
 )
 
 // flacOrder is FLAC's defined channel order for each channel count (FLAC
@@ -37,22 +35,19 @@ var flacOrder = [9][]string{
 // "WAVEFORMATEXTENSIBLE_CHANNEL_MASK=0x0033").
 const maskTag = "WAVEFORMATEXTENSIBLE_CHANNEL_MASK"
 
-// maxMetadataBlocks bounds the metadata walk of a damaged file.
-const maxMetadataBlocks = 1 << 12
-
 // channelLayout returns the layout and channel mask of a stream with the
-// given channel count. It reads the Vorbis comment through r, walking the
-// metadata blocks that follow the signature at start, and falls back to
-// FLAC's defined order. A note explains a mask it could not use.
-func channelLayout(r io.ReaderAt, start, size int64, channels int) (labels []string, mask uint32, note string) {
+// given channel count: the channel-mask tag of the Vorbis comment when it
+// names as many channels as the stream has, else FLAC's defined order. A
+// note explains a mask it could not use.
+func channelLayout(md *metadata, channels int) (labels []string, mask uint32, note string) {
 	labels = append([]string(nil), flacOrder[channels]...)
-	value, found, err := findMaskTag(r, start, size)
 	switch {
-	case err != nil:
-		return labels, 0, fmt.Sprintf("could not read the Vorbis comment (%v); assuming FLAC's channel order", err)
-	case !found:
+	case md.commentErr != nil:
+		return labels, 0, fmt.Sprintf("could not read the Vorbis comment (%v); assuming FLAC's channel order", md.commentErr)
+	case !md.maskFound:
 		return labels, 0, ""
 	}
+	value := md.maskValue
 	m, err := strconv.ParseUint(strings.TrimSpace(value), 0, 32)
 	if err != nil || m == 0 {
 		return labels, 0, fmt.Sprintf("ignoring %s=%q: not a channel mask; assuming FLAC's channel order", maskTag, value)
@@ -62,44 +57,4 @@ func channelLayout(r io.ReaderAt, start, size int64, channels int) (labels []str
 			maskTag, value, decode.MaskChannels(uint32(m)), channels)
 	}
 	return decode.LayoutFromMask(uint32(m), channels), uint32(m), ""
-}
-
-// findMaskTag walks the metadata blocks (FLAC format, METADATA_BLOCK_HEADER:
-// 1 bit last-block flag, 7 bits type, 24 bits length) and returns the value
-// of the channel-mask tag of the first Vorbis comment block.
-func findMaskTag(r io.ReaderAt, start, size int64) (value string, found bool, err error) {
-	off := start + int64(len(signature))
-	for range maxMetadataBlocks {
-		var head [4]byte
-		if n, _ := r.ReadAt(head[:], off); n < len(head) {
-			return "", false, nil // the stream decoder reports the truncation
-		}
-		last := head[0]&0x80 != 0
-		typ := meta.Type(head[0] & 0x7F)
-		length := int64(head[1])<<16 | int64(head[2])<<8 | int64(head[3])
-		if typ == meta.TypeVorbisComment {
-			if off+4+length > size {
-				return "", false, fmt.Errorf("the block at byte %d runs past the end of the file", off)
-			}
-			block, err := meta.Parse(io.NewSectionReader(r, off, 4+length))
-			if err != nil {
-				return "", false, err
-			}
-			comment, _ := block.Body.(*meta.VorbisComment)
-			if comment == nil {
-				return "", false, nil
-			}
-			for _, tag := range comment.Tags {
-				if strings.EqualFold(tag[0], maskTag) {
-					return tag[1], true, nil
-				}
-			}
-			return "", false, nil
-		}
-		off += 4 + length
-		if last || off >= size {
-			return "", false, nil
-		}
-	}
-	return "", false, nil
 }

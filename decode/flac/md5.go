@@ -2,17 +2,16 @@ package flac
 
 import (
 	"crypto/md5"
+	"encoding/binary"
 	"hash"
-
-	"github.com/mewkiz/flac/frame"
 )
 
-// sampleHash is the running MD5 of the decoded samples as the FLAC format
-// defines it for STREAMINFO: every sample of every channel, interleaved,
-// signed little-endian in ceil(bits/8) bytes (FLAC format, METADATA_BLOCK_
-// STREAMINFO, "MD5 signature of the unencoded audio data"). It packs each
-// frame into one reused buffer and hashes it with a single Write, where
-// frame.Frame.Hash would call Write once per sample.
+// sampleHash is the running MD5 of the decoded samples as STREAMINFO
+// defines it (RFC 9639, section 8.2): every sample of every channel,
+// interleaved, signed little-endian in ceil(bits/8) bytes. pack lays a
+// frame out in one reused buffer (and measures the samples' spread on the
+// way, which the range check needs anyway); write hashes it with a single
+// Write once the frame is known to be good.
 type sampleHash struct {
 	h     hash.Hash
 	width int // bytes per sample
@@ -23,38 +22,83 @@ func newSampleHash(bitsPerSample int) *sampleHash {
 	return &sampleHash{h: md5.New(), width: (bitsPerSample + 7) / 8}
 }
 
-// addFrame hashes the samples of a decoded frame.
-func (s *sampleHash) addFrame(f *frame.Frame) {
-	n := int(f.BlockSize) * len(f.Subframes) * s.width
-	if cap(s.buf) < n {
-		s.buf = make([]byte, n)
+// fold maps a sample to a value whose highest set bit is the highest bit
+// that differs from the sign: a sample fits b bits exactly when the OR of
+// the folded samples is below 2^(b-1).
+func fold(v int32) uint32 { return uint32(v ^ v>>31) }
+
+// pack lays out the first n samples of each channel and returns the OR of
+// their folded values.
+func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
+	size := n * len(channels) * s.width
+	if cap(s.buf) < size+8 {
+		s.buf = make([]byte, size+8) // 3-byte samples are stored 4 at a time
 	}
-	buf := s.buf[:n]
-	step := len(f.Subframes) * s.width
-	for c, sub := range f.Subframes {
-		j := c * s.width
-		switch s.width {
-		case 1:
-			for _, v := range sub.Samples {
-				buf[j] = byte(v)
-				j += step
+	buf := s.buf[:size+8]
+	var spread uint32
+	switch {
+	case len(channels) == 2 && s.width == 3:
+		l, r := channels[0][:n], channels[1][:n]
+		r = r[:len(l)]
+		for i, a := range l {
+			b := r[i]
+			spread |= fold(a) | fold(b)
+			o := buf[6*i : 6*i+8 : 6*i+8]
+			binary.LittleEndian.PutUint32(o[0:4], uint32(a))
+			binary.LittleEndian.PutUint32(o[3:7], uint32(b))
+		}
+	case len(channels) == 2 && s.width == 2:
+		l, r := channels[0][:n], channels[1][:n]
+		r = r[:len(l)]
+		for i, a := range l {
+			b := r[i]
+			spread |= fold(a) | fold(b)
+			o := buf[4*i : 4*i+4 : 4*i+4]
+			binary.LittleEndian.PutUint32(o, uint32(uint16(a))|uint32(b)<<16)
+		}
+	case s.width == 3 || s.width == 4:
+		// The fourth byte of a 3-byte sample is overwritten by the next.
+		j := 0
+		for i := range n {
+			for _, c := range channels {
+				v := c[i]
+				spread |= fold(v)
+				binary.LittleEndian.PutUint32(buf[j:], uint32(v))
+				j += s.width
 			}
-		case 2:
-			for _, v := range sub.Samples {
-				buf[j] = byte(v)
-				buf[j+1] = byte(v >> 8)
-				j += step
-			}
-		default:
-			for _, v := range sub.Samples {
-				buf[j] = byte(v)
-				buf[j+1] = byte(v >> 8)
-				buf[j+2] = byte(v >> 16)
-				j += step
+		}
+	default:
+		j := 0
+		for i := range n {
+			for _, c := range channels {
+				v := c[i]
+				spread |= fold(v)
+				if s.width == 1 {
+					buf[j] = byte(v)
+				} else {
+					binary.LittleEndian.PutUint16(buf[j:], uint16(v))
+				}
+				j += s.width
 			}
 		}
 	}
-	s.h.Write(buf)
+	s.buf = s.buf[:size]
+	return spread
+}
+
+// write hashes the frame pack laid out.
+func (s *sampleHash) write() { s.h.Write(s.buf) }
+
+// spreadOf returns the OR of the folded values of the first n samples of
+// each channel (the range check when no MD5 is computed).
+func spreadOf(channels [][]int32, n int) uint32 {
+	var spread uint32
+	for _, c := range channels {
+		for _, v := range c[:n] {
+			spread |= fold(v)
+		}
+	}
+	return spread
 }
 
 // sum returns the MD5 of everything hashed so far.

@@ -167,7 +167,7 @@ func shortTermHistogram(e Entry, id string) string {
 			s.rect(x0+0.5, py, max(x1-x0-1, 0.5), histBottom-py, `fill="`+inkSkyBlue+`" stroke="`+inkBlue+`" stroke-width="0.6"`)
 		}
 	} else {
-		s.text((histLeft+histRight)/2, (histTop+histBottom)/2, "middle", ` fill="`+inkAxis+`"`, "no short-term loudness above -70 LUFS")
+		s.text((histLeft+histRight)/2, (histTop+histBottom)/2, "middle", ` fill="`+inkAxis+`"`, "no short-term loudness above -70 "+r.Unit())
 	}
 	if r.IntegratedLUFS != nil {
 		px := x.at(*r.IntegratedLUFS)
@@ -178,7 +178,7 @@ func shortTermHistogram(e Entry, id string) string {
 		s.line(px, histBottom, px, histBottom+4, inkAxis, 1, "")
 		s.text(px, histBottom+17, "middle", ` fill="`+inkAxis+`"`, strconv.FormatFloat(v, 'f', -1, 64))
 	}
-	s.text(histLeft, histBottom+34, "start", ` fill="`+inkAxis+`" font-size="11"`, "short-term loudness (LUFS), 1 LU bins; height = share of time")
+	s.text(histLeft, histBottom+34, "start", ` fill="`+inkAxis+`" font-size="11"`, "short-term loudness ("+r.Unit()+"), 1 LU bins; height = share of time")
 	s.rect(histLeft, histBottom+42, 22, 10, `fill="url(#`+id+`lra)" stroke="`+inkAxis+`" stroke-width="0.5"`)
 	s.text(histLeft+28, histBottom+51, "start", ` font-size="11"`, "10th–95th percentile (EBU Tech 3342)")
 	s.line(histLeft+248, histBottom+47, histLeft+272, histBottom+47, inkBlack, 1.5, "9 4")
@@ -249,10 +249,11 @@ func niceCeiling(v float64) float64 {
 }
 
 func histDescription(e Entry, region rangeRegion, counted int) string {
-	d := "Distribution of " + strconv.Itoa(counted) + " short-term loudness values (100 ms steps) above -70 LUFS"
+	u := e.Result.Unit()
+	d := "Distribution of " + strconv.Itoa(counted) + " short-term loudness values (100 ms steps) above -70 " + u
 	if region.ok {
 		low, high := region.low, region.high
-		d += "; loudness range region " + reports.Loudness(&low) + " to " + reports.Loudness(&high) + " LUFS; measured loudness range " + reports.Loudness(e.Result.LoudnessRangeLU) + " LU"
+		d += "; loudness range region " + reports.Loudness(&low) + " to " + reports.Loudness(&high) + " " + u + "; measured loudness range " + reports.Loudness(e.Result.LoudnessRangeLU) + " LU"
 	}
 	return d + "."
 }

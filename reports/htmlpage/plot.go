@@ -266,7 +266,7 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 	}
 	s.text(plotLeft, areaBottom+38, "start", ` fill="`+inkAxis+`" font-size="11"`, "time (h:mm:ss)")
 	s.printf(`<text x="16" y="%s" text-anchor="middle" transform="rotate(-90 16 %s)" fill="%s" font-size="11">%s</text>`+"\n",
-		num((areaTop+areaBottom)/2), num((areaTop+areaBottom)/2), inkAxis, levelAxisLabel(t))
+		num((areaTop+areaBottom)/2), num((areaTop+areaBottom)/2), inkAxis, levelAxisLabel(t, e.Result.Unit()))
 
 	// Curves: momentary below, short-term above it.
 	drawn := false
@@ -292,7 +292,7 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 	if r.IntegratedLUFS != nil {
 		py := y.at(*r.IntegratedLUFS)
 		s.line(plotLeft, py, plotRight, py, inkBlack, 1.5, "9 4")
-		labels = append(labels, valueLabel{py, "I " + reports.Loudness(r.IntegratedLUFS) + " LUFS", inkBlack, "bold"})
+		labels = append(labels, valueLabel{py, "I " + reports.Loudness(r.IntegratedLUFS) + " " + r.Unit(), inkBlack, "bold"})
 	}
 	if t.IntegratedLUFS != nil {
 		labels = append(labels, valueLabel{y.at(*t.IntegratedLUFS), "target " + reports.Loudness(t.IntegratedLUFS), "#00694D", ""})
@@ -326,13 +326,14 @@ func loudnessPlot(e Entry, id string, standalone bool) string {
 	return s.close()
 }
 
-// levelAxisLabel names the level axis' units: LUFS for the curves, and
-// dBTP only when a true-peak ceiling is drawn on the same axis.
-func levelAxisLabel(t Target) string {
+// levelAxisLabel names the level axis' units: the spec's loudness unit
+// (LUFS or LKFS) for the curves, and dBTP only when a true-peak ceiling is
+// drawn on the same axis.
+func levelAxisLabel(t Target, unit string) string {
 	if t.TruePeakCeilingDBTP != nil {
-		return "level: LUFS (curves), dBTP (ceiling)"
+		return "level: " + unit + " (curves), dBTP (ceiling)"
 	}
-	return "level: LUFS"
+	return "level: " + unit
 }
 
 // plotDescription is the plot's text alternative.
@@ -340,11 +341,11 @@ func plotDescription(e Entry) string {
 	r := e.Result
 	parts := []string{
 		"Short-term and momentary loudness over " + reports.Clock(seriesDuration(e)),
-		"integrated " + reports.Loudness(r.IntegratedLUFS) + " LUFS",
+		"integrated " + reports.Loudness(r.IntegratedLUFS) + " " + r.Unit(),
 	}
 	if t := e.Target.IntegratedLUFS; t != nil {
 		tol := tolerance(e.Target)
-		parts = append(parts, "target "+reports.Loudness(t)+" LUFS ±"+reports.Loudness(&tol)+" LU")
+		parts = append(parts, "target "+reports.Loudness(t)+" "+r.Unit()+" ±"+reports.Loudness(&tol)+" LU")
 	}
 	if c := e.Target.TruePeakCeilingDBTP; c != nil && r.Series != nil {
 		if n := countOvers(r.Series, *c); r.Series.Step <= 1 {
@@ -415,7 +416,7 @@ func legend(s *svgDoc, e Entry, overs int) {
 		item(func(x, y float64) {
 			s.rect(x, y-6, 28, 12, `fill="`+inkGreen+`" fill-opacity="0.16" stroke="`+inkGreen+`" stroke-dasharray="4 3"`)
 			s.line(x, y, x+28, y, inkGreen, 1, "")
-		}, "target "+reports.Loudness(t.IntegratedLUFS)+" LUFS ±"+reports.Loudness(&tol)+" LU")
+		}, "target "+reports.Loudness(t.IntegratedLUFS)+" "+e.Result.Unit()+" ±"+reports.Loudness(&tol)+" LU")
 	}
 	if c := e.Target.TruePeakCeilingDBTP; c != nil {
 		item(lineSample(inkVermillion, 1.5, "7 3 1.5 3"), "true-peak ceiling "+reports.Peak(c)+" dBTP")

@@ -164,12 +164,12 @@ func buildFile(i int, e Entry) fileView {
 	}
 	lead, trail := r.Signal.LeadingSilenceS, r.Signal.TrailingSilenceS
 	f.Figures = []figureView{
-		{Label: "Integrated", Value: f.Integrated, Unit: "LUFS"},
+		{Label: "Integrated", Value: f.Integrated, Unit: r.Unit()},
 		{Label: "Loudness range", Value: f.LRA, Unit: "LU"},
 		{Label: "True peak", Value: f.TruePeak, Unit: "dBTP"},
 		{Label: "Sample peak", Value: reports.Peak(r.SamplePeakDBFS), Unit: "dBFS"},
-		{Label: "Max momentary", Value: reports.Loudness(r.MaxMomentaryLUFS), Unit: "LUFS"},
-		{Label: "Max short-term", Value: reports.Loudness(r.MaxShortTermLUFS), Unit: "LUFS"},
+		{Label: "Max momentary", Value: reports.Loudness(r.MaxMomentaryLUFS), Unit: r.Unit()},
+		{Label: "Max short-term", Value: reports.Loudness(r.MaxShortTermLUFS), Unit: r.Unit()},
 		{Label: "Leading silence", Value: reports.Fixed(lead, reports.UnitDecimals("s")), Unit: "s"},
 		{Label: "Trailing silence", Value: reports.Fixed(trail, reports.UnitDecimals("s")), Unit: "s"},
 	}
@@ -194,7 +194,7 @@ func buildFile(i int, e Entry) fileView {
 		f.GainRaises = *r.SuggestedGainDB > 0
 	}
 	if r.LimiterReductionDB != nil {
-		f.Limiter = reports.Measured(*r.LimiterReductionDB, "dB")
+		f.Limiter = reports.Adjustment(*r.LimiterReductionDB) + " dB"
 	}
 	return f
 }
