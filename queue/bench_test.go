@@ -1,9 +1,11 @@
 package queue_test
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"testing"
 	"time"
@@ -16,8 +18,8 @@ import (
 
 // BenchmarkBatch200 submits 200 short files (5 s of 48 kHz stereo 16-bit
 // each, so 16.7 minutes of audio) and waits for every result, on one and on
-// two local workers of one job each, against an embedded server in the
-// same process. Each operation is one whole batch, uploads included (the
+// two local worker processes (the real binary, built first) of one job
+// each, against a server embedded in the benchmark's process. Each operation is one whole batch, uploads included (the
 // audio is already in the store from the second operation on, as for a
 // batch submitted again). The figure that matters is the ratio of the two.
 func BenchmarkBatch200(b *testing.B) {
@@ -36,15 +38,32 @@ func BenchmarkBatch200(b *testing.B) {
 	spec, _ := engine.LoadSpec("ebu-r128")
 	opt := queue.SubmitOptions{Spec: spec, SpecRef: queue.SpecRef{Builtin: "ebu-r128"}}
 	srv := natstest.Start(b, b.TempDir())
+	bin := filepath.Join(b.TempDir(), "kweigh")
+	if out, err := exec.Command("go", "build", "-o", bin, "../cmd/kweigh").CombinedOutput(); err != nil {
+		b.Fatalf("go build: %v\n%s", err, out)
+	}
 	for _, workers := range []int{1, 2} {
 		b.Run(fmt.Sprintf("workers=%d", workers), func(b *testing.B) {
 			prefix := fmt.Sprintf("BENCH%d", workers)
 			q := connect(b, srv.URL, prefix)
 			ctx, cancel := context.WithCancel(context.Background())
-			defer cancel()
+			var procs []*exec.Cmd
+			defer func() {
+				cancel()
+				for _, w := range procs {
+					w.Wait()
+				}
+			}()
+			// The workers are real kweigh worker processes, as in use:
+			// in this process they would share its Go scheduler with the
+			// server and the submitter.
 			for i := 0; i < workers; i++ {
-				wq := connect(b, srv.URL, prefix)
-				go wq.Work(ctx, queue.Config{Jobs: 1, AckWait: 30 * time.Second, Drain: time.Second})
+				w := exec.CommandContext(ctx, bin, "worker", "--nats", srv.URL, "--queue-prefix", prefix, "--jobs", "1", "--name", fmt.Sprintf("bench-%d", i))
+				w.Stderr = benchLog
+				if err := w.Start(); err != nil {
+					b.Fatal(err)
+				}
+				procs = append(procs, w)
 			}
 			b.ResetTimer()
 			for i := 0; i < b.N; i++ {
@@ -63,4 +82,17 @@ func BenchmarkBatch200(b *testing.B) {
 			b.ReportMetric(float64(len(targets))*float64(b.N)/b.Elapsed().Seconds(), "files/s")
 		})
 	}
+}
+
+// benchLog shows a worker's problems (not its per-job lines) during a
+// benchmark.
+var benchLog = problemsOnly{}
+
+type problemsOnly struct{}
+
+func (problemsOnly) Write(p []byte) (int, error) {
+	if bytes.Contains(p, []byte("fetching")) || bytes.Contains(p, []byte("not published")) {
+		os.Stderr.Write(p)
+	}
+	return len(p), nil
 }

@@ -128,6 +128,7 @@ func (q *Queue) Work(ctx context.Context, cfg Config) error {
 					q.handle(ctx, jobCtx, cfg, msg, logf)
 				}
 				if err := batch.Error(); err != nil && ctx.Err() == nil && !errors.Is(err, jetstream.ErrNoMessages) && !errors.Is(err, context.DeadlineExceeded) {
+					logf("fetching jobs: %v", err)
 					time.Sleep(250 * time.Millisecond)
 				}
 			}
