@@ -19,15 +19,23 @@ import (
 
 // worker is a real kweigh worker process.
 type worker struct {
-	cmd *exec.Cmd
-	log *lockedBuffer
+	cmd    *exec.Cmd
+	log    *lockedBuffer
+	exited chan struct{} // closed once the process has been waited for
+	err    error         // Wait's error, set before exited is closed
+}
+
+// wait waits for the process to end (Wait is called once, by startWorker).
+func (w *worker) wait() error {
+	<-w.exited
+	return w.err
 }
 
 // startWorker runs the binary as a worker with short timings and extra
 // environment (the test hooks).
 func startWorker(t *testing.T, url, prefix, name string, env ...string) *worker {
 	t.Helper()
-	w := &worker{log: &lockedBuffer{}}
+	w := &worker{log: &lockedBuffer{}, exited: make(chan struct{})}
 	w.cmd = exec.Command(kweighBinary(t), "worker", "--nats", url, "--queue-prefix", prefix, "--name", name,
 		"--jobs", "1", "--ack-wait", "1s", "--max-deliveries", "2", "--drain", "500ms")
 	w.cmd.Env = append(os.Environ(), env...)
@@ -35,11 +43,10 @@ func startWorker(t *testing.T, url, prefix, name string, env ...string) *worker 
 	if err := w.cmd.Start(); err != nil {
 		t.Fatal(err)
 	}
+	go func() { w.err = w.cmd.Wait(); close(w.exited) }()
 	t.Cleanup(func() {
-		if w.cmd.ProcessState == nil {
-			w.cmd.Process.Kill()
-			w.cmd.Wait()
-		}
+		w.cmd.Process.Kill()
+		w.wait()
 	})
 	return w
 }
@@ -124,7 +131,7 @@ func TestQueueWorkerKilledMidJob(t *testing.T) {
 	if err := victim.cmd.Process.Signal(syscall.SIGKILL); err != nil {
 		t.Fatal(err)
 	}
-	victim.cmd.Wait()
+	victim.wait()
 	rescuer := startWorker(t, srv.URL, "KILLED", "rescuer")
 	got := <-res
 	if got.code != wantCode || strings.Join(got.lines, "\n") != strings.Join(want, "\n") {
@@ -155,11 +162,12 @@ func TestQueuePoisonFile(t *testing.T) {
 	crashes := 0
 	for lines == nil {
 		w := startWorker(t, srv.URL, "POISON", "poisoned", crashOnEnv+"=reed-bed-poison.wav")
-		exited := make(chan struct{})
-		go func() { w.cmd.Wait(); close(exited) }()
 		select {
 		case lines = <-res:
-		case <-exited:
+			if lines == nil {
+				t.Fatalf("check --nats printed no records: exit %d, stderr %s", code, stderr)
+			}
+		case <-w.exited:
 			crashes++
 			if crashes > 4 {
 				t.Fatalf("%d crashes and no end to the poison loop; last log:\n%s", crashes, w.log.String())
@@ -192,7 +200,7 @@ func TestQueueWorkerSIGTERMHandsBack(t *testing.T) {
 	w.waitFor(t, "heron-hour-1.wav: judging", 30*time.Second)
 	w.cmd.Process.Signal(syscall.SIGTERM)
 	w.waitFor(t, "handed back", 5*time.Second)
-	if err := w.cmd.Wait(); err != nil {
+	if err := w.wait(); err != nil {
 		t.Errorf("worker after SIGTERM: %v\n%s", err, w.log.String())
 	}
 	next := startWorker(t, srv.URL, "TERM", "next")
