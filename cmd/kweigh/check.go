@@ -18,7 +18,9 @@ func checkCommand() *cli.Command {
 	flags := append(batchFlags(reports.CheckFormats()),
 		&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` for every file: a built-in id (see 'kweigh specs') or a TOML file; without it each file is judged by the nearest kweigh.toml, from its folder upwards"},
 		&cli.BoolFlag{Name: "strict", Usage: "treat warnings as failures (exit 1)"},
+		&cli.BoolFlag{Name: "detach", Usage: "with --nats: submit the batch, print its id and exit; 'kweigh results' collects it"},
 	)
+	flags = append(flags, queueFlags(false)...)
 	return &cli.Command{
 		Name:      "check",
 		Usage:     "judge files against a delivery spec: verdict, reasons and the gain that fixes them",
@@ -44,6 +46,14 @@ func checkCommand() *cli.Command {
 				if co.spec, err = loadSpec(name); err != nil {
 					return err
 				}
+				co.specName = name
+			}
+			if dial, ok, err := readDial(cmd, "check"); err != nil {
+				return err
+			} else if ok {
+				co.remote = &remoteOptions{dial: dial, detach: cmd.Bool("detach")}
+			} else if cmd.Bool("detach") {
+				return usagef("--detach needs --nats URL")
 			}
 			return runCheck(ctx, co, cmd.Args().Slice(), cmd.Root().Writer, cmd.Root().ErrWriter)
 		},
@@ -53,8 +63,10 @@ func checkCommand() *cli.Command {
 // checkOptions are check's options beyond the batch ones.
 type checkOptions struct {
 	batchOptions
-	spec   *rules.Spec // from --spec; nil when not given
-	strict bool
+	spec     *rules.Spec // from --spec; nil when not given
+	specName string      // --spec as given
+	strict   bool
+	remote   *remoteOptions // --nats: judge through the queue; nil judges here
 }
 
 // runCheck measures and judges the files under args.
@@ -83,6 +95,23 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 		}
 	}
 
+	opt := engine.Options{Spec: o.spec, Specs: specs, Measure: o.measureOptions()}
+	if o.remote != nil && o.remote.detach {
+		return submitDetached(ctx, o, targets, opt, stdout, stderr)
+	}
+	return reportCheck(ctx, o, targets, args, stdout, stderr, func(write func(int, engine.Record)) (int, error) {
+		if o.remote != nil {
+			return runRemote(ctx, o, targets, opt, stderr, write)
+		}
+		return runBatch(ctx, o.batchOptions, targets, opt, stderr, write), nil
+	})
+}
+
+// reportCheck writes the records that judgeAll produces (through write) in
+// the chosen formats and returns the run's outcome as an error for
+// exitCode. judgeAll returns how many targets were left unfinished.
+func reportCheck(ctx context.Context, o checkOptions, targets []engine.Target, args []string, stdout, stderr io.Writer,
+	judgeAll func(write func(int, engine.Record)) (int, error)) error {
 	files, err := prepareOutputs(o.batchOptions, targets)
 	if err != nil {
 		return err
@@ -106,8 +135,7 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 	var summary reports.Summary
 	var kept []*rules.Result
 	var keptSpecs []*rules.Spec
-	opt := engine.Options{Spec: o.spec, Specs: specs, Measure: o.measureOptions()}
-	unfinished := runBatch(ctx, o.batchOptions, targets, opt, stderr,
+	unfinished, err := judgeAll(
 		func(_ int, rec engine.Record) {
 			r := rec.Result
 			summary.Add(r)
@@ -117,6 +145,9 @@ func runCheck(ctx context.Context, o checkOptions, args []string, stdout, stderr
 				keptSpecs = append(keptSpecs, rec.Spec)
 			}
 		})
+	if err != nil {
+		return err
+	}
 	summary.Elapsed = time.Since(start)
 	summary.Interrupted = ctx.Err() != nil
 	summary.Unfinished = unfinished

@@ -188,6 +188,8 @@ func newRootCommand(stdout, stderr io.Writer) *cli.Command {
 		Commands: []*cli.Command{
 			measureCommand(),
 			checkCommand(),
+			workerCommand(),
+			resultsCommand(),
 			fixCommand(),
 			specsCommand(),
 			watchCommand(),
