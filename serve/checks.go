@@ -5,6 +5,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"net/http"
 	"strconv"
@@ -100,6 +101,12 @@ func (s *Server) postCheck(w http.ResponseWriter, r *http.Request, rec *requestL
 	s.metrics.addInFlight(-1)
 	<-s.workers
 	up.remove() // the verdict is in: the audio is not needed any more
+	var qe *remoteError
+	if errors.As(err, &qe) {
+		w.Header().Set("Retry-After", "30")
+		s.refuse(w, rec, http.StatusServiceUnavailable, reasonBusy, qe.Error())
+		return
+	}
 	if err != nil {
 		s.refuse(w, rec, http.StatusUnprocessableEntity, reasonNotAudio, err.Error())
 		return
@@ -161,9 +168,27 @@ func (s *Server) check(ctx context.Context, up *upload, spec *rules.Spec) (*rule
 	if err != nil {
 		return nil, 0, fmt.Errorf("%s: %w", up.label, err)
 	}
+	if c, ok := d.(io.Closer); ok {
+		defer c.Close() // a decoder with a child process (the ffmpeg bridge)
+	}
+	if s.cfg.Remote != nil {
+		// The header read: it is audio. The judging is the queue's.
+		res, err := s.cfg.Remote(ctx, up.label, up.file.Name(), spec)
+		if err != nil {
+			return nil, 0, &remoteError{err}
+		}
+		return res, time.Since(start), nil
+	}
 	res := s.judge(ctx, up.label, d, spec)
 	return res, time.Since(start), nil
 }
+
+// remoteError is a failure of Config.Remote (the queue could not be
+// reached): answered 503 with Retry-After, not as a fault of the upload.
+type remoteError struct{ err error }
+
+func (e *remoteError) Error() string { return "the work queue did not answer: " + e.err.Error() }
+func (e *remoteError) Unwrap() error { return e.err }
 
 // refuse answers a request to judge an upload without a verdict and counts
 // why.

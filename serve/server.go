@@ -15,6 +15,8 @@ import (
 	"sync"
 	"sync/atomic"
 	"time"
+
+	"github.com/kweigh/kweigh/rules"
 )
 
 // Defaults for Config fields left zero.
@@ -37,6 +39,11 @@ type Config struct {
 	Catalogue *Catalogue
 	// Judge measures and judges one upload; nil means DefaultJudge.
 	Judge Judge
+	// Remote, when set, judges each upload elsewhere (a work queue's
+	// workers) instead of Judge: name is the client's label, path the
+	// upload's private temporary file (already known to be audio). Its
+	// error is answered 503 with Retry-After.
+	Remote func(ctx context.Context, name, path string, spec *rules.Spec) (*rules.Result, error)
 	// Tokens, when set, are the bearer tokens every /v1/ request but the
 	// OpenAPI document must present; nil accepts anyone.
 	Tokens *Tokens

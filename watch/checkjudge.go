@@ -30,6 +30,10 @@ type JudgeOptions struct {
 	Version string
 	// Caution heads every HTML page (hearing and not-an-acceptance notice).
 	Caution string
+	// Remote, when set, judges instead of engine.JudgeTarget (e.g. a work
+	// queue's JudgeOne); its error means the file was not judged (the queue
+	// is unreachable) and the file is tried again later.
+	Remote func(ctx context.Context, t engine.Target, opt engine.Options) (engine.Record, error)
 }
 
 // CheckJudge returns the JudgeFunc of `kweigh check`: engine.JudgeTarget
@@ -42,7 +46,15 @@ func CheckJudge(o JudgeOptions) JudgeFunc {
 		// Found in a folder: the engine skips a file that is not audio unless
 		// its name says it is (then it is a damaged delivery, an error).
 		t := engine.Target{Path: path, Root: root}
-		rec := engine.JudgeTarget(ctx, t, opt)
+		var rec engine.Record
+		if o.Remote != nil {
+			var err error
+			if rec, err = o.Remote(ctx, t, opt); err != nil {
+				return Judgement{}, err
+			}
+		} else {
+			rec = engine.JudgeTarget(ctx, t, opt)
+		}
 		if rec.Interrupted() {
 			return Judgement{}, ctx.Err()
 		}

@@ -7,10 +7,14 @@ import (
 	"log/slog"
 	"net"
 	"runtime"
+	"strings"
 	"time"
 
 	"github.com/urfave/cli/v3"
 
+	"github.com/kweigh/kweigh/engine"
+	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/queue"
 	"github.com/kweigh/kweigh/rules"
 	"github.com/kweigh/kweigh/serve"
 )
@@ -31,7 +35,7 @@ func serveCommand() *cli.Command {
 			"A pass is not a broadcaster's or regulator's acceptance; local regulation and the receiving\n" +
 			"party's own QC decide.\n\n" +
 			"EXIT STATUS:\n   0  stopped by SIGINT or SIGTERM\n   2  the server could not start (bad option, address in use, listening exposed without --token-file)\n",
-		Flags: []cli.Flag{
+		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "listen", Value: serve.DefaultListen, Usage: "`ADDR`ess to listen on (host:port); anything but loopback needs --token-file or --no-auth"},
 			&cli.StringFlag{Name: "token-file", Usage: "`FILE` of bearer tokens, one per line; every /v1/ request must present one"},
 			&cli.BoolFlag{Name: "no-auth", Usage: "accept requests from anyone on a non-loopback address (no token)"},
@@ -47,7 +51,7 @@ func serveCommand() *cli.Command {
 			&cli.DurationFlag{Name: "idle-timeout", Value: serve.DefaultIdleTimeout, Usage: "how long a kept-alive connection may wait for its next request"},
 			&cli.DurationFlag{Name: "grace", Value: serve.DefaultGrace, Usage: "on SIGINT/SIGTERM, how long checks in flight may take to finish"},
 			&cli.StringFlag{Name: "log-format", Value: "text", Usage: "request log on stderr: text or json"},
-		},
+		}, queueFlags(false)...),
 		Action: func(ctx context.Context, cmd *cli.Command) error {
 			if cmd.Args().Len() > 0 {
 				return usagef("serve takes no arguments (got %q)", cmd.Args().First())
@@ -72,11 +76,11 @@ func runServe(ctx context.Context, cmd *cli.Command, stderr io.Writer) error {
 	if err != nil {
 		return usagef("--max-upload: %v", err)
 	}
-	jobs, queue := cmd.Int("jobs"), cmd.Int("queue")
+	jobs, waiting := cmd.Int("jobs"), cmd.Int("queue")
 	if jobs < 1 {
 		return usagef("--jobs must be at least 1")
 	}
-	if queue < 0 {
+	if waiting < 0 {
 		return usagef("--queue must be 0 or more")
 	}
 	var tokens *serve.Tokens
@@ -104,12 +108,39 @@ func runServe(ctx context.Context, cmd *cli.Command, stderr io.Writer) error {
 	if err != nil {
 		return usageError{err}
 	}
+	// With --nats the gate receives, refuses what is not audio and answers;
+	// the queue's workers measure and judge.
+	var remote func(context.Context, string, string, *rules.Spec) (*rules.Result, error)
+	dial, viaQueue, err := readDial(cmd, "serve")
+	if err != nil {
+		return err
+	}
+	if viaQueue {
+		q, err := queue.Connect(ctx, dial)
+		if err != nil {
+			return usageError{err}
+		}
+		defer q.Close()
+		remote = func(ctx context.Context, name, path string, spec *rules.Spec) (*rules.Result, error) {
+			rec, err := queueJudge(q, spec, measure.Options{})(ctx, engine.Target{Path: path, Root: path, Explicit: true}, engine.Options{})
+			if err != nil {
+				return nil, err
+			}
+			if m := rec.Measurement; m != nil {
+				// The client's label, never the server's temporary path.
+				m.Path, m.Error = name, strings.ReplaceAll(m.Error, path, name)
+				m.Damaged = strings.ReplaceAll(m.Damaged, path, name)
+			}
+			return rec.Result, nil
+		}
+	}
 	srv, err := serve.New(serve.Config{
-		Catalogue: cat, Tokens: tokens, MaxUpload: maxUpload, Jobs: jobs, Queue: queue,
+		Catalogue: cat, Tokens: tokens, MaxUpload: maxUpload, Jobs: jobs, Queue: waiting,
 		KeepDir:       cmd.String("keep"),
 		HeaderTimeout: cmd.Duration("header-timeout"), ReadTimeout: cmd.Duration("read-timeout"),
 		StallTimeout: cmd.Duration("stall-timeout"), IdleTimeout: cmd.Duration("idle-timeout"),
 		Grace: positive(cmd.Duration("grace")), Logger: logger, Version: versionString(),
+		Remote: remote,
 	})
 	if err != nil {
 		return usageError{err}

@@ -10,7 +10,10 @@ import (
 	"github.com/urfave/cli/v3"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/measure"
+	"github.com/kweigh/kweigh/queue"
+	"github.com/kweigh/kweigh/rules"
 	"github.com/kweigh/kweigh/watch"
 )
 
@@ -36,7 +39,7 @@ func watchCommand() *cli.Command {
 			"   with --once: 0 every file passed (or warned), 1 a file failed, 2 a file could not be judged,\n" +
 			"      130 interrupted by SIGINT, 143 by SIGTERM (unfinished files are done by the next run)\n" +
 			"   2  the watcher could not start (bad options, no inbox, state folder in use)\n",
-		Flags: []cli.Flag{
+		Flags: append([]cli.Flag{
 			&cli.StringFlag{Name: "spec", Aliases: []string{"s"}, Usage: "delivery spec `NAME` for every file (built-in id or TOML file); without it each file's nearest kweigh.toml, as for check"},
 			&cli.BoolFlag{Name: "strict", Usage: "treat warnings as failures (the file goes to --failed)"},
 			&cli.StringFlag{Name: "passed", Usage: "move files that pass (or warn) into `DIR`"},
@@ -53,52 +56,70 @@ func watchCommand() *cli.Command {
 			&cli.StringFlag{Name: "format", Aliases: []string{"f"}, Value: "jsonl", Usage: "stdout lines: jsonl or text"},
 			&cli.StringFlag{Name: "layout", Usage: "channel layout for files without (or with a wrong) one: mono, stereo, 5.1 … or labels"},
 			&cli.BoolFlag{Name: "skip-flac-md5", Usage: "do not verify FLAC audio against its MD5 signature"},
-		},
+		}, queueFlags(false)...),
 		Action: func(ctx context.Context, cmd *cli.Command) error {
-			o, err := readWatchOptions(cmd)
+			o, jo, err := readWatchOptions(cmd)
 			if err != nil {
 				return err
 			}
+			dial, remote, err := readDial(cmd, "watch")
+			if err != nil {
+				return err
+			}
+			if remote {
+				// Every file is judged by the queue's workers; the watcher
+				// keeps the ledger, the placement and the reports.
+				q, err := queue.Connect(ctx, dial)
+				if err != nil {
+					return usageError{err}
+				}
+				defer q.Close()
+				jo.Remote = queueJudge(q, jo.Spec, jo.Measure)
+			}
+			o.Judge = watch.CheckJudge(jo)
 			return runWatch(ctx, o, cmd.Root().ErrWriter)
 		},
 	}
 }
 
-// readWatchOptions turns the flags into the watcher's options.
-func readWatchOptions(cmd *cli.Command) (watch.Options, error) {
-	if cmd.Args().Len() == 0 {
-		return watch.Options{}, usagef("name at least one inbox folder")
-	}
+// readWatchOptions turns the flags into the watcher's options and the
+// options of its judge (the judge itself is made by the command, which may
+// hand the judging to a queue).
+func readWatchOptions(cmd *cli.Command) (watch.Options, watch.JudgeOptions, error) {
 	jo := watch.JudgeOptions{Strict: cmd.Bool("strict"), Version: version, Caution: cautionText,
 		Measure: measure.Options{Decode: decode.Options{SkipMD5: cmd.Bool("skip-flac-md5")}}}
+	fail := func(err error) (watch.Options, watch.JudgeOptions, error) { return watch.Options{}, jo, err }
+	if cmd.Args().Len() == 0 {
+		return fail(usagef("name at least one inbox folder"))
+	}
 	if name := cmd.String("spec"); name != "" {
 		spec, err := loadSpec(name)
 		if err != nil {
-			return watch.Options{}, err
+			return fail(err)
 		}
 		jo.Spec = spec
 	}
 	if l := cmd.String("layout"); l != "" {
 		layout, err := decode.ParseLayout(l)
 		if err != nil {
-			return watch.Options{}, usageError{err}
+			return fail(usageError{err})
 		}
 		jo.Measure.Layout = layout
 	}
 	if cmd.Int("jobs") < 1 {
-		return watch.Options{}, usagef("--jobs must be at least 1")
+		return fail(usagef("--jobs must be at least 1"))
 	}
 	for _, d := range []string{"settle", "rescan"} {
 		if cmd.Duration(d) <= 0 {
-			return watch.Options{}, usagef("--%s must be longer than 0", d)
+			return fail(usagef("--%s must be longer than 0", d))
 		}
 	}
 	if cmd.Duration("poll") < 0 {
-		return watch.Options{}, usagef("--poll must be longer than 0")
+		return fail(usagef("--poll must be longer than 0"))
 	}
 	f := cmd.String("format")
 	if f != "jsonl" && f != "text" {
-		return watch.Options{}, usagef("--format %s: watch writes jsonl or text", f)
+		return fail(usagef("--format %s: watch writes jsonl or text", f))
 	}
 	return watch.Options{
 		Inboxes: cmd.Args().Slice(),
@@ -107,8 +128,24 @@ func readWatchOptions(cmd *cli.Command) (watch.Options, error) {
 		Settle: cmd.Duration("settle"), Rescan: cmd.Duration("rescan"), Poll: cmd.Duration("poll"),
 		Ignore: cmd.StringSlice("ignore"), Jobs: cmd.Int("jobs"), Once: cmd.Bool("once"),
 		Notify: cmd.String("notify"), Format: f, Output: cmd.Root().Writer,
-		Judge: watch.CheckJudge(jo),
-	}, nil
+	}, jo, nil
+}
+
+// queueJudge judges one file through the queue (its workers measure and
+// judge it with spec, or the file's nearest kweigh.toml whose text travels
+// with the job), for the hot folder and the upload gate.
+func queueJudge(q *queue.Queue, spec *rules.Spec, mo measure.Options) func(context.Context, engine.Target, engine.Options) (engine.Record, error) {
+	return func(ctx context.Context, t engine.Target, opt engine.Options) (engine.Record, error) {
+		so := queue.SubmitOptions{Spec: spec, Specs: engine.NewSpecs(), Layout: mo.Layout, KeepSeries: true, SkipMD5: mo.Decode.SkipMD5}
+		if spec != nil {
+			ref, err := queue.SpecRefOf(spec)
+			if err != nil {
+				return engine.Record{}, err
+			}
+			so.SpecRef = ref
+		}
+		return q.JudgeOne(ctx, t, so)
+	}
 }
 
 // runWatch runs the watcher until SIGINT/SIGTERM cancel ctx (main's signal
