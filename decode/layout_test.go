@@ -18,12 +18,12 @@ func TestLayoutFromMask(t *testing.T) {
 		want     []string
 	}{
 		// KSAUDIO_SPEAKER_5POINT1 = FL|FR|FC|LFE|BL|BR = 0x3F; without side
-		// channels the back pair are the 5.1 surrounds (STANDARDS.md §5).
+		// channels the back pair are the 5.1 surrounds (SOURCES.md §5).
 		{"5.1 back", 0x3F, 6, []string{"L", "R", "C", "LFE", "Ls", "Rs"}},
 		// KSAUDIO_SPEAKER_5POINT1_SURROUND = FL|FR|FC|LFE|SL|SR = 0x60F.
 		{"5.1 side", 0x60F, 6, []string{"L", "R", "C", "LFE", "Ls", "Rs"}},
 		// KSAUDIO_SPEAKER_7POINT1_SURROUND = 5.1 back + SL|SR = 0x63F: with
-		// side channels present the back pair stay back (STANDARDS.md §5).
+		// side channels present the back pair stay back (SOURCES.md §5).
 		{"7.1 surround", 0x63F, 8, []string{"L", "R", "C", "LFE", "Lb", "Rb", "Ls", "Rs"}},
 		// KSAUDIO_SPEAKER_MONO = SPEAKER_FRONT_CENTER = 0x4.
 		{"mono centre", 0x4, 1, []string{"C"}},
@@ -54,7 +54,7 @@ func TestLayoutFromMask(t *testing.T) {
 }
 
 // TestDefaultLayout checks the layouts assumed without a mask
-// (STANDARDS.md §5: 1 mono, 2 L R, 5 L R C Ls Rs, 6 L R C LFE Ls Rs; 8 is
+// (SOURCES.md §5: 1 mono, 2 L R, 5 L R C Ls Rs, 6 L R C LFE Ls Rs; 8 is
 // 7.1 in channel-mask order FL FR FC LFE BL BR SL SR, as issue 2 states).
 func TestDefaultLayout(t *testing.T) {
 	tests := []struct {

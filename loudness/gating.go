@@ -6,7 +6,7 @@ import (
 )
 
 // Gates of BS.1770-4/5 (integrated loudness) and EBU Tech 3342 (loudness
-// range), STANDARDS.md §1 and §3.
+// range), SOURCES.md §1 and §3.
 const (
 	absoluteGate     = -70.0 // LKFS: blocks at or below never count
 	relativeGate     = -10.0 // LU below the absolute-gated power mean (BS.1770, since 2011)

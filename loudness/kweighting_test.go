@@ -8,7 +8,7 @@ import (
 )
 
 // published48k is the K-weighting of ITU-R BS.1770-4/5 at 48 kHz, Tables 1
-// and 2 (STANDARDS.md §1 [doc]).
+// and 2 (SOURCES.md §1 [doc]).
 var published48k = KWeighting{
 	Shelf: Biquad{B0: 1.53512485958697, B1: -2.69169618940638, B2: 1.19839281085285,
 		A1: -1.69065929318241, A2: 0.73248077421585},
@@ -114,16 +114,16 @@ func TestKWeightingPassband(t *testing.T) {
 }
 
 // TestKWeightingShape checks two facts about the curve at 48 kHz: the shelf
-// plateau of about +4 dB at high frequencies (Vh = +3.99984 dB, STANDARDS.md
+// plateau of about +4 dB at high frequencies (Vh = +3.99984 dB, SOURCES.md
 // §1) and 0.691 dB at 997 Hz, which is what makes the −0.691 constant bring a
-// 0 dBFS 997 Hz sine to −3.01 LKFS (STANDARDS.md §1 [calc]).
+// 0 dBFS 997 Hz sine to −3.01 LKFS (SOURCES.md §1 [calc]).
 func TestKWeightingShape(t *testing.T) {
 	k := NewKWeighting(48000)
 	gain := func(f float64) float64 { return 20 * math.Log10(cmplx.Abs(k.Response(f, 48000))) }
 	for _, tc := range []struct {
 		freq, want, tol float64
 	}{
-		{997, 0.691, 0.005}, // calc: −0.691 constant, STANDARDS.md §1
+		{997, 0.691, 0.005}, // calc: −0.691 constant, SOURCES.md §1
 		{10000, 4.0, 0.25},  // shelf plateau ≈ +4 dB (Vh = +3.99984 dB)
 	} {
 		if got := gain(tc.freq); math.Abs(got-tc.want) > tc.tol {

@@ -31,7 +31,7 @@ func TestTech3341(t *testing.T) {
 		want    float64 // LUFS
 		tol     float64 // LU
 	}{
-		// EBU Tech 3341 (from memory per STANDARDS.md §3), test 1.
+		// EBU Tech 3341 (from memory per SOURCES.md §3), test 1.
 		{"1", stereo, stereoTone(segment{-23, 20}), -23.0, 0.1},
 		// Test 2.
 		{"2", stereo, stereoTone(segment{-33, 20}), -33.0, 0.1},
@@ -58,7 +58,7 @@ func TestTech3341(t *testing.T) {
 }
 
 // TestTech3341Steady checks M and S on tests 1 and 2: every full window
-// reads the level (EBU Tech 3341 tests 1–2, from memory per STANDARDS.md §3).
+// reads the level (EBU Tech 3341 tests 1–2, from memory per SOURCES.md §3).
 func TestTech3341Steady(t *testing.T) {
 	for _, level := range []float64{-23, -33} {
 		r := measure(t, 48000, []float64{1, 1}, stereoTone(segment{level, 20}), 4096)
@@ -92,7 +92,7 @@ func checkSeries(t *testing.T, name string, s []float32, first int, want, tol fl
 }
 
 // TestTech3341Cycles: tests 9 and 12 (EBU Tech 3341, from memory per
-// STANDARDS.md §3): a level cycle exactly as long as the window keeps S
+// SOURCES.md §3): a level cycle exactly as long as the window keeps S
 // (test 9) or M (test 12) at −23.0 at every update once the window is full.
 func TestTech3341Cycles(t *testing.T) {
 	r := measure(t, 48000, []float64{1, 1}, stereoTone(repeatSegs(20, segment{-20, 1.34}, segment{-30, 1.66})...), 4801)
@@ -108,7 +108,7 @@ func TestTech3342(t *testing.T) {
 		segs []segment
 		want float64 // LU
 	}{
-		// EBU Tech 3342 (from memory per STANDARDS.md §3), tests 1–4;
+		// EBU Tech 3342 (from memory per SOURCES.md §3), tests 1–4;
 		// tolerance ±1 LU, checked here at ±0.1.
 		{"1", []segment{{-20, 20}, {-30, 20}}, 10},
 		{"2", []segment{{-20, 20}, {-15, 20}}, 5},
@@ -123,7 +123,7 @@ func TestTech3342(t *testing.T) {
 }
 
 // TestReferenceLevel: a 997 Hz sine at 0 dBFS in one front channel reads
-// −3.01 LKFS (STANDARDS.md §1: ARIB TR-B32 v1.5 change note [desc]; calc).
+// −3.01 LKFS (SOURCES.md §1: ARIB TR-B32 v1.5 change note [desc]; calc).
 // That is a 48 kHz fact. The same design at higher rates follows the analog
 // prototype more closely than the published 48 kHz filter does (whose
 // bilinear warping lifts 997 Hz by 0.027 dB over the 192 kHz design, calc),
@@ -173,7 +173,7 @@ func TestSampleRates(t *testing.T) {
 }
 
 // TestLFEExcluded: a 5.1 stream with a loud LFE reads the same loudness as
-// without it (BS.1770: LFE excluded, STANDARDS.md §1), but its peak counts.
+// without it (BS.1770: LFE excluded, SOURCES.md §1), but its peak counts.
 func TestLFEExcluded(t *testing.T) {
 	weights, err := Weights([]string{"L", "R", "C", "LFE", "Ls", "Rs"})
 	if err != nil {
@@ -193,7 +193,7 @@ func TestLFEExcluded(t *testing.T) {
 }
 
 // TestMonoVersusStereo: a mono stream reads 3.01 LU below the same signal
-// on both channels of a stereo stream (STANDARDS.md §1: 10·log10 2).
+// on both channels of a stereo stream (SOURCES.md §1: 10·log10 2).
 func TestMonoVersusStereo(t *testing.T) {
 	x := musicLike(31, 48000*6, 48000)
 	mono := measure(t, 48000, []float64{1}, x, 0)
@@ -283,7 +283,7 @@ func TestOverFullScale(t *testing.T) {
 		t.Errorf("sample peak %.3f dBFS, want +6.0", got)
 	}
 	if got := r.Integrated.Value; math.Abs(got-(6-3.01)) > 0.02 {
-		t.Errorf("integrated %.3f, want +2.99 (−3.01 + 6, STANDARDS.md §1)", got)
+		t.Errorf("integrated %.3f, want +2.99 (−3.01 + 6, SOURCES.md §1)", got)
 	}
 }
 

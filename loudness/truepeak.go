@@ -13,7 +13,7 @@ const interpolatorTaps = 12
 const history = interpolatorTaps - 1
 
 // Phases 0 and 1 of the 4× interpolator of ITU-R BS.1770-4/5 Annex 2
-// (48 taps, 4 phases of 12; STANDARDS.md §2, recalled, every value a multiple
+// (48 taps, 4 phases of 12; SOURCES.md §2, recalled, every value a multiple
 // of 2⁻¹³): h0tT is phase 0 tap T. Phases 2 and 3 are phase 1 and phase 0
 // reversed, as for any linear-phase table. Output 4n+k is Σₜ hₖ[t]·x[n−t].
 // They are constants so the hot loop multiplies by immediate memory operands

@@ -6,7 +6,7 @@ import (
 	"testing"
 )
 
-// TestTruePeakTable checks the properties STANDARDS.md §2 states of the
+// TestTruePeakTable checks the properties SOURCES.md §2 states of the
 // Annex 2 table: every coefficient a multiple of 2⁻¹³, and the 4 phases
 // summing (DC gain of the 48-tap prototype) to about 4.
 func TestTruePeakTable(t *testing.T) {
@@ -20,7 +20,7 @@ func TestTruePeakTable(t *testing.T) {
 		}
 	}
 	// An interpolator by 4 has DC gain 4; the table's quantisation leaves
-	// it at 3.949 (calc from STANDARDS.md §2), within 1.5 %.
+	// it at 3.949 (calc from SOURCES.md §2), within 1.5 %.
 	if math.Abs(sum-4) > 0.06 {
 		t.Errorf("prototype DC gain %v, want ≈ 4", sum)
 	}
@@ -28,7 +28,7 @@ func TestTruePeakTable(t *testing.T) {
 
 func TestOversamplingFactor(t *testing.T) {
 	for _, tc := range []struct{ rate, want int }{
-		// BS.1770 Annex 2 (STANDARDS.md §2, from memory): 4× below 96 kHz,
+		// BS.1770 Annex 2 (SOURCES.md §2, from memory): 4× below 96 kHz,
 		// 2× at 88.2/96 kHz, 1× at 176.4 kHz and above.
 		{8000, 4}, {44100, 4}, {48000, 4}, {88200, 2}, {96000, 2}, {176400, 1}, {192000, 1}, {384000, 1},
 	} {
@@ -87,7 +87,7 @@ func fade(x []float64, n int) {
 }
 
 // TestTruePeakSines is the property behind EBU Tech 3341 tests 15–19
-// (STANDARDS.md §3, from memory): a sine of amplitude A whose peaks fall
+// (SOURCES.md §3, from memory): a sine of amplitude A whose peaks fall
 // between samples reads 20·log10(A) dBTP within +0.2/−0.4 dB.
 func TestTruePeakSines(t *testing.T) {
 	for _, tc := range []struct {
@@ -107,7 +107,7 @@ func TestTruePeakSines(t *testing.T) {
 		{96000, 8, 3 * math.Pi / 8, -6, -6, 0.2, 0.4},
 		{192000, 8, 3 * math.Pi / 8, -6, -6, 0.2, 0.7}, // 1×: plain samples, 24 kHz is above the audio band; cos(π/8) → −0.69 dB (calc)
 		// A 0 dBFS-sample fs/4 sine at 45°: samples ±1.0, crest √2 → +3.01
-		// dBTP (STANDARDS.md §3 [calc]).
+		// dBTP (SOURCES.md §3 [calc]).
 		{48000, 4, math.Pi / 4, 20 * math.Log10(math.Sqrt2), 3.01, 0.2, 0.4},
 	} {
 		name := fmt.Sprintf("%dHz/fs÷%g/%.2fdBFS", tc.rate, tc.period, tc.dbfs)
@@ -135,8 +135,8 @@ func TestTruePeakSines(t *testing.T) {
 // at 96 kHz: it reads the very same interpolated waveform as the 4× table at
 // half the density, so it never reads above 4× and misses at most the
 // sample-timing loss 20·log10(1/cos(π·f/(2·fs))) = 0.12 dB at 10 kHz, 96 kHz
-// (STANDARDS.md §2 [calc]) plus the table's own phase-to-phase ripple of
-// ±0.22 dB (calc from the Annex 2 coefficients of STANDARDS.md §2).
+// (SOURCES.md §2 [calc]) plus the table's own phase-to-phase ripple of
+// ±0.22 dB (calc from the Annex 2 coefficients of SOURCES.md §2).
 func TestTruePeak2xIsSubsetOf4x(t *testing.T) {
 	const rate = 96000
 	x := make([]float64, rate/2)

@@ -37,7 +37,7 @@ var labelPositions = map[string]position{
 	"Tbr": {-135, 45}, //
 }
 
-// Channel weights of ITU-R BS.1770-4/5 (STANDARDS.md §1, from memory,
+// Channel weights of ITU-R BS.1770-4/5 (SOURCES.md §1, from memory,
 // surround weight corroborated by EBU Tech 3341 test 6).
 const (
 	frontWeight    = 1.0

@@ -10,7 +10,7 @@ func TestWeights(t *testing.T) {
 		label string
 		want  float64 // source
 	}{
-		{"M", 1.0},    // BS.1770: mono is one front channel, G = 1.0 (STANDARDS.md §1)
+		{"M", 1.0},    // BS.1770: mono is one front channel, G = 1.0 (SOURCES.md §1)
 		{"L", 1.0},    // BS.1770-4/5 Table 3, from memory
 		{"R", 1.0},    // ditto
 		{"C", 1.0},    // ditto
@@ -70,7 +70,7 @@ func TestWeightsUnknown(t *testing.T) {
 
 func TestPositionRule(t *testing.T) {
 	for _, tc := range []struct {
-		az, el, want float64 // BS.1770-4/5 position rule (STANDARDS.md §1, from memory)
+		az, el, want float64 // BS.1770-4/5 position rule (SOURCES.md §1, from memory)
 	}{
 		{60, 0, 1.41}, {120, 0, 1.41}, {-90, 29.9, 1.41},
 		{59.9, 0, 1.0}, {120.1, 0, 1.0}, {90, 30, 1.0}, {90, -30, 1.0}, {0, 0, 1.0}, {180, 0, 1.0},

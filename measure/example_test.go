@@ -12,7 +12,7 @@ import (
 // ExampleStream measures a line-up tone a studio might put at the head of
 // a reel: 10 s of 997 Hz at -23 dBFS on both channels of a 48 kHz 24-bit
 // WAV, built in memory. EBU Tech 3341 test 1 (from memory per
-// STANDARDS.md §3) expects -23.0 LUFS; the true and sample peaks are the
+// SOURCES.md §3) expects -23.0 LUFS; the true and sample peaks are the
 // tone's amplitude, -23 dBFS. (Lower your monitors before playing any
 // line-up tone.)
 func ExampleStream() {

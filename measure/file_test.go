@@ -109,7 +109,7 @@ func TestFileLoudness(t *testing.T) {
 		integrated float64 // expected LUFS
 		tol        float64
 	}{
-		// EBU Tech 3341 test 1 (from memory per STANDARDS.md §3): stereo sine
+		// EBU Tech 3341 test 1 (from memory per SOURCES.md §3): stereo sine
 		// at -23 dBFS reads -23.0 LUFS ±0.1.
 		{"stereo -23 dBFS", 2, 0, []float64{a, a}, []string{"L", "R"}, -23, 0.1},
 		// One channel: 3.01 dB lower (BS.1770: sum of channel powers).
@@ -298,7 +298,7 @@ func TestStereoDownmixOfSurround(t *testing.T) {
 	}{
 		// A -23 dBFS tone in C alone. 5.1: one front channel, -23 - 3.01
 		// (BS.1770: a sine in one channel reads 3.01 dB below its peak
-		// level, STANDARDS.md §1). Fold-down: 0.707·C into Lo and Ro, two
+		// level, SOURCES.md §1). Fold-down: 0.707·C into Lo and Ro, two
 		// channels at -26.01 dBFS each: -26.01 - 3.01 + 3.01 (two equal
 		// channels sum +3.01). Both -26.01.
 		{"centre", []float64{0, 0, a, 0, 0, 0}, -26.01, -26.01},

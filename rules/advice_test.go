@@ -11,7 +11,7 @@ import (
 // is that minus the ceiling, to 0.01 dB (the resolution of every comparison,
 // so following it is enough; issue 9: no rounding up that the reason beside
 // it does not show). Targets and ceilings are
-// those of the STANDARDS.md §4 rows cited per case.
+// those of the SOURCES.md §4 rows cited per case.
 func TestGainAdvice(t *testing.T) {
 	tests := []struct {
 		name        string

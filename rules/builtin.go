@@ -6,7 +6,7 @@ import (
 )
 
 // builtinSpecs builds the built-in specs in their listing order. Every value
-// is the one in the project's standards sheet (STANDARDS.md §4), with its
+// is the one in the project's standards sheet (SOURCES.md §4), with its
 // marker in LimitSources: [doc] read in the document, [desc] read in a
 // neutral description, [memory] recalled, not yet read in the document.
 var builtinSpecs = []func() *Spec{

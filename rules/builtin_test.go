@@ -8,7 +8,7 @@ import (
 )
 
 // TestBuiltinValues checks every built-in spec against its row in the
-// project's standards sheet (STANDARDS.md §4), which cites the document and
+// project's standards sheet (SOURCES.md §4), which cites the document and
 // marks how each value was obtained.
 func TestBuiltinValues(t *testing.T) {
 	tests := []struct {

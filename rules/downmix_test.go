@@ -47,7 +47,7 @@ func surroundWAV(t *testing.T, amps [6]float64) string {
 	return path
 }
 
-// TestDownmixCheck: ATSC A/85 (-24 LKFS ±2 dB, STANDARDS.md §4 [desc])
+// TestDownmixCheck: ATSC A/85 (-24 LKFS ±2 dB, SOURCES.md §4 [desc])
 // also judges a surround file's stereo fold-down. A mix carried by the
 // surrounds reads louder in 5.1 (weight 1.41, +1.49 dB, BS.1770) than in
 // the fold-down (surrounds at 0.707 into one side each, ITU-R BS.775 from

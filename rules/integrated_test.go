@@ -7,7 +7,7 @@ import (
 
 // TestIntegratedEdges puts integrated loudness exactly on each edge of every
 // built-in tolerance (must not fail) and 0.05 LU beyond it (must fail). The
-// edges follow from the STANDARDS.md §4 rows tested in TestBuiltinValues;
+// edges follow from the SOURCES.md §4 rows tested in TestBuiltinValues;
 // the comparison rule (round both sides to 0.01) is the package's own, and
 // "exactly on the edge" is computed the way a user would type it (e.g.
 // -23 + 0.2), so float noise is part of the test.

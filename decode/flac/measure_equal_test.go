@@ -71,7 +71,7 @@ func TestMeasurementsEqualWAV(t *testing.T) {
 }
 
 func TestSurroundWeights(t *testing.T) {
-	// BS.1770-4/5 channel weights (STANDARDS.md §1, from memory,
+	// BS.1770-4/5 channel weights (SOURCES.md §1, from memory,
 	// surround weight corroborated by EBU Tech 3341 test 6): L, R, C 1.0;
 	// LFE excluded; Ls, Rs 1.41. Tolerance 0: the weights are constants.
 	_, info := audiotest.DecodeFile(t, filepath.Join("testdata", "surround51-16-44k.flac"))

@@ -63,7 +63,7 @@ func TestLoudnessMatchesSource(t *testing.T) {
 func TestMonoLoudness(t *testing.T) {
 	// A mono MP3 reads what the mono source reads; go-mp3's duplicated
 	// stereo would read 10·log10(2) = 3.01 LU more (BS.1770 sums the
-	// channel powers [calc]; STANDARDS.md §1), which this test also shows
+	// channel powers [calc]; SOURCES.md §1), which this test also shows
 	// on the same samples. Tolerance 0.01 LU: only rounding differs.
 	b := audiotest.Fixture(t, "speech-m44-128.mp3")
 	got := decodeBytes(t, b)

@@ -88,7 +88,7 @@ func ptr(v float64) *float64 { return &v }
 
 // TestBext checks the bext fields at the offsets of EBU Tech 3285 v2 §2.3;
 // loudness fields are round(100 × value) from version 2 on, 0x7FFF meaning
-// "not set" (STANDARDS.md §5, marked [memory]). The invented scenario: a
+// "not set" (SOURCES.md §5, marked [memory]). The invented scenario: a
 // bulletin from the fictional Harbourlight Radio.
 func TestBext(t *testing.T) {
 	loud := [5]int16{-2300, 540, -120, 0x7FFF, -1875}

@@ -17,7 +17,7 @@ import (
 // episodes of an invented radio series, "The Lighthouse Keeper's Almanac",
 // to an invented outlet, Northwind Radio. Its house spec,
 // testdata/northwind-house.toml, extends the built-in EBU R 128 spec
-// (STANDARDS.md §4: -23.0 LUFS ±1.0 LU, -1 dBTP) and allows at most 3 s of
+// (SOURCES.md §4: -23.0 LUFS ±1.0 LU, -1 dBTP) and allows at most 3 s of
 // trailing silence (invented house rule). The files are judged by the real
 // rules engine (rules.Evaluate).
 const demoSpecFile = "testdata/northwind-house.toml"
@@ -238,7 +238,7 @@ func measurePage(t testing.TB) Page {
 // report shows every verdict the page can draw.
 func TestDemoVerdicts(t *testing.T) {
 	want := []rules.Verdict{
-		rules.Pass,  // on target (EBU R 128 ±1.0 LU, STANDARDS.md §4)
+		rules.Pass,  // on target (EBU R 128 ±1.0 LU, SOURCES.md §4)
 		rules.Fail,  // 7.7 LU too loud, true peak over -1 dBTP, 6.5 s tail > 3 s house limit
 		rules.Warn,  // inside ±1.0 LU but near the edge
 		rules.Fail,  // shorter than one 400 ms gating block (BS.1770): no integrated loudness

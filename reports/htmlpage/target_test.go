@@ -25,16 +25,16 @@ func TestTargetFor(t *testing.T) {
 		channels             int
 		target, band, ceilng float64
 	}{
-		// EBU R 128 v4.0 (2020): -23.0 LUFS ±1.0 LU, -1 dBTP (STANDARDS.md §4).
+		// EBU R 128 v4.0 (2020): -23.0 LUFS ±1.0 LU, -1 dBTP (SOURCES.md §4).
 		{"ebu-r128 stereo", builtin("ebu-r128"), 2, -23, 1, -1},
 		// Podcast practice: -16 LUFS stereo, -19 LUFS mono, ±1 LU, -1 dBTP
-		// (STANDARDS.md §4: common practice, no published source).
+		// (SOURCES.md §4: common practice, no published source).
 		{"podcast stereo", builtin("podcast"), 2, -16, 1, -1},
 		{"podcast mono", builtin("podcast"), 1, -19, 1, -1},
 		// AES TD1004 (2015): -20 to -16 LUFS window, drawn as its middle
-		// -18 ±2; -1 dBTP [memory] (STANDARDS.md §4).
+		// -18 ±2; -1 dBTP [memory] (SOURCES.md §4).
 		{"aes-td1004 window", builtin("aes-td1004"), 2, -18, 2, -1},
-		// The demo house spec: EBU R 128 figures (STANDARDS.md §4).
+		// The demo house spec: EBU R 128 figures (SOURCES.md §4).
 		{"northwind TOML", northwindSpec(t), 6, -23, 1, -1},
 		{"no spec", nil, 2, nan, nan, nan},
 	}
