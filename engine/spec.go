@@ -3,20 +3,17 @@ package engine
 import (
 	"errors"
 	"fmt"
-	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
 	"sync"
 
-	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/rules"
 )
 
-// MaxSpecFileBytes caps what is read of a spec file: real specs are a few
-// kilobytes, and a bound keeps a hostile or endless file (a device, a
-// runaway generator) from exhausting memory.
-const MaxSpecFileBytes = 1 << 20
+// MaxSpecFileBytes caps what is read of a spec file (rules.MaxSpecBytes,
+// the one limit rules.ReadSpecFile applies).
+const MaxSpecFileBytes = rules.MaxSpecBytes
 
 // NoSpecError is a file for which neither the options nor any kweigh.toml
 // from its folder upwards give a spec.
@@ -85,7 +82,7 @@ func loadFolderSpec(path string) folderSpec {
 	if st.IsDir() {
 		return folderSpec{}
 	}
-	data, err := readSpecFile(path)
+	data, err := rules.ReadSpecFile(path)
 	if err != nil {
 		return folderSpec{err: err}
 	}
@@ -99,24 +96,6 @@ func loadFolderSpec(path string) folderSpec {
 	return folderSpec{spec: s}
 }
 
-// readSpecFile reads a spec file: regular files only (opened without
-// blocking), at most MaxSpecFileBytes.
-func readSpecFile(path string) ([]byte, error) {
-	f, err := decode.OpenRegular(path)
-	if err != nil {
-		return nil, fmt.Errorf("spec %w", err)
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, MaxSpecFileBytes+1))
-	if err != nil {
-		return nil, fmt.Errorf("spec %s: %w", path, err)
-	}
-	if len(data) > MaxSpecFileBytes {
-		return nil, fmt.Errorf("spec %s: larger than %d KiB: not a spec file", path, MaxSpecFileBytes>>10)
-	}
-	return data, nil
-}
-
 // LoadSpec resolves a spec named by a user: a built-in id, or else a TOML
 // spec file (regular files only, so a FIFO never blocks).
 func LoadSpec(name string) (*rules.Spec, error) {
@@ -127,7 +106,7 @@ func LoadSpec(name string) (*rules.Spec, error) {
 	if _, err := os.Stat(name); err != nil {
 		return nil, lookupErr
 	}
-	data, err := readSpecFile(name)
+	data, err := rules.ReadSpecFile(name)
 	if err != nil {
 		return nil, err
 	}

@@ -347,20 +347,8 @@ func (q *Queue) Submit(ctx context.Context, batch string, targets []engine.Targe
 	return s, nil
 }
 
-// readSpecText reads a spec file's text as engine does: regular files
-// only, bounded.
+// readSpecText reads a spec file's text as engine does (rules.ReadSpecFile).
 func readSpecText(path string) (string, error) {
-	f, err := decode.OpenRegular(path)
-	if err != nil {
-		return "", fmt.Errorf("spec %w", err)
-	}
-	defer f.Close()
-	data, err := io.ReadAll(io.LimitReader(f, engine.MaxSpecFileBytes+1))
-	if err != nil {
-		return "", fmt.Errorf("spec %s: %w", path, err)
-	}
-	if len(data) > engine.MaxSpecFileBytes {
-		return "", fmt.Errorf("spec %s: larger than %d KiB: not a spec file", path, engine.MaxSpecFileBytes>>10)
-	}
-	return string(data), nil
+	data, err := rules.ReadSpecFile(path)
+	return string(data), err
 }

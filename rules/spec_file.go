@@ -18,20 +18,34 @@ import (
 // for in a delivery folder.
 const SpecFileName = "kweigh.toml"
 
-// LoadFile reads and parses the user spec at path (see Parse). Only a
-// regular file is read, and at most MaxSpecBytes of it: a FIFO, a device
-// (/dev/zero) or a folder is refused at once, without blocking or reading.
+// LoadFile reads (ReadSpecFile) and parses (Parse) the user spec at path.
 func LoadFile(path string) (*Spec, error) {
+	data, err := ReadSpecFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return Parse(path, data)
+}
+
+// ReadSpecFile reads a spec file the one way kweigh reads them (the
+// command line, the engine's folder search, the queue's jobs): only a
+// regular file, and at most MaxSpecBytes of it. A FIFO, a device
+// (/dev/zero) or a folder is refused at once, without blocking or reading;
+// a larger file is refused without reading past the limit.
+func ReadSpecFile(path string) ([]byte, error) {
 	f, err := decode.OpenRegular(path)
 	if err != nil {
-		return nil, fmt.Errorf("reading spec: %w", err)
+		return nil, fmt.Errorf("spec %w", err)
 	}
 	defer f.Close()
 	data, err := io.ReadAll(io.LimitReader(f, MaxSpecBytes+1))
 	if err != nil {
-		return nil, fmt.Errorf("reading spec %s: %w", path, err)
+		return nil, fmt.Errorf("spec %s: %w", path, err)
 	}
-	return Parse(path, data)
+	if len(data) > MaxSpecBytes {
+		return nil, fmt.Errorf("spec %s: larger than %d KiB: not a spec file", path, MaxSpecBytes>>10)
+	}
+	return data, nil
 }
 
 // Parse reads a user spec in TOML. file names the source in errors and
