@@ -3,35 +3,15 @@ package serve
 import (
 	"context"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
 	"time"
 
 	"github.com/chromedp/chromedp"
-)
 
-// chromiumPath finds Debian's chromium. Without it the test fails: CI must
-// run it (.ci/setup installs chromium). KWEIGH_SKIP_BROWSER=1 skips it on a
-// developer machine that cannot have a browser, but never where CI is set
-// (the project's convention, as in reports/htmlpage).
-func chromiumPath(t *testing.T) string {
-	t.Helper()
-	if os.Getenv("KWEIGH_SKIP_BROWSER") == "1" {
-		if ci := os.Getenv("CI"); ci != "" && ci != "false" && ci != "0" {
-			t.Fatal("KWEIGH_SKIP_BROWSER=1 is not honoured in CI (CI is set): the real-browser test must run there")
-		}
-		t.Skip("KWEIGH_SKIP_BROWSER=1: real-browser test skipped on request")
-	}
-	for _, name := range []string{"chromium", "/usr/bin/chromium", "chromium-browser"} {
-		if p, err := exec.LookPath(name); err == nil {
-			return p
-		}
-	}
-	t.Fatal("chromium not found: install it (Debian: apt-get install chromium; .ci/setup does this) or set KWEIGH_SKIP_BROWSER=1 to skip the real-browser test")
-	return ""
-}
+	"github.com/kweigh/kweigh/internal/audiotest"
+)
 
 // TestUploadPageInBrowser drives the upload page in a real headless
 // Chromium at a phone's width: the page loads nothing from elsewhere and
@@ -39,7 +19,7 @@ func chromiumPath(t *testing.T) string {
 // and the HTML report inline; a file that is not audio shows the server's
 // reason.
 func TestUploadPageInBrowser(t *testing.T) {
-	bin := chromiumPath(t)
+	bin := audiotest.Chromium(t)
 	ts := startServer(t, Config{})
 	dir := t.TempDir()
 	wav := warnTone.file(t, dir, "tidewater-ep7.wav")

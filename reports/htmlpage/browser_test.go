@@ -15,28 +15,9 @@ import (
 
 	"golang.org/x/net/html"
 	"golang.org/x/net/html/atom"
-)
 
-// chromiumPath finds Debian's chromium. The test fails without it: CI must
-// run it (.ci/run installs chromium through .ci/setup). KWEIGH_SKIP_BROWSER=1
-// skips it on a developer machine that cannot have a browser, but never in
-// CI: where the CI variable is set the request is refused.
-func chromiumPath(t *testing.T) string {
-	t.Helper()
-	if os.Getenv("KWEIGH_SKIP_BROWSER") == "1" {
-		if ci := os.Getenv("CI"); ci != "" && ci != "false" && ci != "0" {
-			t.Fatal("KWEIGH_SKIP_BROWSER=1 is not honoured in CI (CI is set): the real-browser test must run there")
-		}
-		t.Skip("KWEIGH_SKIP_BROWSER=1: real-browser test skipped on request")
-	}
-	for _, name := range []string{"chromium", "/usr/bin/chromium", "chromium-browser"} {
-		if p, err := exec.LookPath(name); err == nil {
-			return p
-		}
-	}
-	t.Fatal("chromium not found: install it (Debian: apt-get install chromium; .ci/run does this) or set KWEIGH_SKIP_BROWSER=1 to skip the real-browser test")
-	return ""
-}
+	"github.com/kweigh/kweigh/internal/audiotest"
+)
 
 // runChromium runs headless chromium with a fresh profile and a time limit
 // and returns its standard output.
@@ -126,7 +107,7 @@ func tail(s string, n int) string {
 // script adds) and the plots, and printing must start every file on a new
 // page. KWEIGH_BROWSER_OUT=DIR keeps the screenshot and PDF for a look.
 func TestBrowserRendersReport(t *testing.T) {
-	bin := chromiumPath(t)
+	bin := audiotest.Chromium(t)
 	dir := t.TempDir()
 	page := demoSetPage(t)
 	report := filepath.Join(dir, "report.html")
