@@ -1,6 +1,7 @@
 package queue
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
@@ -29,13 +30,25 @@ type Dial struct {
 	// Prefix starts every stream, bucket and subject name (DefaultPrefix
 	// when empty).
 	Prefix string
+	// AudioMaxAge is how long an uploaded file stays in the audio bucket
+	// (DefaultAudioMaxAge when zero). Without a limit the bucket of a
+	// long-running queue only grows; the limit applies to the bucket, so
+	// the last process to connect sets it for all.
+	AudioMaxAge time.Duration
 }
+
+// DefaultAudioMaxAge keeps uploaded audio as long as results are kept.
+const DefaultAudioMaxAge = resultMaxAge
 
 // Queue is a connection to the queue with its streams and buckets in place.
 type Queue struct {
 	nc    *nats.Conn
 	js    jetstream.JetStream
 	names Names
+	// audioMaxAge is the audio bucket's object lifetime; an upload that
+	// finds its object older than half of it sends it again, so a job
+	// always has at least half the lifetime to be worked on.
+	audioMaxAge time.Duration
 
 	mu    sync.Mutex
 	audio jetstream.ObjectStore // cached handle; nil until first used
@@ -96,7 +109,11 @@ func Connect(ctx context.Context, d Dial) (*Queue, error) {
 		nc.Close()
 		return nil, fmt.Errorf("NATS server %s: %w", d.URL, err)
 	}
-	q := &Queue{nc: nc, js: js, names: names}
+	if d.AudioMaxAge < 0 {
+		nc.Close()
+		return nil, fmt.Errorf("audio lifetime %v is negative", d.AudioMaxAge)
+	}
+	q := &Queue{nc: nc, js: js, names: names, audioMaxAge: cmp.Or(d.AudioMaxAge, DefaultAudioMaxAge)}
 	if err := q.ensure(ctx); err != nil {
 		nc.Close()
 		return nil, fmt.Errorf("NATS server %s: %w", d.URL, err)
@@ -149,6 +166,7 @@ func (q *Queue) ensure(ctx context.Context) error {
 		Bucket:      n.AudioBucket(),
 		Description: "kweigh audio, one object per content, named by its SHA-256",
 		Storage:     jetstream.FileStorage,
+		TTL:         q.audioMaxAge,
 	}); err != nil {
 		return fmt.Errorf("audio bucket %s: %w", n.AudioBucket(), err)
 	}

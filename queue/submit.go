@@ -33,7 +33,9 @@ func NewBatch() string {
 func ValidBatch(s string) bool { return validBatch(s) }
 
 // Upload puts the audio of the open file f (named path) in the object
-// store under its SHA-256 unless an object of that name is already there.
+// store under its SHA-256 unless an object of that name is already there
+// and young enough (put less than half the bucket's lifetime ago: an older
+// one is sent again, so it does not expire under the job).
 // It returns the object name, the size, and whether it was sent.
 func (q *Queue) Upload(ctx context.Context, path string, f *os.File) (object string, size int64, sent bool, err error) {
 	h := sha256.New()
@@ -48,7 +50,7 @@ func (q *Queue) Upload(ctx context.Context, path string, f *os.File) (object str
 			return err
 		}
 		info, err := store.GetInfo(ctx, object)
-		if err == nil && info.Size == uint64(size) && !info.Deleted {
+		if err == nil && info.Size == uint64(size) && !info.Deleted && time.Since(info.ModTime) < q.audioMaxAge/2 {
 			sent = false
 			return nil
 		}

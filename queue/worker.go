@@ -248,6 +248,10 @@ func (q *Queue) judge(ctx context.Context, cfg Config, job Job) engine.Record {
 	defer os.Remove(tmp.Name())
 	defer tmp.Close()
 	obj, err := store.Get(ctx, job.Object)
+	if errors.Is(err, jetstream.ErrObjectNotFound) {
+		return failed(job, fmt.Errorf("audio object %s is no longer in %s (uploads are kept %v; submit the file again): %w",
+			job.Object, q.names.AudioBucket(), q.audioMaxAge, err))
+	}
 	if err != nil {
 		return failed(job, fmt.Errorf("audio object %s: %w", job.Object, err))
 	}

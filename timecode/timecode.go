@@ -124,7 +124,12 @@ func (r Rate) String() string {
 func (r Rate) FPS() float64 { return float64(r.Num) / float64(r.Den) }
 
 // nominal is the whole number of frame labels per second (30 for 29.97).
-func (r Rate) nominal() int64 { return int64((r.Num + r.Den - 1) / r.Den) }
+func (r Rate) nominal() int64 {
+	if r.Den <= 0 || r.Num <= 0 {
+		return 0
+	}
+	return int64((r.Num + r.Den - 1) / r.Den)
+}
 
 // dropped is how many labels drop-frame counting skips per minute: 2 at
 // 29.97, 4 at 59.94, 0 otherwise.
@@ -157,8 +162,11 @@ type Timecode struct {
 func FromSeconds(r Rate, s float64) Timecode {
 	// A tiny allowance keeps an instant exactly on a frame boundary (10 h at
 	// 25 fps) from falling a frame short after binary rounding.
-	f := int64(math.Floor(s*float64(r.Num)/float64(r.Den) + 1e-7))
 	day := r.FramesPerDay()
+	if day <= 0 {
+		return Timecode{Rate: r} // no frame rate: no frames to count
+	}
+	f := int64(math.Floor(s*float64(r.Num)/float64(r.Den) + 1e-7))
 	f %= day
 	if f < 0 {
 		f += day
@@ -168,12 +176,18 @@ func FromSeconds(r Rate, s float64) Timecode {
 
 // Seconds is the instant the frame starts, in seconds after midnight.
 func (t Timecode) Seconds() float64 {
+	if t.Rate.Num <= 0 || t.Rate.Den <= 0 {
+		return 0
+	}
 	return float64(t.Frames) * float64(t.Rate.Den) / float64(t.Rate.Num)
 }
 
 // Add moves the timecode by n frames, wrapping at 24 hours.
 func (t Timecode) Add(n int64) Timecode {
 	day := t.Rate.FramesPerDay()
+	if day <= 0 {
+		return t // no frame rate: no frames to count
+	}
 	f := (t.Frames + n) % day
 	if f < 0 {
 		f += day
@@ -198,6 +212,10 @@ func (t Timecode) Fields() (h, m, s, f int64) {
 		}
 	}
 	fps := r.nominal()
+	if fps <= 0 {
+		// The zero Rate (or a corrupt one): no labels to count in.
+		return 0, 0, 0, n
+	}
 	f = n % fps
 	s = n / fps % 60
 	m = n / (fps * 60) % 60
@@ -209,6 +227,9 @@ func (t Timecode) Fields() (h, m, s, f int64) {
 // for drop-frame counting (HH:MM:SS;FF), the usual way of telling them
 // apart.
 func (t Timecode) String() string {
+	if t.Rate.Num <= 0 || t.Rate.Den <= 0 {
+		return fmt.Sprintf("frame %d (no frame rate)", t.Frames)
+	}
 	h, m, s, f := t.Fields()
 	sep := ':'
 	if t.Rate.Drop {

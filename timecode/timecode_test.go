@@ -2,6 +2,7 @@ package timecode
 
 import (
 	"fmt"
+	"strings"
 	"testing"
 )
 
@@ -196,4 +197,29 @@ func ExampleStart_Label() {
 	// Output:
 	// 10:00:12:08
 	// 0:00:12.3
+}
+
+// TestZeroRate: the zero Timecode and Start (a measurement without a known
+// start, printed with %v in a log or a test failure) never divide by a
+// zero frame rate; they say there is no rate instead.
+func TestZeroRate(t *testing.T) {
+	var tc Timecode
+	if got := tc.String(); got != "frame 0 (no frame rate)" {
+		t.Errorf("zero Timecode prints %q", got)
+	}
+	if h, m, s, f := (Timecode{Frames: 7}).Fields(); h != 0 || m != 0 || s != 0 || f != 7 {
+		t.Errorf("fields of 7 frames without a rate: %d %d %d %d", h, m, s, f)
+	}
+	if got := FromSeconds(Rate{}, 12.34); got.Frames != 0 {
+		t.Errorf("FromSeconds without a rate: %d frames", got.Frames)
+	}
+	if got := tc.Add(5); got != tc {
+		t.Errorf("Add without a rate moved to %v", got)
+	}
+	if got := tc.Seconds(); got != 0 {
+		t.Errorf("Seconds without a rate: %v", got)
+	}
+	if got := fmt.Sprintf("%v", Start{}); strings.Contains(got, "PANIC") {
+		t.Errorf("zero Start prints %q", got)
+	}
 }
