@@ -112,6 +112,7 @@ type measureSummaryJSON struct {
 	Files        int      `json:"files"`
 	Measured     int      `json:"measured"`
 	Damaged      int      `json:"damaged"`
+	Undeclared   int      `json:"undeclared,omitempty"`
 	Errors       int      `json:"errors"`
 	AudioSeconds float64  `json:"audio_s"`
 	Elapsed      *float64 `json:"elapsed_s"`
@@ -144,7 +145,7 @@ func (w *measureJSON) Write(m *measure.Measurement) error {
 
 func (w *measureJSON) Close(s Summary) error {
 	return w.doc.finish(measureSummaryJSON{
-		Files: s.Files, Measured: s.Measured(), Damaged: s.Damaged, Errors: s.Errors,
+		Files: s.Files, Measured: s.Measured(), Damaged: s.Damaged, Undeclared: s.Undeclared, Errors: s.Errors,
 		AudioSeconds: audioSeconds(s), Elapsed: elapsedSeconds(s),
 		Interrupted: s.Interrupted, Unfinished: s.Unfinished,
 	})

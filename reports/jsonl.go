@@ -43,7 +43,7 @@ func (w *measureJSONL) Write(m *measure.Measurement) error {
 func (w *measureJSONL) Close(s Summary) error {
 	if s.Interrupted {
 		w.lines.line(map[string]any{"summary": measureSummaryJSON{
-			Files: s.Files, Measured: s.Measured(), Damaged: s.Damaged, Errors: s.Errors,
+			Files: s.Files, Measured: s.Measured(), Damaged: s.Damaged, Undeclared: s.Undeclared, Errors: s.Errors,
 			AudioSeconds: audioSeconds(s), Elapsed: elapsedSeconds(s), Interrupted: true, Unfinished: s.Unfinished,
 		}}, "summary")
 	}

@@ -21,6 +21,9 @@ type Summary struct {
 	// Damaged counts measure's files whose audio is damaged: measured only
 	// as far as it decoded (check fails them instead).
 	Damaged int
+	// Undeclared counts measure's files that hold audio-like data past
+	// what their header declares: measured only as far as declared.
+	Undeclared int
 	// AudioSeconds is the total duration of the files measured.
 	AudioSeconds float64
 	// Elapsed is the wall time of the run; zero when unknown.
@@ -60,6 +63,9 @@ func (s *Summary) AddMeasurement(m *measure.Measurement) {
 	if m.Damaged != "" {
 		s.Damaged++
 	}
+	if m.Undeclared != nil {
+		s.Undeclared++
+	}
 	s.AudioSeconds += m.DurationS
 }
 
@@ -87,6 +93,9 @@ func (s Summary) MeasureString() string {
 	fmt.Fprintf(&b, "%s measured", plural(s.Measured(), "file"))
 	if s.Damaged > 0 {
 		fmt.Fprintf(&b, " (%d only in part: damaged)", s.Damaged)
+	}
+	if s.Undeclared > 0 {
+		fmt.Fprintf(&b, " (%d only as far as the header declares)", s.Undeclared)
 	}
 	if s.Errors > 0 {
 		fmt.Fprintf(&b, ", %d could not be", s.Errors)

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/binary"
 	"encoding/json"
 	"encoding/xml"
 	"os"
@@ -10,6 +11,8 @@ import (
 	"slices"
 	"strings"
 	"testing"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // demoDir is the bundled demo delivery folder (made by testdata/make-demo.go).
@@ -418,5 +421,39 @@ func TestSkipFlacMD5(t *testing.T) {
 		if got := strings.Contains(out, "MD5 verification turned off"); got != tc.note {
 			t.Errorf("%v: note present %v, want %v", tc.args, got, tc.note)
 		}
+	}
+}
+
+// TestMeasureUndeclaredIsIncomplete: `measure` of a WAV whose data chunk
+// declares half of the audio the file holds measures the declared half,
+// says so in its summary (text and JSON) and exits 2, as for damaged audio
+// (README.md, "Exit status").
+func TestMeasureUndeclaredIsIncomplete(t *testing.T) {
+	a := audiotest.DBFS(-18)
+	wav := audiotest.PCMWAV(48000, 2, 16, audiotest.Sine(48000, 4, 997, a, a))
+	at := bytes.Index(wav, []byte("data"))
+	declared := binary.LittleEndian.Uint32(wav[at+4:]) / 2
+	binary.LittleEndian.PutUint32(wav[at+4:], declared)
+	binary.LittleEndian.PutUint32(wav[4:], uint32(at+8-8)+declared)
+	path := filepath.Join(t.TempDir(), "rough-cut.wav")
+	if err := os.WriteFile(path, wav, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, _ := kweigh(t, "measure", path)
+	if code != exitTrouble || !strings.Contains(out, "(1 only as far as the header declares)") {
+		t.Errorf("text: exit %d, output\n%s", code, out)
+	}
+	code, out, _ = kweigh(t, "measure", "--format", "json", path)
+	var doc struct {
+		Files []struct {
+			DurationS float64 `json:"duration_s"`
+		} `json:"files"`
+		Summary map[string]float64 `json:"summary"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if code != exitTrouble || doc.Summary["undeclared"] != 1 || len(doc.Files) != 1 || doc.Files[0].DurationS != 2 {
+		t.Errorf("json: exit %d, summary %v, files %+v", code, doc.Summary, doc.Files)
 	}
 }

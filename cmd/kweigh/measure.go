@@ -84,8 +84,9 @@ func runMeasure(ctx context.Context, o batchOptions, args []string, stdout, stde
 	if err := writeVisuals(files, o.qc, false, stderr, kept, nil, nil); err != nil {
 		return err
 	}
-	// A damaged file is not a complete measurement: exit 2 as for errors.
-	if n := summary.Errors + summary.Damaged; n > 0 {
+	// A damaged file, or one with audio past what its header declares, is
+	// not a complete measurement: exit 2 as for errors.
+	if n := summary.Errors + summary.Damaged + summary.Undeclared; n > 0 {
 		return troubleError{n}
 	}
 	return nil
