@@ -134,7 +134,7 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func(measure.Op
 		rec.Result = errorResult(rec.Measurement)
 		return rec
 	}
-	rec.Measurement = measureIt(withSpecGroups(withSpecEvents(opt.Measure, spec), spec))
+	rec.Measurement = measureIt(MeasureOptionsFor(opt.Measure, spec))
 	if rec.Skipped = skip(t, rec.Measurement); rec.Skipped {
 		return rec
 	}
@@ -146,9 +146,24 @@ func judge(ctx context.Context, t Target, opt Options, measureIt func(measure.Op
 		rec.Result = errorResult(rec.Measurement)
 		return rec
 	}
-	r := rules.EvaluateGroups(spec, rec.Measurement, groupSpecs(spec))
+	r := Evaluate(spec, rec.Measurement)
 	rec.Result = &r
 	return rec
+}
+
+// MeasureOptionsFor returns o with what spec asks of the measurement: its
+// event limits and programme groups (options already set win). A front end
+// that measures on its own (fix, of the file it wrote) measures with these
+// and judges with Evaluate, so its verdict is the one Judge gives.
+func MeasureOptionsFor(o measure.Options, spec *rules.Spec) measure.Options {
+	return withSpecGroups(withSpecEvents(o, spec), spec)
+}
+
+// Evaluate judges a measurement by spec as Judge does: the whole file and
+// each programme group, a group's own spec named by the group resolved as
+// a built-in ID or a file beside the spec file.
+func Evaluate(spec *rules.Spec, m *measure.Measurement) rules.Result {
+	return rules.EvaluateGroups(spec, m, groupSpecs(spec))
 }
 
 // skip reports whether a measurement is of a non-audio file found by

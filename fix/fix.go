@@ -130,6 +130,9 @@ func File(ctx context.Context, path string, o Options) *Record {
 		}
 		return rec
 	}
+	if !wholeFileGroups(&before, m.Channels) {
+		return rec.refuse("its spec judges it in %d programme groups, and kweigh fix corrects a file as a whole (one gain, one limiter); correct each programme on its own and deliver the file again", len(before.Groups))
+	}
 	p, refusal := plan(m, o, k)
 	if refusal != "" {
 		return rec.refuse("%s", refusal)
@@ -161,7 +164,7 @@ func File(ctx context.Context, path string, o Options) *Record {
 // failing lists the ids of r's failing checks.
 func failing(r *rules.Result) []string {
 	var ids []string
-	for _, c := range r.Checks {
+	for _, c := range judged(r) {
 		if c.Verdict == rules.Fail || c.Verdict == rules.Error {
 			ids = append(ids, c.ID)
 		}
@@ -169,10 +172,41 @@ func failing(r *rules.Result) []string {
 	return ids
 }
 
+// judged returns every check of r: the file's and, when its spec judges it
+// in programme groups, those of each judged group (where the loudness and
+// true-peak checks then are).
+func judged(r *rules.Result) []rules.Check {
+	out := append([]rules.Check(nil), r.Checks...)
+	for _, g := range r.Groups {
+		if !g.MeasureOnly {
+			out = append(out, g.Checks...)
+		}
+	}
+	return out
+}
+
+// wholeFileGroups reports whether r's groups (if any) let one correction of
+// the whole file serve: no groups, or one judged group of every channel.
+func wholeFileGroups(r *rules.Result, channels int) bool {
+	var judgedGroups []rules.GroupResult
+	for _, g := range r.Groups {
+		if !g.MeasureOnly {
+			judgedGroups = append(judgedGroups, g)
+		}
+	}
+	switch len(judgedGroups) {
+	case 0:
+		return true
+	case 1:
+		return len(judgedGroups[0].Channels) == channels && len(judgedGroups[0].Streams) <= 1
+	}
+	return false
+}
+
 // needsFix reports whether the loudness or true-peak checks failed or
 // warned.
 func needsFix(r *rules.Result) bool {
-	for _, c := range r.Checks {
+	for _, c := range judged(r) {
 		if (c.ID == "integrated" || c.ID == "true_peak") && c.Verdict != rules.Pass {
 			return true
 		}

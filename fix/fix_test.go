@@ -246,3 +246,42 @@ func TestHighRates(t *testing.T) {
 		checkFixed(t, File(context.Background(), in, options(spec(t, "podcast"))), GainAndLimiting, -16, -1)
 	}
 }
+
+// TestOutputJudgedWithGroups: the written file is judged as `check` would
+// judge it (engine.Evaluate): a spec declaring a programme group judges the
+// output's group too, not just the whole file.
+func TestOutputJudgedWithGroups(t *testing.T) {
+	dir := t.TempDir()
+	s, err := rules.Parse("kweigh.toml", []byte("name = \"dunmore-main\"\nextends = \"podcast\"\n[[group]]\nname = \"main\"\nchannels = \"1-2\"\n"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := programme(t, 3, 8, 2, 48000, -10, -0.5)
+	in := writeWAV(t, dir, "loud.wav", wavSpec{rate: 48000, ch: 2, bits: 24}, x)
+	r := File(context.Background(), in, options(s))
+	checkFixed(t, r, Gain, -16, -1)
+	if len(r.Before.Groups) != 1 || len(r.After.Groups) != 1 || r.After.Groups[0].Name != "main" {
+		t.Fatalf("groups before %d, after %+v; want the group judged on both", len(r.Before.Groups), r.After.Groups)
+	}
+	if g := r.After.Groups[0]; g.Verdict != rules.Pass {
+		t.Errorf("output's group: %s %+v", g.Verdict, g.Checks)
+	}
+}
+
+// TestTwoGroupsRefused: a file its spec judges as two programmes (two
+// stereo pairs) that fails is refused with the reason, not corrected by one
+// gain that suits neither and not passed as "none needed".
+func TestTwoGroupsRefused(t *testing.T) {
+	dir := t.TempDir()
+	s, err := rules.Parse("kweigh.toml", []byte("name = \"dunmore-2x2\"\nextends = \"podcast\"\n"+
+		"[[group]]\nname = \"english\"\nchannels = \"1-2\"\n[[group]]\nname = \"welsh\"\nchannels = \"3-4\"\n"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := programme(t, 4, 8, 4, 48000, -10, -0.5)
+	in := writeWAV(t, dir, "two-pairs.wav", wavSpec{rate: 48000, ch: 4, bits: 24}, x)
+	r := File(context.Background(), in, options(s))
+	if r.Action != Refused || !strings.Contains(r.Reason, "2 programme groups") || r.Output != nil {
+		t.Errorf("action %q, reason %q, output %v", r.Action, r.Reason, r.Output)
+	}
+}

@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/engine"
 	"github.com/kweigh/kweigh/loudness/limiter"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/rules"
@@ -348,7 +349,7 @@ func (w *work) write(ctx context.Context) (*rules.Result, string, error) {
 			return nil, "", err
 		}
 	}
-	opt := w.o.Measure
+	opt := engine.MeasureOptionsFor(w.o.Measure, w.o.Spec)
 	opt.Decode.SkipMD5 = false // the output is proved in full
 	am := measure.File(ctx, name, opt)
 	if am.Error != "" {
@@ -370,7 +371,7 @@ func (w *work) write(ctx context.Context) (*rules.Result, string, error) {
 		}
 	}
 	am.Path = w.dest
-	after := rules.Evaluate(w.o.Spec, am) // the same judgement engine.Judge makes, of the patched output
+	after := engine.Evaluate(w.o.Spec, am) // the judgement engine.Judge makes (groups, event limits), of the patched output
 	ok = true
 	return &after, name, nil
 }
@@ -418,7 +419,7 @@ func loudnessPasses(r *rules.Result) bool {
 
 func failingLoudness(r *rules.Result) string {
 	var s []string
-	for _, c := range r.Checks {
+	for _, c := range judged(r) {
 		if (c.ID == "integrated" || c.ID == "true_peak") && c.Verdict == rules.Fail {
 			s = append(s, c.Reason)
 		}
