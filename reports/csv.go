@@ -3,6 +3,7 @@ package reports
 import (
 	"encoding/csv"
 	"io"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -39,8 +40,8 @@ var measurementColumns = []column[*measure.Measurement]{
 var resultColumns = []column[*rules.Result]{
 	{"suggested_gain_db", func(r *rules.Result) string { return csvFigure(r.SuggestedGainDB) }},
 	{"limiter_reduction_db", func(r *rules.Result) string { return csvFigure(r.LimiterReductionDB) }},
-	{"failed_checks", func(r *rules.Result) string { return checkIDs(r.Checks, rules.Fail, rules.Error) }},
-	{"warned_checks", func(r *rules.Result) string { return checkIDs(r.Checks, rules.Warn) }},
+	{"failed_checks", func(r *rules.Result) string { return checkIDs(r, rules.Fail, rules.Error) }},
+	{"warned_checks", func(r *rules.Result) string { return checkIDs(r, rules.Warn) }},
 }
 
 // csvFigure writes a dB figure with two decimals; empty when undefined.
@@ -51,17 +52,45 @@ func csvFigure(p *float64) string {
 	return Fixed(*p, 2)
 }
 
-func checkIDs(checks []rules.Check, verdicts ...rules.Verdict) string {
+// checkIDs lists the IDs of r's checks with one of the verdicts, the
+// file's first, then each programme group's as GROUP/ID (with groups, the
+// loudness checks are judged per group and live there).
+func checkIDs(r *rules.Result, verdicts ...rules.Verdict) string {
 	var ids []string
-	for _, c := range checks {
-		for _, v := range verdicts {
-			if c.Verdict == v {
-				ids = append(ids, c.ID)
-				break
-			}
+	for _, nc := range namedChecks(r) {
+		if slices.Contains(verdicts, nc.Verdict) {
+			ids = append(ids, nc.name)
 		}
 	}
 	return strings.Join(ids, ";")
+}
+
+// namedCheck is a check with the name the flat formats give it: its ID,
+// or GROUP/ID for a programme group's check.
+type namedCheck struct {
+	rules.Check
+	name string
+	// of is the result the check belongs to (the file's or its group's),
+	// whose suggested gain and advice go with it.
+	of *rules.Result
+}
+
+// namedChecks returns the file's checks, then each judged group's.
+func namedChecks(r *rules.Result) []namedCheck {
+	var out []namedCheck
+	for _, c := range r.Checks {
+		out = append(out, namedCheck{Check: c, name: c.ID, of: r})
+	}
+	for i := range r.Groups {
+		g := &r.Groups[i]
+		if g.MeasureOnly {
+			continue
+		}
+		for _, c := range g.Checks {
+			out = append(out, namedCheck{Check: c, name: g.Name + "/" + c.ID, of: &g.Result})
+		}
+	}
+	return out
 }
 
 // MeasureColumns returns the header of the measure CSV format: path, the

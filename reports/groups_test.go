@@ -2,7 +2,10 @@ package reports
 
 import (
 	"bytes"
+	"encoding/csv"
 	"encoding/json"
+	"encoding/xml"
+	"slices"
 	"strings"
 	"testing"
 
@@ -82,5 +85,50 @@ func TestGroupsInReports(t *testing.T) {
 		if !strings.Contains(text, want) {
 			t.Errorf("text lacks %q:\n%s", want, text)
 		}
+	}
+}
+
+// TestGroupsInFlatFormats: CSV names a failing group's checks as
+// GROUP/ID in failed_checks (the file's own checks are empty with groups,
+// so without them a failing file would show no failure), and JUnit gives
+// each group's check a test case of that name with its failure.
+func TestGroupsInFlatFormats(t *testing.T) {
+	var b bytes.Buffer
+	w, err := NewCheckWriter(&b, CSV, testOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	w.Write(groupResult())
+	w.Close(Summary{Files: 1, Failed: 1})
+	rows, err := csv.NewReader(strings.NewReader(b.String())).ReadAll()
+	if err != nil || len(rows) != 2 {
+		t.Fatalf("csv %v:\n%s", err, b.String())
+	}
+	col := slices.Index(rows[0], "failed_checks")
+	if col < 0 || rows[1][col] != "stereo/integrated" {
+		t.Errorf("failed_checks column %d: %q", col, rows[1])
+	}
+
+	b.Reset()
+	w, _ = NewCheckWriter(&b, JUnit, testOptions())
+	w.Write(groupResult())
+	w.Close(Summary{Files: 1, Failed: 1})
+	var suites struct {
+		Suites []struct {
+			Cases []struct {
+				Name    string `xml:"name,attr"`
+				Failure *struct {
+					Message string `xml:"message,attr"`
+				} `xml:"failure"`
+			} `xml:"testcase"`
+		} `xml:"testsuite"`
+	}
+	if err := xml.Unmarshal(b.Bytes(), &suites); err != nil || len(suites.Suites) != 1 {
+		t.Fatalf("junit %v:\n%s", err, b.String())
+	}
+	cs := suites.Suites[0].Cases
+	if len(cs) != 1 || cs[0].Name != "stereo/integrated" || cs[0].Failure == nil ||
+		!strings.Contains(cs[0].Failure.Message, "3.6 LU above") {
+		t.Errorf("junit cases %+v\n%s", cs, b.String())
 	}
 }

@@ -105,11 +105,12 @@ func suiteName(spec string) string {
 	return "kweigh check: " + spec
 }
 
-// cases turns one result into its test cases: one per check, or a single
+// cases turns one result into its test cases: one per check (a programme
+// group's named GROUP/ID), or a single
 // "measure" case in error for a file that could not be measured.
 func (j *checkJUnit) cases(r *rules.Result) []junitCase {
 	path := measurementPath(r.Measurement)
-	if fileVerdict(r) == rules.Error && len(r.Checks) == 0 {
+	if fileVerdict(r) == rules.Error && len(r.Checks) == 0 && len(r.Groups) == 0 {
 		msg := "could not be checked"
 		if r.Measurement == nil {
 			msg += ": no measurement"
@@ -119,17 +120,19 @@ func (j *checkJUnit) cases(r *rules.Result) []junitCase {
 		return []junitCase{{ClassName: path, Name: "measure",
 			Error: &junitProblem{Message: msg, Type: string(rules.Error), Text: msg}}}
 	}
-	cases := make([]junitCase, 0, len(r.Checks))
-	for _, c := range r.Checks {
-		jc := junitCase{ClassName: path, Name: c.ID}
+	checks := namedChecks(r)
+	cases := make([]junitCase, 0, len(checks))
+	for _, nc := range checks {
+		c := nc.Check
+		jc := junitCase{ClassName: path, Name: nc.name}
 		detail := checkDetail(c)
 		switch {
 		case c.Verdict == rules.Error:
-			jc.Error = &junitProblem{Message: detail, Type: string(rules.Error), Text: problemText(r, detail)}
+			jc.Error = &junitProblem{Message: detail, Type: string(rules.Error), Text: problemText(nc.of, detail)}
 		case c.Verdict == rules.Fail:
-			jc.Failure = &junitProblem{Message: detail, Type: string(rules.Fail), Text: problemText(r, detail)}
+			jc.Failure = &junitProblem{Message: detail, Type: string(rules.Fail), Text: problemText(nc.of, detail)}
 		case c.Verdict == rules.Warn && j.opts.Strict:
-			jc.Failure = &junitProblem{Message: detail, Type: string(rules.Warn), Text: problemText(r, detail)}
+			jc.Failure = &junitProblem{Message: detail, Type: string(rules.Warn), Text: problemText(nc.of, detail)}
 		case c.Verdict == rules.Warn:
 			jc.SystemOut = "WARN: " + detail
 		}
