@@ -11,6 +11,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/engine"
+	"github.com/kweigh/kweigh/internal/leftovers"
 	"github.com/kweigh/kweigh/loudness/limiter"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/rules"
@@ -273,7 +274,10 @@ func (w *work) write(ctx context.Context) (*rules.Result, string, error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return nil, "", err
 	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(w.dest)+".kweigh-*.tmp")
+	// Named after this process, so that a later run removes what a killed
+	// one left beside the same destination (package leftovers).
+	leftovers.Sweep(dir, "."+filepath.Base(w.dest)+".kweigh-", ".tmp")
+	tmp, err := os.CreateTemp(dir, leftovers.Pattern("."+filepath.Base(w.dest)+".kweigh-", ".tmp"))
 	if err != nil {
 		return nil, "", err
 	}

@@ -1,6 +1,7 @@
 package queue
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
@@ -15,6 +16,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/engine"
+	"github.com/kweigh/kweigh/internal/leftovers"
 	"github.com/kweigh/kweigh/measure"
 	"github.com/kweigh/kweigh/rules"
 )
@@ -82,6 +84,8 @@ func (c Config) withDefaults() Config {
 // It returns nil after such a stop; an error only when it cannot start.
 func (q *Queue) Work(ctx context.Context, cfg Config) error {
 	cfg = cfg.withDefaults()
+	// Job files of a worker that was killed mid-job (package leftovers).
+	leftovers.Sweep(cmp.Or(cfg.TempDir, os.TempDir()), "kweigh-job-", "")
 	var cons jetstream.Consumer
 	if err := retry(ctx, func(ctx context.Context) error {
 		var err error
@@ -241,7 +245,7 @@ func (q *Queue) judge(ctx context.Context, cfg Config, job Job) engine.Record {
 	if err != nil {
 		return failed(job, fmt.Errorf("audio bucket %s: %w", q.names.AudioBucket(), err))
 	}
-	tmp, err := os.CreateTemp(cfg.TempDir, "kweigh-job-*"+strings.ToLower(filepath.Ext(job.Name)))
+	tmp, err := os.CreateTemp(cfg.TempDir, leftovers.Pattern("kweigh-job-", strings.ToLower(filepath.Ext(job.Name))))
 	if err != nil {
 		return failed(job, fmt.Errorf("worker %s: temporary file: %w", cfg.Name, err))
 	}

@@ -1,6 +1,7 @@
 package serve
 
 import (
+	"cmp"
 	"context"
 	"crypto/rand"
 	"encoding/hex"
@@ -16,6 +17,7 @@ import (
 	"sync/atomic"
 	"time"
 
+	"github.com/kweigh/kweigh/internal/leftovers"
 	"github.com/kweigh/kweigh/rules"
 )
 
@@ -133,7 +135,12 @@ func New(cfg Config) (*Server, error) {
 			return nil, fmt.Errorf("--keep: %w", err)
 		}
 	}
-	tmp, err := os.MkdirTemp(cfg.TempDir, "kweigh-serve-")
+	// The folder is named after this process; folders of servers that were
+	// killed (no Close ran) are removed first (package leftovers).
+	for _, gone := range leftovers.Sweep(cmp.Or(cfg.TempDir, os.TempDir()), "kweigh-serve-", "") {
+		cfg.Logger.Info("removed the temporary folder of an ended server", "path", gone)
+	}
+	tmp, err := os.MkdirTemp(cfg.TempDir, leftovers.Pattern("kweigh-serve-", ""))
 	if err != nil {
 		return nil, fmt.Errorf("serve: temporary folder: %w", err)
 	}

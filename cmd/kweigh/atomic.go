@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+
+	"github.com/kweigh/kweigh/internal/leftovers"
 )
 
 // pendingFile is an output written under a temporary name in the folder of
@@ -25,7 +27,10 @@ func createPending(final string) (*pendingFile, error) {
 	if dir == "" {
 		dir = "."
 	}
-	f, err := os.CreateTemp(dir, "."+base+".*.part")
+	// Named after this process, so that a later run removes what a killed
+	// one left (package leftovers).
+	leftovers.Sweep(dir, "."+base+".kweigh-", ".part")
+	f, err := os.CreateTemp(dir, leftovers.Pattern("."+base+".kweigh-", ".part"))
 	if err != nil {
 		return nil, err
 	}

@@ -10,6 +10,8 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
+	"strconv"
 	"strings"
 	"sync"
 	"syscall"
@@ -227,6 +229,57 @@ func TestServeStopsOnSignals(t *testing.T) {
 				t.Errorf("temporary folder left in $TMPDIR: %v", entries)
 			}
 		})
+	}
+}
+
+// TestServeAfterKill: a server killed with SIGKILL runs no clean-up and
+// leaves its private folder in $TMPDIR; the next server started there
+// removes it (internal/leftovers), and not the folder of a server still
+// running beside it.
+func TestServeAfterKill(t *testing.T) {
+	bin := kweighBinary(t)
+	tmp := filepath.Join(t.TempDir(), "tmp")
+	os.Mkdir(tmp, 0o700)
+	start := func() *exec.Cmd {
+		addr := freePort(t)
+		cmd := exec.Command(bin, "serve", "--listen", addr, "--jobs", "1")
+		cmd.Env = append(os.Environ(), "TMPDIR="+tmp)
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		t.Cleanup(func() { cmd.Process.Kill(); cmd.Wait() })
+		waitHealthy(t, "http://"+addr)
+		return cmd
+	}
+	folders := func() []string {
+		entries, _ := os.ReadDir(tmp)
+		var names []string
+		for _, e := range entries {
+			names = append(names, e.Name())
+		}
+		return names
+	}
+	killed := start()
+	first := folders()
+	if len(first) != 1 || !strings.HasPrefix(first[0], "kweigh-serve-"+strconv.Itoa(killed.Process.Pid)+"-") {
+		t.Fatalf("folders of the first server: %v", first)
+	}
+	killed.Process.Kill()
+	killed.Wait()
+	if got := folders(); len(got) != 1 {
+		t.Fatalf("after SIGKILL: %v, want the folder left behind", got)
+	}
+	alive := start()
+	second := start()
+	got := folders()
+	want := []string{"kweigh-serve-" + strconv.Itoa(alive.Process.Pid) + "-", "kweigh-serve-" + strconv.Itoa(second.Process.Pid) + "-"}
+	if len(got) != 2 || slices.Contains(got, first[0]) {
+		t.Fatalf("folders with two servers running after the kill: %v (killed one's: %s)", got, first[0])
+	}
+	for _, w := range want {
+		if !slices.ContainsFunc(got, func(n string) bool { return strings.HasPrefix(n, w) }) {
+			t.Errorf("no folder %s* among %v", w, got)
+		}
 	}
 }
 
