@@ -95,3 +95,88 @@ done:
 	VMOVHPD      X12, ed+128(FP)
 	VZEROUPPER
 	RET
+
+// func energyStagedAVX2(s *kweightStaged, a, b []float64) (e0, e1 float64)
+//
+// Two channels, both stages, in the four lanes of one AVX2 register: lanes
+// 0 and 1 run the shelf of channels a and b on sample i, lanes 2 and 3 the
+// high-pass of the same channels on sample i−3, whose input is the shelf
+// output of lanes 0 and 1 three iterations earlier (kept in Y13). Three
+// samples apart, the path from a shelf output through the high-pass
+// lanes' additions back into the register spans three iterations and no
+// longer sets the pace. Both stages are the same biquad form, the
+// high-pass with the numerator [1, −2, 1], whose products are exact
+// (1·u = u, −2·u₁ = −(2·u₁), and u + (−2·u₁) is u − 2·u₁ in IEEE
+// arithmetic), so every lane computes exactly what Energy computes:
+//
+//	y = (((B0·x + B1·x1) + B2·x2) − A2·y2) − A1·y1
+//	e += y·y
+//
+// The caller runs the shelf of samples 0…2 before and the high-pass of the
+// last three samples after (energyPairStaged), so the loop covers samples
+// 3 … len(a)−1 of the shelf; it returns Σ y² of lanes 2 and 3 (the
+// high-pass outputs of samples 0 … len(a)−4), added in sample order from 0.
+//
+// Registers: Y0 B0, Y1 B1, Y2 B2, Y3 A1, Y4 A2; state Y5 x1, Y6 x2,
+// Y7 y1, Y8 y2, Y13 the shelf outputs of three samples ago; Y9 e;
+// Y10–Y12 scratch. SI, DI the inputs, DX s, BX index, CX length.
+TEXT ·energyStagedAVX2(SB), NOSPLIT, $0-72
+	MOVQ s+0(FP), DX
+	MOVQ a_base+8(FP), SI
+	MOVQ a_len+16(FP), CX
+	MOVQ b_base+32(FP), DI
+
+	VMOVUPD kweightStaged_b0(DX), Y0
+	VMOVUPD kweightStaged_b1(DX), Y1
+	VMOVUPD kweightStaged_b2(DX), Y2
+	VMOVUPD kweightStaged_a1(DX), Y3
+	VMOVUPD kweightStaged_a2(DX), Y4
+	VMOVUPD kweightStaged_x1(DX), Y5
+	VMOVUPD kweightStaged_x2(DX), Y6
+	VMOVUPD kweightStaged_y1(DX), Y7
+	VMOVUPD kweightStaged_y2(DX), Y8
+	VMOVUPD kweightStaged_d(DX), Y13
+	VXORPD  Y9, Y9, Y9
+
+	MOVQ $3, BX
+	CMPQ BX, CX
+	JGE  done
+
+loop:
+	VMOVSD      (SI)(BX*8), X10
+	VMOVHPD     (DI)(BX*8), X10, X10
+	VINSERTF128 $1, X13, Y10, Y10 // x: the new samples, then the shelf outputs of sample i−3
+
+	VMULPD  Y0, Y10, Y11
+	VMULPD  Y1, Y5, Y12
+	VADDPD  Y12, Y11, Y11
+	VMULPD  Y2, Y6, Y12
+	VADDPD  Y12, Y11, Y11
+	VMULPD  Y4, Y8, Y12
+	VSUBPD  Y12, Y11, Y11
+	VMULPD  Y3, Y7, Y12
+	VSUBPD  Y12, Y11, Y11 // Y11 = y
+	VMOVAPD Y5, Y6        // x2 = x1
+	VMOVAPD Y10, Y5       // x1 = x
+	VMOVAPD Y8, Y13       // three samples ago = y2
+	VMOVAPD Y7, Y8        // y2 = y1
+	VMOVAPD Y11, Y7       // y1 = y
+
+	VMULPD Y11, Y11, Y12
+	VADDPD Y12, Y9, Y9 // e += y·y
+
+	INCQ BX
+	CMPQ BX, CX
+	JLT  loop
+
+done:
+	VMOVUPD      Y5, kweightStaged_x1(DX)
+	VMOVUPD      Y6, kweightStaged_x2(DX)
+	VMOVUPD      Y7, kweightStaged_y1(DX)
+	VMOVUPD      Y8, kweightStaged_y2(DX)
+	VMOVUPD      Y13, kweightStaged_d(DX)
+	VEXTRACTF128 $1, Y9, X10
+	VMOVSD       X10, e0+56(FP)
+	VMOVHPD      X10, e1+64(FP)
+	VZEROUPPER
+	RET
