@@ -291,19 +291,72 @@ done:
 	VMULPD  peak2Coeffs4<>+(64*t+32)(SB), Y2, Y2 \
 	VADDPD  Y2, Y5, Y5
 
+// TAP2X8 is TAP2X4 for two groups of four windows (windows 0–3 in Y4, Y5,
+// windows 4–7 in Y6, Y7), each coefficient loaded once for both.
+#define TAP2X8(t) \
+	VMOVUPD peak2Coeffs4<>+(64*t)(SB), Y10 \
+	VMOVUPD peak2Coeffs4<>+(64*t+32)(SB), Y11 \
+	VMULPD  (88-8*t)(SI), Y10, Y1 \
+	VADDPD  Y1, Y4, Y4 \
+	VMULPD  (120-8*t)(SI), Y10, Y2 \
+	VADDPD  Y2, Y6, Y6 \
+	VMULPD  (8*t)(SI), Y11, Y3 \
+	VADDPD  Y3, Y5, Y5 \
+	VMULPD  (32+8*t)(SI), Y11, Y9 \
+	VADDPD  Y9, Y7, Y7
+
 // func peak2QuadsAVX2(w []float64, sq float64) float64
 //
 // peak2SquaresGo over the first 4·⌊(len(w)−11)/4⌋ windows of w, four
-// windows in the four lanes. Registers: SI window start, CX windows left;
-// Y4 y0, Y5 y2; Y0 and Y8 running maxima.
+// windows in the four lanes. Each output is a chain of twelve dependent
+// additions, so the main loop runs two groups of four windows side by side
+// (loop8) to give the processor independent work; a last group of four
+// goes through loop2. Registers: SI window start, CX windows left; Y4 y0,
+// Y5 y2 (and Y6, Y7 for the second group); Y0 and Y8 running maxima.
 TEXT ·peak2QuadsAVX2(SB), NOSPLIT, $0-40
 	MOVQ         w_base+0(FP), SI
 	MOVQ         w_len+8(FP), CX
 	VBROADCASTSD sq+24(FP), Y0
 	VMOVAPD      Y0, Y8
 	SUBQ         $11, CX
-	CMPQ         CX, $4
-	JLT          done2
+	CMPQ         CX, $8
+	JLT          quad2
+
+loop8:
+	VMOVUPD peak2Coeffs4<>+0(SB), Y10
+	VMOVUPD peak2Coeffs4<>+32(SB), Y11
+	VMULPD  88(SI), Y10, Y4
+	VMULPD  120(SI), Y10, Y6
+	VMULPD  0(SI), Y11, Y5
+	VMULPD  32(SI), Y11, Y7
+	TAP2X8(1)
+	TAP2X8(2)
+	TAP2X8(3)
+	TAP2X8(4)
+	TAP2X8(5)
+	TAP2X8(6)
+	TAP2X8(7)
+	TAP2X8(8)
+	TAP2X8(9)
+	TAP2X8(10)
+	TAP2X8(11)
+	VMULPD Y4, Y4, Y4
+	VMULPD Y5, Y5, Y5
+	VMULPD Y6, Y6, Y6
+	VMULPD Y7, Y7, Y7
+	VMAXPD Y0, Y4, Y0
+	VMAXPD Y8, Y5, Y8
+	VMAXPD Y0, Y6, Y0
+	VMAXPD Y8, Y7, Y8
+
+	ADDQ $64, SI
+	SUBQ $8, CX
+	CMPQ CX, $8
+	JGE  loop8
+
+quad2:
+	CMPQ CX, $4
+	JLT  done2
 
 loop2:
 	// Tap 0 starts the sums (0 + p is p up to the sign of a zero, which
