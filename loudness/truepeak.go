@@ -205,8 +205,8 @@ func (t *TruePeak) Flush(floor float64) float64 {
 const skipRun = 32
 
 // peakRuns applies kernel to w (history samples, then new ones) run by run,
-// skipping a run when gain × max|x| over the run and its 11 predecessors is
-// at most floor: no interpolated value in it can then exceed floor, so the
+// skipping a run when gain × max|x| over the run and its 11 predecessors
+// (runMaxBits; a few samples more do no harm) is at most floor: no interpolated value in it can then exceed floor, so the
 // result is exactly what the unskipped kernel would give. The run holding
 // the largest sample goes first so that floor rises early; then each
 // stretch of consecutive runs that cannot be skipped goes to the kernel in
@@ -221,11 +221,9 @@ func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor f
 	}
 	var runMax [chunkFrames/skipRun + 1]float64
 	runs := (n + skipRun - 1) / skipRun
+	runMaxBits(w, runMax[:], runs)
 	best, bestRun := -1.0, 0
-	for r := range runs {
-		lo, hi := r*skipRun, min((r+1)*skipRun, n)+history
-		m := maxAbs(w[lo:hi])
-		runMax[r] = m
+	for r, m := range runMax[:runs] {
 		if m > best {
 			best, bestRun = m, r
 		}

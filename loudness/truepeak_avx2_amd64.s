@@ -437,3 +437,63 @@ doneabs:
 	VZEROUPPER
 	MOVQ         X0, ret+24(FP)
 	RET
+
+// MAXBITS sets acc to the lane-wise larger of acc and v as signed 64-bit
+// integers (the bit patterns of magnitudes), using tmp.
+#define MAXBITS(v, acc, tmp) \
+	VPCMPGTQ  acc, v, tmp \
+	VPBLENDVB tmp, v, acc, acc
+
+// func runMaxBitsAVX2(w []float64, out []uint64)
+//
+// For every r < len(out), out[r] is the largest bit pattern of |x| over
+// w[32r : 32r+44] (the caller guarantees 32·(len(out)−1)+44 ≤ len(w)):
+// the pre-scan of peakRuns, whose run r covers w[32r : 32r+43], for all
+// runs of a chunk in one pass. Y6 holds the mask of everything but the sign
+// bit; Y0, Y1 two running maxima per run.
+TEXT ·runMaxBitsAVX2(SB), NOSPLIT, $0-48
+	MOVQ         w_base+0(FP), SI
+	MOVQ         out_base+24(FP), DI
+	MOVQ         out_len+32(FP), CX
+	MOVQ         $0x7fffffffffffffff, AX
+	MOVQ         AX, X6
+	VPBROADCASTQ X6, Y6
+	TESTQ        CX, CX
+	JZ           doneruns
+
+loopruns:
+	VPAND (SI), Y6, Y0
+	VPAND 32(SI), Y6, Y1
+	VPAND 64(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	VPAND 96(SI), Y6, Y3
+	MAXBITS(Y3, Y1, Y5)
+	VPAND 128(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	VPAND 160(SI), Y6, Y3
+	MAXBITS(Y3, Y1, Y5)
+	VPAND 192(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	VPAND 224(SI), Y6, Y3
+	MAXBITS(Y3, Y1, Y5)
+	VPAND 256(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	VPAND 288(SI), Y6, Y3
+	MAXBITS(Y3, Y1, Y5)
+	VPAND 320(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	MAXBITS(Y1, Y0, Y5)
+	VEXTRACTI128 $1, Y0, X1
+	MAXBITS(X1, X0, X5)
+	VPSHUFD      $0x4e, X0, X1
+	MAXBITS(X1, X0, X5)
+	MOVQ         X0, (DI)
+
+	ADDQ $256, SI
+	ADDQ $8, DI
+	DECQ CX
+	JNZ  loopruns
+
+doneruns:
+	VZEROUPPER
+	RET
