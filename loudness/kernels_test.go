@@ -357,3 +357,84 @@ func TestRunMaxBitsCoversRuns(t *testing.T) {
 		}
 	})
 }
+
+// TestEnergyOneMatchesEnergy checks the single-channel path the meter
+// takes for an odd weighted channel against Energy: energy and state bit
+// for bit, every signal and write size, on every kernel set.
+func TestEnergyOneMatchesEnergy(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		for _, rate := range []int{8000, 48000, 192000} {
+			for _, n := range kernelLengths {
+				for name, x := range kernelSignals(n) {
+					for _, step := range []int{1, 3, 4, 1024} {
+						k := NewKWeighting(rate)
+						ref := k
+						for i := 0; i < n; i += step {
+							j := min(i+step, n)
+							if got, want := energyOne(&k, x[i:j]), ref.Energy(x[i:j]); !sameBits(got, want) {
+								t.Fatalf("%d Hz, %s, %d samples in writes of %d, samples %d–%d: %.17g, Energy %.17g", rate, name, n, step, i, j, got, want)
+							}
+							if !sameState(&k, &ref) {
+								t.Fatalf("%d Hz, %s, %d samples in writes of %d: state differs from Energy's", rate, name, n, step)
+							}
+						}
+					}
+				}
+			}
+		}
+	})
+}
+
+// TestSplit6MatchesGo checks the one-pass 5.1 de-interleave (split6)
+// against splitChannel, the reference, for every chunk length up to 40
+// frames with a bad or extreme sample in every channel position: the six
+// inputs and block peaks bit for bit, and a refusal (false) exactly when
+// the chunk holds a sample the meter cannot measure; on every kernel set.
+func TestSplit6MatchesGo(t *testing.T) {
+	forEachKernelSet(t, testSplit6MatchesGo)
+}
+
+func testSplit6MatchesGo(t *testing.T) {
+	weights := []float64{1, 1, 1, 0, 1.41, 1.41}
+	var chans [6][]float64
+	for c := range chans {
+		chans[c] = musicLike(uint64(30+c), 40, 48000)
+	}
+	base := interleave(chans[:]...)
+	for n := range 41 {
+		for _, bad := range []float64{0, math.NaN(), math.Inf(1), -2 * MaxMagnitude, -MaxMagnitude, -3, -0.0} {
+			for at := 0; at < max(1, 6*n); at += 5 {
+				frames := append([]float64(nil), base[:6*n]...)
+				if n > 0 && bad != 0 {
+					frames[at] = bad
+				}
+				got, _ := NewMeter(48000, weights)
+				want, _ := NewMeter(48000, weights)
+				for c := range 6 {
+					got.blockPeak[c], want.blockPeak[c] = 0.01*float64(c), 0.01*float64(c)
+				}
+				ok := got.split6(frames, n)
+				for c := range 6 {
+					want.splitChannel(frames, n, c)
+				}
+				if ok != (want.rejected == 0) {
+					t.Fatalf("%d frames, %v at %d: split6 %v, reference rejected %d", n, bad, at, ok, want.rejected)
+				}
+				if !ok {
+					continue
+				}
+				for c := range 6 {
+					g, w := got.peaks[c].input(n), want.peaks[c].input(n)
+					for i := range n {
+						if !sameBits(g[i], w[i]) {
+							t.Fatalf("%d frames: channel %d sample %d is %v, want %v", n, c, i, g[i], w[i])
+						}
+					}
+					if !sameBits(got.blockPeak[c], want.blockPeak[c]) {
+						t.Fatalf("%d frames, %v at %d: channel %d peak %v, want %v", n, bad, at, c, got.blockPeak[c], want.blockPeak[c])
+					}
+				}
+			}
+		}
+	}
+}

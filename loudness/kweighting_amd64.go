@@ -44,6 +44,19 @@ func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	return ea, eb
 }
 
+// energyOne returns k.Energy(a), bit for bit, leaving the state as Energy
+// would. With AVX2 the channel runs through energyPairStaged beside a
+// scratch copy of itself: half the lanes are wasted, but the two stages
+// then run side by side instead of one after the other.
+func energyOne(k *KWeighting, a []float64) float64 {
+	if kernels < avx2Kernels {
+		return k.Energy(a)
+	}
+	scratch := *k
+	e, _ := energyPairStaged(k, &scratch, a, a)
+	return e
+}
+
 // energyPairStaged is energyPair with AVX2 (energyStagedAVX2): the shelf
 // of both channels in lanes 0 and 1 and their high-pass in lanes 2 and 3,
 // three samples behind, so one register carries all four recursions of a
