@@ -438,3 +438,51 @@ func testSplit6MatchesGo(t *testing.T) {
 		}
 	}
 }
+
+// TestTruePeakSameOnEverySet runs the whole detector (pre-scan, skip,
+// stretches of runs, kernels, tails, flush) over signals in 100 ms writes
+// at 48 and 96 kHz on every kernel set and demands the go set's peak of
+// every write bit for bit: programme, dense noise, spikes, and a periodic
+// signal whose every run peaks at about the same height (so that the skip
+// test decides at the margin).
+func TestTruePeakSameOnEverySet(t *testing.T) {
+	for _, rate := range []int{48000, 96000} {
+		n := 2 * rate
+		periodic := make([]float64, n)
+		for i := range periodic {
+			periodic[i] = 0.7*math.Sin(2*math.Pi*float64(i)/32.0+0.4) + 0.2*math.Sin(2*math.Pi*float64(i)/7.3)
+		}
+		sigs := map[string][]float64{
+			"programme": musicLike(61, n, rate),
+			"dense":     denseFullScale(62, n),
+			"spikes":    kernelSignals(n)["spikes"],
+			"periodic":  periodic,
+		}
+		peaks := func() map[string][]float64 {
+			out := map[string][]float64{}
+			for name, x := range sigs {
+				tp, _ := NewTruePeak(rate)
+				for f := x; len(f) > 0; {
+					k := min(len(f), rate/10)
+					out[name] = append(out[name], tp.Peak(f[:k], 0))
+					f = f[k:]
+				}
+				out[name] = append(out[name], tp.Flush(0))
+			}
+			return out
+		}
+		restore, _ := useKernels(goKernels)
+		want := peaks()
+		restore()
+		forEachKernelSet(t, func(t *testing.T) {
+			got := peaks()
+			for name := range sigs {
+				for i := range want[name] {
+					if !sameBits(got[name][i], want[name][i]) {
+						t.Fatalf("%d Hz, %s, write %d: %.17g, go set %.17g", rate, name, i, got[name][i], want[name][i])
+					}
+				}
+			}
+		})
+	}
+}
