@@ -119,7 +119,8 @@ done:
 //
 // Registers: Y0 B0, Y1 B1, Y2 B2, Y3 A1, Y4 A2; state Y5 x1, Y6 x2,
 // Y7 y1, Y8 y2, Y13 the shelf outputs of three samples ago; Y9 e;
-// Y10–Y12 scratch. SI, DI the inputs, DX s, BX index, CX length.
+// Y10–Y12 (and Y14 in loop12) scratch. SI, DI the inputs, DX s, BX index,
+// CX length.
 TEXT ·energyStagedAVX2(SB), NOSPLIT, $0-72
 	MOVQ s+0(FP), DX
 	MOVQ a_base+8(FP), SI
@@ -139,6 +140,188 @@ TEXT ·energyStagedAVX2(SB), NOSPLIT, $0-72
 	VXORPD  Y9, Y9, Y9
 
 	MOVQ $3, BX
+
+	// Twelve samples per iteration while twelve are left (loop12): the
+	// histories rotate through registers instead of being moved (x, x1,
+	// x2 through Y10, Y6, Y5; y, y1, y2 and the shelf outputs of three
+	// samples ago through Y14, Y13, Y8, Y7), and after twelve samples every
+	// value is back in the register loop expects it in.
+loop12:
+	LEAQ 12(BX), AX
+	CMPQ AX, CX
+	JGT  tail
+	VMOVSD      0(SI)(BX*8), X10
+	VMOVHPD     0(DI)(BX*8), X10, X10
+	VINSERTF128 $1, X13, Y10, Y10
+	VMULPD      Y0, Y10, Y11
+	VMULPD      Y1, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y8, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y7, Y12
+	VSUBPD      Y12, Y11, Y14
+	VMULPD      Y14, Y14, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      8(SI)(BX*8), X6
+	VMOVHPD     8(DI)(BX*8), X6, X6
+	VINSERTF128 $1, X8, Y6, Y6
+	VMULPD      Y0, Y6, Y11
+	VMULPD      Y1, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y7, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y14, Y12
+	VSUBPD      Y12, Y11, Y13
+	VMULPD      Y13, Y13, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      16(SI)(BX*8), X5
+	VMOVHPD     16(DI)(BX*8), X5, X5
+	VINSERTF128 $1, X7, Y5, Y5
+	VMULPD      Y0, Y5, Y11
+	VMULPD      Y1, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y14, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y13, Y12
+	VSUBPD      Y12, Y11, Y8
+	VMULPD      Y8, Y8, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      24(SI)(BX*8), X10
+	VMOVHPD     24(DI)(BX*8), X10, X10
+	VINSERTF128 $1, X14, Y10, Y10
+	VMULPD      Y0, Y10, Y11
+	VMULPD      Y1, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y13, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y8, Y12
+	VSUBPD      Y12, Y11, Y7
+	VMULPD      Y7, Y7, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      32(SI)(BX*8), X6
+	VMOVHPD     32(DI)(BX*8), X6, X6
+	VINSERTF128 $1, X13, Y6, Y6
+	VMULPD      Y0, Y6, Y11
+	VMULPD      Y1, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y8, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y7, Y12
+	VSUBPD      Y12, Y11, Y14
+	VMULPD      Y14, Y14, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      40(SI)(BX*8), X5
+	VMOVHPD     40(DI)(BX*8), X5, X5
+	VINSERTF128 $1, X8, Y5, Y5
+	VMULPD      Y0, Y5, Y11
+	VMULPD      Y1, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y7, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y14, Y12
+	VSUBPD      Y12, Y11, Y13
+	VMULPD      Y13, Y13, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      48(SI)(BX*8), X10
+	VMOVHPD     48(DI)(BX*8), X10, X10
+	VINSERTF128 $1, X7, Y10, Y10
+	VMULPD      Y0, Y10, Y11
+	VMULPD      Y1, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y14, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y13, Y12
+	VSUBPD      Y12, Y11, Y8
+	VMULPD      Y8, Y8, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      56(SI)(BX*8), X6
+	VMOVHPD     56(DI)(BX*8), X6, X6
+	VINSERTF128 $1, X14, Y6, Y6
+	VMULPD      Y0, Y6, Y11
+	VMULPD      Y1, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y13, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y8, Y12
+	VSUBPD      Y12, Y11, Y7
+	VMULPD      Y7, Y7, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      64(SI)(BX*8), X5
+	VMOVHPD     64(DI)(BX*8), X5, X5
+	VINSERTF128 $1, X13, Y5, Y5
+	VMULPD      Y0, Y5, Y11
+	VMULPD      Y1, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y8, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y7, Y12
+	VSUBPD      Y12, Y11, Y14
+	VMULPD      Y14, Y14, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      72(SI)(BX*8), X10
+	VMOVHPD     72(DI)(BX*8), X10, X10
+	VINSERTF128 $1, X8, Y10, Y10
+	VMULPD      Y0, Y10, Y11
+	VMULPD      Y1, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y7, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y14, Y12
+	VSUBPD      Y12, Y11, Y13
+	VMULPD      Y13, Y13, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      80(SI)(BX*8), X6
+	VMOVHPD     80(DI)(BX*8), X6, X6
+	VINSERTF128 $1, X7, Y6, Y6
+	VMULPD      Y0, Y6, Y11
+	VMULPD      Y1, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y14, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y13, Y12
+	VSUBPD      Y12, Y11, Y8
+	VMULPD      Y8, Y8, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      88(SI)(BX*8), X5
+	VMOVHPD     88(DI)(BX*8), X5, X5
+	VINSERTF128 $1, X14, Y5, Y5
+	VMULPD      Y0, Y5, Y11
+	VMULPD      Y1, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y13, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y8, Y12
+	VSUBPD      Y12, Y11, Y7
+	VMULPD      Y7, Y7, Y12
+	VADDPD      Y12, Y9, Y9
+	ADDQ $12, BX
+	JMP  loop12
+
+tail:
 	CMPQ BX, CX
 	JGE  done
 
