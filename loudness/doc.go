@@ -98,18 +98,29 @@
 // from one set of products. And a run of input whose 12-sample
 // neighbourhood has magnitudes at most m cannot interpolate above
 // m·maxₖΣₜ|hₖ[t]|; when that bound is below the highest value already found
-// in the current 100 ms block, the run is skipped. Plain reference
-// implementations in the tests check that neither changes a result.
+// in the current 100 ms block, the run is skipped (the run with the largest
+// sample goes first, and consecutive runs that cannot be skipped go to the
+// interpolator together). Plain reference implementations in the tests
+// check that neither changes a result.
 //
 // # SIMD kernels
 //
-// On amd64 the two hot loops run in SSE2 assembly, two values per
-// instruction: the interpolator computes two consecutive windows in the two
-// lanes, and the K-weighting, whose recursion is bound by the latency of
-// each output waiting for the previous one, filters two channels side by
-// side (the meter pairs its weighted channels; an odd one is filtered
-// alone). Each lane performs the operations of the Go loops in the same
-// order, and those loops round every product before adding it (no fused
+// On amd64 the hot loops run in assembly: SSE2 (two values per
+// instruction) on every CPU, AVX2 (four) where the CPU has it. The
+// K-weighting recursion waits for each output before the next, so the
+// kernels fill the lanes with independent recursions: SSE2 filters two
+// channels side by side; AVX2 puts a stereo pair's two shelves and two
+// high-passes in the four lanes of one register, the high-passes three
+// samples behind (the high-pass numerator [1, −2, 1] multiplies exactly,
+// so both stages are one biquad form), filters four channels at once for
+// surround, and an odd channel as a pair with a copy of itself. The
+// interpolator computes consecutive windows in the lanes (two groups of
+// four per iteration with AVX2, so the loads of each coefficient and the
+// long chains of additions are shared between more work); AVX2 also
+// finds the maxima for the skip test of a whole chunk in one pass, and
+// de-interleaves stereo and 5.1 with the sample peak in one pass. Each
+// lane performs the operations of the Go loops in the same order, and
+// those loops round every product before adding it (no fused
 // multiply-add), so the figures are the same to the last bit with or
 // without the kernels. Elsewhere, or with the build tag purego, the Go
 // loops run.

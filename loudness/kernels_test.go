@@ -328,3 +328,161 @@ func TestEnergyQuadMatchesEnergy(t *testing.T) {
 		}
 	})
 }
+
+// TestRunMaxBitsCoversRuns checks the true-peak skip pre-scan (runMaxBits)
+// against maxAbsGo on every kernel set, for chunk lengths around the run
+// length and with NaN, ±Inf and a large spike in every run: each run's
+// maximum is that of its own 43 samples, or (where the AVX2 pass reads
+// 44) of the 44 from its start, never less, so the skip test stays exact.
+func TestRunMaxBitsCoversRuns(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		for _, n := range []int{1, 2, 31, 32, 33, 63, 64, 65, 1023, 1024} {
+			for name, x := range kernelSignals(n + history) {
+				for spike := 0; spike < n+history; spike += 13 {
+					w := append([]float64(nil), x...)
+					w[spike] = []float64{-7, math.NaN(), math.Inf(1)}[spike%3]
+					runs := (n + skipRun - 1) / skipRun
+					var got [chunkFrames/skipRun + 1]float64
+					runMaxBits(w, got[:], runs)
+					for r := range runs {
+						lo := r * skipRun
+						exact := maxAbsGo(w[lo : min(lo+skipRun, n)+history])
+						wide := maxAbsGo(w[lo:min(lo+44, len(w))])
+						if !sameBits(got[r], exact) && !sameBits(got[r], wide) {
+							t.Fatalf("%s, %d samples, spike at %d, run %d: %v, want %v (or %v over 44 samples)", name, n, spike, r, got[r], exact, wide)
+						}
+					}
+				}
+			}
+		}
+	})
+}
+
+// TestEnergyOneMatchesEnergy checks the single-channel path the meter
+// takes for an odd weighted channel against Energy: energy and state bit
+// for bit, every signal and write size, on every kernel set.
+func TestEnergyOneMatchesEnergy(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		for _, rate := range []int{8000, 48000, 192000} {
+			for _, n := range kernelLengths {
+				for name, x := range kernelSignals(n) {
+					for _, step := range []int{1, 3, 4, 1024} {
+						k := NewKWeighting(rate)
+						ref := k
+						for i := 0; i < n; i += step {
+							j := min(i+step, n)
+							if got, want := energyOne(&k, x[i:j]), ref.Energy(x[i:j]); !sameBits(got, want) {
+								t.Fatalf("%d Hz, %s, %d samples in writes of %d, samples %d–%d: %.17g, Energy %.17g", rate, name, n, step, i, j, got, want)
+							}
+							if !sameState(&k, &ref) {
+								t.Fatalf("%d Hz, %s, %d samples in writes of %d: state differs from Energy's", rate, name, n, step)
+							}
+						}
+					}
+				}
+			}
+		}
+	})
+}
+
+// TestSplit6MatchesGo checks the one-pass 5.1 de-interleave (split6)
+// against splitChannel, the reference, for every chunk length up to 40
+// frames with a bad or extreme sample in every channel position: the six
+// inputs and block peaks bit for bit, and a refusal (false) exactly when
+// the chunk holds a sample the meter cannot measure; on every kernel set.
+func TestSplit6MatchesGo(t *testing.T) {
+	forEachKernelSet(t, testSplit6MatchesGo)
+}
+
+func testSplit6MatchesGo(t *testing.T) {
+	weights := []float64{1, 1, 1, 0, 1.41, 1.41}
+	var chans [6][]float64
+	for c := range chans {
+		chans[c] = musicLike(uint64(30+c), 40, 48000)
+	}
+	base := interleave(chans[:]...)
+	for n := range 41 {
+		for _, bad := range []float64{0, math.NaN(), math.Inf(1), -2 * MaxMagnitude, -MaxMagnitude, -3, -0.0} {
+			for at := 0; at < max(1, 6*n); at += 5 {
+				frames := append([]float64(nil), base[:6*n]...)
+				if n > 0 && bad != 0 {
+					frames[at] = bad
+				}
+				got, _ := NewMeter(48000, weights)
+				want, _ := NewMeter(48000, weights)
+				for c := range 6 {
+					got.blockPeak[c], want.blockPeak[c] = 0.01*float64(c), 0.01*float64(c)
+				}
+				ok := got.split6(frames, n)
+				for c := range 6 {
+					want.splitChannel(frames, n, c)
+				}
+				if ok != (want.rejected == 0) {
+					t.Fatalf("%d frames, %v at %d: split6 %v, reference rejected %d", n, bad, at, ok, want.rejected)
+				}
+				if !ok {
+					continue
+				}
+				for c := range 6 {
+					g, w := got.peaks[c].input(n), want.peaks[c].input(n)
+					for i := range n {
+						if !sameBits(g[i], w[i]) {
+							t.Fatalf("%d frames: channel %d sample %d is %v, want %v", n, c, i, g[i], w[i])
+						}
+					}
+					if !sameBits(got.blockPeak[c], want.blockPeak[c]) {
+						t.Fatalf("%d frames, %v at %d: channel %d peak %v, want %v", n, bad, at, c, got.blockPeak[c], want.blockPeak[c])
+					}
+				}
+			}
+		}
+	}
+}
+
+// TestTruePeakSameOnEverySet runs the whole detector (pre-scan, skip,
+// stretches of runs, kernels, tails, flush) over signals in 100 ms writes
+// at 48 and 96 kHz on every kernel set and demands the go set's peak of
+// every write bit for bit: programme, dense noise, spikes, and a periodic
+// signal whose every run peaks at about the same height (so that the skip
+// test decides at the margin).
+func TestTruePeakSameOnEverySet(t *testing.T) {
+	for _, rate := range []int{48000, 96000} {
+		n := 2 * rate
+		periodic := make([]float64, n)
+		for i := range periodic {
+			periodic[i] = 0.7*math.Sin(2*math.Pi*float64(i)/32.0+0.4) + 0.2*math.Sin(2*math.Pi*float64(i)/7.3)
+		}
+		sigs := map[string][]float64{
+			"programme": musicLike(61, n, rate),
+			"dense":     denseFullScale(62, n),
+			"spikes":    kernelSignals(n)["spikes"],
+			"periodic":  periodic,
+		}
+		peaks := func() map[string][]float64 {
+			out := map[string][]float64{}
+			for name, x := range sigs {
+				tp, _ := NewTruePeak(rate)
+				for f := x; len(f) > 0; {
+					k := min(len(f), rate/10)
+					out[name] = append(out[name], tp.Peak(f[:k], 0))
+					f = f[k:]
+				}
+				out[name] = append(out[name], tp.Flush(0))
+			}
+			return out
+		}
+		restore, _ := useKernels(goKernels)
+		want := peaks()
+		restore()
+		forEachKernelSet(t, func(t *testing.T) {
+			got := peaks()
+			for name := range sigs {
+				for i := range want[name] {
+					if !sameBits(got[name][i], want[name][i]) {
+						t.Fatalf("%d Hz, %s, write %d: %.17g, go set %.17g", rate, name, i, got[name][i], want[name][i])
+					}
+				}
+			}
+		})
+	}
+}

@@ -14,8 +14,11 @@ package loudness
 // rounds as scalar does, so the results are identical.
 func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	b = b[:len(a)]
-	if kernels == goKernels {
+	switch {
+	case kernels == goKernels:
 		return k.Energy(a), l.Energy(b)
+	case kernels >= avx2Kernels:
+		return energyPairStaged(k, l, a, b)
 	}
 	s := kweightLanes{
 		b0: [2]float64{k.Shelf.B0, l.Shelf.B0},
@@ -40,6 +43,95 @@ func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	l.HighPass.x1, l.HighPass.x2, l.HighPass.y1, l.HighPass.y2 = s.u1[1], s.u2[1], s.v1[1], s.v2[1]
 	return ea, eb
 }
+
+// energyOne returns k.Energy(a), bit for bit, leaving the state as Energy
+// would. With AVX2 the channel runs through energyPairStaged beside a
+// scratch copy of itself: half the lanes are wasted, but the two stages
+// then run side by side instead of one after the other.
+func energyOne(k *KWeighting, a []float64) float64 {
+	if kernels < avx2Kernels {
+		return k.Energy(a)
+	}
+	scratch := *k
+	e, _ := energyPairStaged(k, &scratch, a, a)
+	return e
+}
+
+// energyPairStaged is energyPair with AVX2 (energyStagedAVX2): the shelf
+// of both channels in lanes 0 and 1 and their high-pass in lanes 2 and 3,
+// three samples behind, so one register carries all four recursions of a
+// stereo pair. The K-weighting loop is bound by the instructions it issues
+// as much as by its recursion's latency, and this does one channel-sample
+// of both stages per lane where energyPairSSE2 needs twice the
+// instructions. The shelf of the first three samples is computed here
+// before the kernel, the high-pass of the last three after it, with
+// Energy's very operations; the kernel's lanes are Energy's stages bit for
+// bit (see kweighting_avx2_amd64.s). Fewer than 3 samples go to Energy.
+func energyPairStaged(k, l *KWeighting, a, b []float64) (ea, eb float64) {
+	n := len(a)
+	if n < stagedLag {
+		return k.Energy(a), l.Energy(b)
+	}
+	f := [2]*KWeighting{k, l}
+	in := [2][]float64{a, b}
+	var s kweightStaged
+	for i, k := range f {
+		sh, hp := &k.Shelf, &k.HighPass
+		x1, x2, u1, u2 := sh.x1, sh.x2, sh.y1, sh.y2
+		var u [stagedLag]float64
+		for j, x := range in[i][:stagedLag] {
+			u[j] = (float64(sh.B0*x) + float64(sh.B1*x1) + float64(sh.B2*x2) - float64(sh.A2*u2)) - float64(sh.A1*u1)
+			x2, x1 = x1, x
+			u2, u1 = u1, u[j]
+		}
+		s.b0[i], s.b1[i], s.b2[i], s.a1[i], s.a2[i] = sh.B0, sh.B1, sh.B2, sh.A1, sh.A2
+		s.x1[i], s.x2[i], s.y1[i], s.y2[i], s.d[i] = x1, x2, u[2], u[1], u[0]
+		// The high-pass: numerator [1, −2, 1] as Energy applies it, input
+		// history the shelf's output history before sample 0.
+		s.b0[i+2], s.b1[i+2], s.b2[i+2], s.a1[i+2], s.a2[i+2] = 1, -2, 1, hp.A1, hp.A2
+		s.x1[i+2], s.x2[i+2], s.y1[i+2], s.y2[i+2] = sh.y1, sh.y2, hp.y1, hp.y2
+	}
+	var e [2]float64
+	e[0], e[1] = energyStagedAVX2(&s, a, b)
+	for i, k := range f {
+		// The high-pass of the last three samples.
+		hp := &k.HighPass
+		u1, u2 := s.x1[i+2], s.x2[i+2]
+		v1, v2 := s.y1[i+2], s.y2[i+2]
+		for _, u := range [stagedLag]float64{s.d[i], s.y2[i], s.y1[i]} {
+			v := (u - 2*u1 + u2 - float64(hp.A2*v2)) - float64(hp.A1*v1)
+			e[i] += float64(v * v)
+			u2, u1 = u1, u
+			v2, v1 = v1, v
+		}
+		k.Shelf.x1, k.Shelf.x2, k.Shelf.y1, k.Shelf.y2 = s.x1[i], s.x2[i], s.y1[i], s.y2[i]
+		// The high-pass input history is the shelf output history.
+		hp.x1, hp.x2, hp.y1, hp.y2 = u1, u2, v1, v2
+	}
+	return e[0], e[1]
+}
+
+// stagedLag is how many samples energyStagedAVX2's high-pass lanes run
+// behind its shelf lanes.
+const stagedLag = 3
+
+// kweightStaged holds a stereo pair's K-weighting for energyStagedAVX2:
+// lanes 0 and 1 the two shelves, lanes 2 and 3 the two high-passes, each
+// lane a biquad y = B0·x + B1·x1 + B2·x2 − A2·y2 − A1·y1 with its input
+// history x1, x2 and output history y1, y2; d holds, in lanes 0 and 1, the
+// shelf outputs of three samples back (the high-pass lanes' next input).
+type kweightStaged struct {
+	b0, b1, b2, a1, a2 [4]float64
+	x1, x2, y1, y2, d  [4]float64
+}
+
+// energyStagedAVX2 runs samples 3 … len(a)−1 of the shelves and samples
+// 0 … len(a)−4 of the high-passes of s over a and b (len(b) ≥ len(a)),
+// updates s and returns Σ y² of the two high-passes
+// (kweighting_avx2_amd64.s).
+//
+//go:noescape
+func energyStagedAVX2(s *kweightStaged, a, b []float64) (e0, e1 float64)
 
 // kweightLanes holds two K-weighting filters side by side for
 // energyPairSSE2, element 0 of every pair the first filter's, element 1 the

@@ -95,3 +95,271 @@ done:
 	VMOVHPD      X12, ed+128(FP)
 	VZEROUPPER
 	RET
+
+// func energyStagedAVX2(s *kweightStaged, a, b []float64) (e0, e1 float64)
+//
+// Two channels, both stages, in the four lanes of one AVX2 register: lanes
+// 0 and 1 run the shelf of channels a and b on sample i, lanes 2 and 3 the
+// high-pass of the same channels on sample i−3, whose input is the shelf
+// output of lanes 0 and 1 three iterations earlier (kept in Y13). Three
+// samples apart, the path from a shelf output through the high-pass
+// lanes' additions back into the register spans three iterations and no
+// longer sets the pace. Both stages are the same biquad form, the
+// high-pass with the numerator [1, −2, 1], whose products are exact
+// (1·u = u, −2·u₁ = −(2·u₁), and u + (−2·u₁) is u − 2·u₁ in IEEE
+// arithmetic), so every lane computes exactly what Energy computes:
+//
+//	y = (((B0·x + B1·x1) + B2·x2) − A2·y2) − A1·y1
+//	e += y·y
+//
+// The caller runs the shelf of samples 0…2 before and the high-pass of the
+// last three samples after (energyPairStaged), so the loop covers samples
+// 3 … len(a)−1 of the shelf; it returns Σ y² of lanes 2 and 3 (the
+// high-pass outputs of samples 0 … len(a)−4), added in sample order from 0.
+//
+// Registers: Y0 B0, Y1 B1, Y2 B2, Y3 A1, Y4 A2; state Y5 x1, Y6 x2,
+// Y7 y1, Y8 y2, Y13 the shelf outputs of three samples ago; Y9 e;
+// Y10–Y12 (and Y14 in loop12) scratch. SI, DI the inputs, DX s, BX index,
+// CX length.
+TEXT ·energyStagedAVX2(SB), NOSPLIT, $0-72
+	MOVQ s+0(FP), DX
+	MOVQ a_base+8(FP), SI
+	MOVQ a_len+16(FP), CX
+	MOVQ b_base+32(FP), DI
+
+	VMOVUPD kweightStaged_b0(DX), Y0
+	VMOVUPD kweightStaged_b1(DX), Y1
+	VMOVUPD kweightStaged_b2(DX), Y2
+	VMOVUPD kweightStaged_a1(DX), Y3
+	VMOVUPD kweightStaged_a2(DX), Y4
+	VMOVUPD kweightStaged_x1(DX), Y5
+	VMOVUPD kweightStaged_x2(DX), Y6
+	VMOVUPD kweightStaged_y1(DX), Y7
+	VMOVUPD kweightStaged_y2(DX), Y8
+	VMOVUPD kweightStaged_d(DX), Y13
+	VXORPD  Y9, Y9, Y9
+
+	MOVQ $3, BX
+
+	// Twelve samples per iteration while twelve are left (loop12): the
+	// histories rotate through registers instead of being moved (x, x1,
+	// x2 through Y10, Y6, Y5; y, y1, y2 and the shelf outputs of three
+	// samples ago through Y14, Y13, Y8, Y7), and after twelve samples every
+	// value is back in the register loop expects it in.
+loop12:
+	LEAQ 12(BX), AX
+	CMPQ AX, CX
+	JGT  tail
+	VMOVSD      0(SI)(BX*8), X10
+	VMOVHPD     0(DI)(BX*8), X10, X10
+	VINSERTF128 $1, X13, Y10, Y10
+	VMULPD      Y0, Y10, Y11
+	VMULPD      Y1, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y8, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y7, Y12
+	VSUBPD      Y12, Y11, Y14
+	VMULPD      Y14, Y14, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      8(SI)(BX*8), X6
+	VMOVHPD     8(DI)(BX*8), X6, X6
+	VINSERTF128 $1, X8, Y6, Y6
+	VMULPD      Y0, Y6, Y11
+	VMULPD      Y1, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y7, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y14, Y12
+	VSUBPD      Y12, Y11, Y13
+	VMULPD      Y13, Y13, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      16(SI)(BX*8), X5
+	VMOVHPD     16(DI)(BX*8), X5, X5
+	VINSERTF128 $1, X7, Y5, Y5
+	VMULPD      Y0, Y5, Y11
+	VMULPD      Y1, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y14, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y13, Y12
+	VSUBPD      Y12, Y11, Y8
+	VMULPD      Y8, Y8, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      24(SI)(BX*8), X10
+	VMOVHPD     24(DI)(BX*8), X10, X10
+	VINSERTF128 $1, X14, Y10, Y10
+	VMULPD      Y0, Y10, Y11
+	VMULPD      Y1, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y13, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y8, Y12
+	VSUBPD      Y12, Y11, Y7
+	VMULPD      Y7, Y7, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      32(SI)(BX*8), X6
+	VMOVHPD     32(DI)(BX*8), X6, X6
+	VINSERTF128 $1, X13, Y6, Y6
+	VMULPD      Y0, Y6, Y11
+	VMULPD      Y1, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y8, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y7, Y12
+	VSUBPD      Y12, Y11, Y14
+	VMULPD      Y14, Y14, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      40(SI)(BX*8), X5
+	VMOVHPD     40(DI)(BX*8), X5, X5
+	VINSERTF128 $1, X8, Y5, Y5
+	VMULPD      Y0, Y5, Y11
+	VMULPD      Y1, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y7, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y14, Y12
+	VSUBPD      Y12, Y11, Y13
+	VMULPD      Y13, Y13, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      48(SI)(BX*8), X10
+	VMOVHPD     48(DI)(BX*8), X10, X10
+	VINSERTF128 $1, X7, Y10, Y10
+	VMULPD      Y0, Y10, Y11
+	VMULPD      Y1, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y14, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y13, Y12
+	VSUBPD      Y12, Y11, Y8
+	VMULPD      Y8, Y8, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      56(SI)(BX*8), X6
+	VMOVHPD     56(DI)(BX*8), X6, X6
+	VINSERTF128 $1, X14, Y6, Y6
+	VMULPD      Y0, Y6, Y11
+	VMULPD      Y1, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y13, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y8, Y12
+	VSUBPD      Y12, Y11, Y7
+	VMULPD      Y7, Y7, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      64(SI)(BX*8), X5
+	VMOVHPD     64(DI)(BX*8), X5, X5
+	VINSERTF128 $1, X13, Y5, Y5
+	VMULPD      Y0, Y5, Y11
+	VMULPD      Y1, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y8, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y7, Y12
+	VSUBPD      Y12, Y11, Y14
+	VMULPD      Y14, Y14, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      72(SI)(BX*8), X10
+	VMOVHPD     72(DI)(BX*8), X10, X10
+	VINSERTF128 $1, X8, Y10, Y10
+	VMULPD      Y0, Y10, Y11
+	VMULPD      Y1, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y7, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y14, Y12
+	VSUBPD      Y12, Y11, Y13
+	VMULPD      Y13, Y13, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      80(SI)(BX*8), X6
+	VMOVHPD     80(DI)(BX*8), X6, X6
+	VINSERTF128 $1, X7, Y6, Y6
+	VMULPD      Y0, Y6, Y11
+	VMULPD      Y1, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y5, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y14, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y13, Y12
+	VSUBPD      Y12, Y11, Y8
+	VMULPD      Y8, Y8, Y12
+	VADDPD      Y12, Y9, Y9
+	VMOVSD      88(SI)(BX*8), X5
+	VMOVHPD     88(DI)(BX*8), X5, X5
+	VINSERTF128 $1, X14, Y5, Y5
+	VMULPD      Y0, Y5, Y11
+	VMULPD      Y1, Y6, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y2, Y10, Y12
+	VADDPD      Y12, Y11, Y11
+	VMULPD      Y4, Y13, Y12
+	VSUBPD      Y12, Y11, Y11
+	VMULPD      Y3, Y8, Y12
+	VSUBPD      Y12, Y11, Y7
+	VMULPD      Y7, Y7, Y12
+	VADDPD      Y12, Y9, Y9
+	ADDQ $12, BX
+	JMP  loop12
+
+tail:
+	CMPQ BX, CX
+	JGE  done
+
+loop:
+	VMOVSD      (SI)(BX*8), X10
+	VMOVHPD     (DI)(BX*8), X10, X10
+	VINSERTF128 $1, X13, Y10, Y10 // x: the new samples, then the shelf outputs of sample i−3
+
+	VMULPD  Y0, Y10, Y11
+	VMULPD  Y1, Y5, Y12
+	VADDPD  Y12, Y11, Y11
+	VMULPD  Y2, Y6, Y12
+	VADDPD  Y12, Y11, Y11
+	VMULPD  Y4, Y8, Y12
+	VSUBPD  Y12, Y11, Y11
+	VMULPD  Y3, Y7, Y12
+	VSUBPD  Y12, Y11, Y11 // Y11 = y
+	VMOVAPD Y5, Y6        // x2 = x1
+	VMOVAPD Y10, Y5       // x1 = x
+	VMOVAPD Y8, Y13       // three samples ago = y2
+	VMOVAPD Y7, Y8        // y2 = y1
+	VMOVAPD Y11, Y7       // y1 = y
+
+	VMULPD Y11, Y11, Y12
+	VADDPD Y12, Y9, Y9 // e += y·y
+
+	INCQ BX
+	CMPQ BX, CX
+	JLT  loop
+
+done:
+	VMOVUPD      Y5, kweightStaged_x1(DX)
+	VMOVUPD      Y6, kweightStaged_x2(DX)
+	VMOVUPD      Y7, kweightStaged_y1(DX)
+	VMOVUPD      Y8, kweightStaged_y2(DX)
+	VMOVUPD      Y13, kweightStaged_d(DX)
+	VEXTRACTF128 $1, Y9, X10
+	VMOVSD       X10, e0+56(FP)
+	VMOVHPD      X10, e1+64(FP)
+	VZEROUPPER
+	RET

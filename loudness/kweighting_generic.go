@@ -19,3 +19,6 @@ func energyQuad(f [4]*KWeighting, x [4][]float64) (e [4]float64) {
 	e[2], e[3] = energyPair(f[2], f[3], x[2], x[3][:n])
 	return e
 }
+
+// energyOne is k.Energy(a) on platforms without a SIMD kernel.
+func energyOne(k *KWeighting, a []float64) float64 { return k.Energy(a) }

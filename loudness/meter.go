@@ -253,30 +253,10 @@ func (m *Meter) Write(frames []float64) {
 // block: it copies each channel into its true-peak detector's input (where
 // the K-weighting reads it too), then weighs and peaks every channel.
 func (m *Meter) process(frames []float64, n int) {
-	nch := m.channels
-	for c := range nch {
-		if c == 0 && m.splitFast(frames, n) {
-			break
+	if !m.splitFast(frames, n) && !m.split6(frames, n) {
+		for c := range m.channels {
+			m.splitChannel(frames, n, c)
 		}
-		in := m.peaks[c].input(n)
-		var peak uint64 // bits of max|v|: see maxAbs
-		j := c
-		for i := range in {
-			v := frames[j]
-			j += nch
-			// The bits of |v| order like |v|, and NaN and ±Inf order above
-			// every finite value: one integer comparison rejects all three.
-			a := math.Float64bits(v) &^ signBit
-			if a > maxMagnitudeBits {
-				v, a = 0, 0
-				m.rejected++
-			}
-			in[i] = v
-			if a > peak {
-				peak = a
-			}
-		}
-		m.blockPeak[c] = max(m.blockPeak[c], math.Float64frombits(peak))
 	}
 	m.addEnergy(n)
 	for c, tp := range m.peaks {
@@ -284,10 +264,74 @@ func (m *Meter) process(frames []float64, n int) {
 	}
 }
 
+// splitChannel copies channel c of the n frames into its true-peak
+// detector's input and raises the block's sample peak: the reference the
+// faster de-interleaving paths (splitFast, split6) are tested against, and
+// the one path that counts and zeroes samples the meter cannot measure.
+func (m *Meter) splitChannel(frames []float64, n, c int) {
+	nch := m.channels
+	in := m.peaks[c].input(n)
+	var peak uint64 // bits of max|v|: see maxAbs
+	j := c
+	for i := range in {
+		v := frames[j]
+		j += nch
+		// The bits of |v| order like |v|, and NaN and ±Inf order above
+		// every finite value: one integer comparison rejects all three.
+		a := math.Float64bits(v) &^ signBit
+		if a > maxMagnitudeBits {
+			v, a = 0, 0
+			m.rejected++
+		}
+		in[i] = v
+		if a > peak {
+			peak = a
+		}
+	}
+	m.blockPeak[c] = max(m.blockPeak[c], math.Float64frombits(peak))
+}
+
+// split6 is splitChannel for all six channels of 5.1 in one pass over the
+// frames (one sequential read instead of six strided ones, and no test per
+// sample but the running maxima), and reports true. A chunk holding a
+// sample the meter cannot measure (its magnitude bits exceed
+// maxMagnitudeBits) makes it report false, having changed nothing that
+// splitChannel does not overwrite; it also reports false for other channel
+// counts. Copies and integer maxima: splitChannel's result bit for bit.
+// With AVX2 split6AVX2 does four frames at a time (split6Fast).
+func (m *Meter) split6(frames []float64, n int) bool {
+	if m.channels != 6 {
+		return false
+	}
+	c0, c1, c2 := m.peaks[0].input(n), m.peaks[1].input(n), m.peaks[2].input(n)
+	c3, c4, c5 := m.peaks[3].input(n), m.peaks[4].input(n), m.peaks[5].input(n)
+	frames = frames[:6*n]
+	p, done := m.split6Fast(frames, n)
+	for i := done; i < n; i++ {
+		f := (*[6]float64)(frames[6*i:])
+		c0[i], c1[i], c2[i], c3[i], c4[i], c5[i] = f[0], f[1], f[2], f[3], f[4], f[5]
+		p[0] = max(p[0], math.Float64bits(f[0])&^signBit)
+		p[1] = max(p[1], math.Float64bits(f[1])&^signBit)
+		p[2] = max(p[2], math.Float64bits(f[2])&^signBit)
+		p[3] = max(p[3], math.Float64bits(f[3])&^signBit)
+		p[4] = max(p[4], math.Float64bits(f[4])&^signBit)
+		p[5] = max(p[5], math.Float64bits(f[5])&^signBit)
+	}
+	for _, a := range p {
+		if a > maxMagnitudeBits {
+			return false
+		}
+	}
+	for c, a := range p {
+		m.blockPeak[c] = max(m.blockPeak[c], math.Float64frombits(a))
+	}
+	return true
+}
+
 // addEnergy adds the weighted K-filtered energy of the n samples waiting in
 // each channel's input. The filter is latency-bound, so channels go through
 // it several at a time: four (energyQuad) where AVX2 runs them in one
-// register, then two (energyPair); an odd one out goes alone. Channels of
+// register, then two (energyPair); an odd one out goes alone (energyOne). Channels of
 // weight 0 are skipped, and the sum is taken in channel order either way.
 func (m *Meter) addEnergy(n int) {
 	var wait [4]int // weighted channels not yet filtered
@@ -324,7 +368,7 @@ func (m *Meter) addEnergy(n int) {
 	}
 	if i < k {
 		c := wait[i]
-		m.energy += m.weights[c] * m.filters[c].Energy(m.peaks[c].input(n))
+		m.energy += m.weights[c] * energyOne(&m.filters[c], m.peaks[c].input(n))
 	}
 }
 

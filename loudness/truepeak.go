@@ -205,10 +205,15 @@ func (t *TruePeak) Flush(floor float64) float64 {
 const skipRun = 32
 
 // peakRuns applies kernel to w (history samples, then new ones) run by run,
-// skipping a run when gain × max|x| over the run and its 11 predecessors is
-// at most floor: no interpolated value in it can then exceed floor, so the
+// skipping a run when gain × max|x| over the run and its 11 predecessors
+// (runMaxBits; a few samples more do no harm) is at most floor: no interpolated value in it can then exceed floor, so the
 // result is exactly what the unskipped kernel would give. The run holding
-// the largest sample goes first so that floor rises early.
+// the largest sample goes first so that floor rises early; then each
+// stretch of consecutive runs that cannot be skipped goes to the kernel in
+// one call (its runs are judged by the floor before the stretch, which is
+// never higher than the floor a run-by-run pass would use, so nothing is
+// skipped that could matter, and the maximum does not depend on the order
+// the windows are visited in).
 func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor float64) float64) float64 {
 	n := len(w) - history
 	if n <= 0 {
@@ -216,11 +221,9 @@ func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor f
 	}
 	var runMax [chunkFrames/skipRun + 1]float64
 	runs := (n + skipRun - 1) / skipRun
+	runMaxBits(w, runMax[:], runs)
 	best, bestRun := -1.0, 0
-	for r := range runs {
-		lo, hi := r*skipRun, min((r+1)*skipRun, n)+history
-		m := maxAbs(w[lo:hi])
-		runMax[r] = m
+	for r, m := range runMax[:runs] {
 		if m > best {
 			best, bestRun = m, r
 		}
@@ -228,18 +231,27 @@ func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor f
 	if best*gain <= floor {
 		return floor
 	}
-	do := func(r int) {
-		if runMax[r]*gain <= floor {
-			return
-		}
-		lo, hi := r*skipRun, min((r+1)*skipRun, n)+history
-		floor = kernel(w[lo:hi], floor)
+	span := func(from, to int) { // runs from … to−1
+		floor = kernel(w[from*skipRun:min(to*skipRun, n)+history], floor)
 	}
-	do(bestRun)
+	if !(runMax[bestRun]*gain <= floor) {
+		span(bestRun, bestRun+1)
+	}
+	start := -1 // first run of the stretch being gathered
 	for r := range runs {
-		if r != bestRun {
-			do(r)
+		if r != bestRun && !(runMax[r]*gain <= floor) {
+			if start < 0 {
+				start = r
+			}
+			continue
 		}
+		if start >= 0 {
+			span(start, r)
+			start = -1
+		}
+	}
+	if start >= 0 {
+		span(start, runs)
 	}
 	return floor
 }

@@ -64,6 +64,34 @@ func maxAbs(x []float64) float64 {
 	return float64frombits(m)
 }
 
+// runMaxBits sets runMax[r] to max|x| over w[32r : 32r+43] (and a few
+// samples more where w has them) for r < runs, as peakRuns's pre-scan
+// needs: with AVX2 all runs but the last few in one pass
+// (runMaxBitsAVX2), which takes 44 samples for each run (one more sample
+// can only make the skip test more cautious), elsewhere maxAbs run by run.
+func runMaxBits(w []float64, runMax []float64, runs int) {
+	n := len(w) - history
+	r := 0
+	if kernels >= avx2Kernels && len(w) >= 44 {
+		full := min(runs, (len(w)-44)/skipRun+1)
+		var bits [chunkFrames/skipRun + 1]uint64
+		runMaxBitsAVX2(w, bits[:full])
+		for ; r < full; r++ {
+			runMax[r] = float64frombits(bits[r])
+		}
+	}
+	for ; r < runs; r++ {
+		runMax[r] = maxAbs(w[r*skipRun : min((r+1)*skipRun, n)+history])
+	}
+}
+
+// runMaxBitsAVX2 sets out[r] to the largest bit pattern of |x| over
+// w[32r : 32r+44] for every r < len(out); 32·(len(out)−1)+44 ≤ len(w)
+// (truepeak_avx2_amd64.s).
+//
+//go:noescape
+func runMaxBitsAVX2(w []float64, out []uint64)
+
 // peak4PairsSSE2 is peak4SquaresGo over the first 2·⌊(len(w)−11)/2⌋
 // windows of w (truepeak_amd64.s).
 //

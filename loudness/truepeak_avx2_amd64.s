@@ -219,21 +219,113 @@ GLOBL peak2Coeffs4<>(SB), RODATA|NOPTR, $768
 	VMULPD  peak4Coeffs4<>+(c+96)(SB), Y9, Y2 \
 	VADDPD  Y2, Y7, Y7
 
+// TAP4X8 is TAP4 for two groups of four windows (P, R, Q, U in Y4–Y7 for
+// windows 0–3 and in Y10–Y13 for windows 4–7), each coefficient loaded
+// once (Y15) for both groups; Y1–Y3, Y9 and Y14 are scratch.
+#define TAP4X8(hi, lo, c) \
+	VMOVUPD hi(SI), Y1 \
+	VMOVUPD lo(SI), Y2 \
+	VADDPD  Y2, Y1, Y3 \
+	VSUBPD  Y2, Y1, Y1 \
+	VMOVUPD (hi+32)(SI), Y2 \
+	VMOVUPD (lo+32)(SI), Y9 \
+	VADDPD  Y9, Y2, Y14 \
+	VSUBPD  Y9, Y2, Y2 \
+	VMOVUPD peak4Coeffs4<>+(c+0)(SB), Y15 \
+	VMULPD  Y15, Y3, Y9 \
+	VADDPD  Y9, Y4, Y4 \
+	VMULPD  Y15, Y14, Y9 \
+	VADDPD  Y9, Y10, Y10 \
+	VMOVUPD peak4Coeffs4<>+(c+32)(SB), Y15 \
+	VMULPD  Y15, Y3, Y9 \
+	VADDPD  Y9, Y5, Y5 \
+	VMULPD  Y15, Y14, Y9 \
+	VADDPD  Y9, Y11, Y11 \
+	VMOVUPD peak4Coeffs4<>+(c+64)(SB), Y15 \
+	VMULPD  Y15, Y1, Y9 \
+	VADDPD  Y9, Y6, Y6 \
+	VMULPD  Y15, Y2, Y9 \
+	VADDPD  Y9, Y12, Y12 \
+	VMOVUPD peak4Coeffs4<>+(c+96)(SB), Y15 \
+	VMULPD  Y15, Y1, Y9 \
+	VADDPD  Y9, Y7, Y7 \
+	VMULPD  Y15, Y2, Y9 \
+	VADDPD  Y9, Y13, Y13
+
+// PEAK4MAX squares the four outputs y0 = P+Q, y3 = P−Q, y1 = R+U,
+// y2 = R−U of one group (P, R, Q, U) into the running maxima Y0 and Y8,
+// using Y1 and Y2 (VMAXPD returns its second source, the running max, when
+// v is NaN).
+#define PEAK4MAX(P, R, Q, U) \
+	VADDPD Q, P, Y1 \
+	VSUBPD Q, P, P \
+	VADDPD U, R, Y2 \
+	VSUBPD U, R, R \
+	VMULPD Y1, Y1, Y1 \
+	VMULPD P, P, P \
+	VMULPD Y2, Y2, Y2 \
+	VMULPD R, R, R \
+	VMAXPD Y0, Y1, Y1 \
+	VMAXPD Y1, P, Y0 \
+	VMAXPD Y8, Y2, Y2 \
+	VMAXPD Y2, R, Y8
+
 // func peak4QuadsAVX2(w []float64, sq float64) float64
 //
-// peak4PairsSSE2 with four windows in the four lanes of AVX2 registers.
-// Registers: SI window start, CX windows left; Y4 P, Y5 R, Y6 Q, Y7 U;
-// Y0 and Y8 two running maxima.
+// peak4PairsSSE2 with four windows in the four lanes of AVX2 registers,
+// and two such groups per iteration (loop8), which halves the coefficient
+// loads: the loop is bound by its loads more than by its arithmetic. A
+// last group of four runs alone (rest8). Each lane performs the very
+// operations of peak4SquaresGo. Registers: SI window start, CX windows
+// left; Y0, Y8 running maxima.
 TEXT ·peak4QuadsAVX2(SB), NOSPLIT, $0-40
 	MOVQ         w_base+0(FP), SI
 	MOVQ         w_len+8(FP), CX
 	VBROADCASTSD sq+24(FP), Y0
 	VMOVAPD      Y0, Y8
 	SUBQ         $11, CX
-	CMPQ         CX, $4
-	JLT          done
+	CMPQ         CX, $8
+	JLT          rest8
 
-loop:
+loop8:
+	VMOVUPD 88(SI), Y1
+	VMOVUPD 0(SI), Y2
+	VADDPD  Y2, Y1, Y3
+	VSUBPD  Y2, Y1, Y1
+	VMOVUPD 120(SI), Y2
+	VMOVUPD 32(SI), Y9
+	VADDPD  Y9, Y2, Y14
+	VSUBPD  Y9, Y2, Y2
+	VMOVUPD peak4Coeffs4<>+0(SB), Y15
+	VMULPD  Y15, Y3, Y4
+	VMULPD  Y15, Y14, Y10
+	VMOVUPD peak4Coeffs4<>+32(SB), Y15
+	VMULPD  Y15, Y3, Y5
+	VMULPD  Y15, Y14, Y11
+	VMOVUPD peak4Coeffs4<>+64(SB), Y15
+	VMULPD  Y15, Y1, Y6
+	VMULPD  Y15, Y2, Y12
+	VMOVUPD peak4Coeffs4<>+96(SB), Y15
+	VMULPD  Y15, Y1, Y7
+	VMULPD  Y15, Y2, Y13
+
+	TAP4X8(80, 8, 128)
+	TAP4X8(72, 16, 256)
+	TAP4X8(64, 24, 384)
+	TAP4X8(56, 32, 512)
+	TAP4X8(48, 40, 640)
+
+	PEAK4MAX(Y4, Y5, Y6, Y7)
+	PEAK4MAX(Y10, Y11, Y12, Y13)
+
+	ADDQ $64, SI
+	SUBQ $8, CX
+	CMPQ CX, $8
+	JGE  loop8
+
+rest8:
+	CMPQ CX, $4
+	JLT  done8
 	VMOVUPD 88(SI), Y1
 	VMOVUPD 0(SI), Y2
 	VADDPD  Y2, Y1, Y3
@@ -242,36 +334,14 @@ loop:
 	VMULPD  peak4Coeffs4<>+32(SB), Y3, Y5
 	VMULPD  peak4Coeffs4<>+64(SB), Y9, Y6
 	VMULPD  peak4Coeffs4<>+96(SB), Y9, Y7
-
 	TAP4(80, 8, 128)
 	TAP4(72, 16, 256)
 	TAP4(64, 24, 384)
 	TAP4(56, 32, 512)
 	TAP4(48, 40, 640)
+	PEAK4MAX(Y4, Y5, Y6, Y7)
 
-	// y0 = P+Q, y3 = P−Q, y1 = R+U, y2 = R−U, squared.
-	VADDPD Y6, Y4, Y1
-	VSUBPD Y6, Y4, Y4
-	VADDPD Y7, Y5, Y2
-	VSUBPD Y7, Y5, Y5
-	VMULPD Y1, Y1, Y1
-	VMULPD Y4, Y4, Y4
-	VMULPD Y2, Y2, Y2
-	VMULPD Y5, Y5, Y5
-
-	// max = v > max ? v : max (VMAXPD returns its second source, the
-	// running max, when v is NaN).
-	VMAXPD Y0, Y1, Y1
-	VMAXPD Y1, Y4, Y0
-	VMAXPD Y8, Y2, Y2
-	VMAXPD Y2, Y5, Y8
-
-	ADDQ $32, SI
-	SUBQ $4, CX
-	CMPQ CX, $4
-	JGE  loop
-
-done:
+done8:
 	VMAXPD       Y8, Y0, Y0
 	VEXTRACTF128 $1, Y0, X1
 	VMAXPD       X1, X0, X0
@@ -291,19 +361,72 @@ done:
 	VMULPD  peak2Coeffs4<>+(64*t+32)(SB), Y2, Y2 \
 	VADDPD  Y2, Y5, Y5
 
+// TAP2X8 is TAP2X4 for two groups of four windows (windows 0–3 in Y4, Y5,
+// windows 4–7 in Y6, Y7), each coefficient loaded once for both.
+#define TAP2X8(t) \
+	VMOVUPD peak2Coeffs4<>+(64*t)(SB), Y10 \
+	VMOVUPD peak2Coeffs4<>+(64*t+32)(SB), Y11 \
+	VMULPD  (88-8*t)(SI), Y10, Y1 \
+	VADDPD  Y1, Y4, Y4 \
+	VMULPD  (120-8*t)(SI), Y10, Y2 \
+	VADDPD  Y2, Y6, Y6 \
+	VMULPD  (8*t)(SI), Y11, Y3 \
+	VADDPD  Y3, Y5, Y5 \
+	VMULPD  (32+8*t)(SI), Y11, Y9 \
+	VADDPD  Y9, Y7, Y7
+
 // func peak2QuadsAVX2(w []float64, sq float64) float64
 //
 // peak2SquaresGo over the first 4·⌊(len(w)−11)/4⌋ windows of w, four
-// windows in the four lanes. Registers: SI window start, CX windows left;
-// Y4 y0, Y5 y2; Y0 and Y8 running maxima.
+// windows in the four lanes. Each output is a chain of twelve dependent
+// additions, so the main loop runs two groups of four windows side by side
+// (loop8) to give the processor independent work; a last group of four
+// goes through loop2. Registers: SI window start, CX windows left; Y4 y0,
+// Y5 y2 (and Y6, Y7 for the second group); Y0 and Y8 running maxima.
 TEXT ·peak2QuadsAVX2(SB), NOSPLIT, $0-40
 	MOVQ         w_base+0(FP), SI
 	MOVQ         w_len+8(FP), CX
 	VBROADCASTSD sq+24(FP), Y0
 	VMOVAPD      Y0, Y8
 	SUBQ         $11, CX
-	CMPQ         CX, $4
-	JLT          done2
+	CMPQ         CX, $8
+	JLT          quad2
+
+loop8:
+	VMOVUPD peak2Coeffs4<>+0(SB), Y10
+	VMOVUPD peak2Coeffs4<>+32(SB), Y11
+	VMULPD  88(SI), Y10, Y4
+	VMULPD  120(SI), Y10, Y6
+	VMULPD  0(SI), Y11, Y5
+	VMULPD  32(SI), Y11, Y7
+	TAP2X8(1)
+	TAP2X8(2)
+	TAP2X8(3)
+	TAP2X8(4)
+	TAP2X8(5)
+	TAP2X8(6)
+	TAP2X8(7)
+	TAP2X8(8)
+	TAP2X8(9)
+	TAP2X8(10)
+	TAP2X8(11)
+	VMULPD Y4, Y4, Y4
+	VMULPD Y5, Y5, Y5
+	VMULPD Y6, Y6, Y6
+	VMULPD Y7, Y7, Y7
+	VMAXPD Y0, Y4, Y0
+	VMAXPD Y8, Y5, Y8
+	VMAXPD Y0, Y6, Y0
+	VMAXPD Y8, Y7, Y8
+
+	ADDQ $64, SI
+	SUBQ $8, CX
+	CMPQ CX, $8
+	JGE  loop8
+
+quad2:
+	CMPQ CX, $4
+	JLT  done2
 
 loop2:
 	// Tap 0 starts the sums (0 + p is p up to the sign of a zero, which
@@ -383,4 +506,64 @@ doneabs:
 	VPBLENDVB    X4, X1, X0, X0
 	VZEROUPPER
 	MOVQ         X0, ret+24(FP)
+	RET
+
+// MAXBITS sets acc to the lane-wise larger of acc and v as signed 64-bit
+// integers (the bit patterns of magnitudes), using tmp.
+#define MAXBITS(v, acc, tmp) \
+	VPCMPGTQ  acc, v, tmp \
+	VPBLENDVB tmp, v, acc, acc
+
+// func runMaxBitsAVX2(w []float64, out []uint64)
+//
+// For every r < len(out), out[r] is the largest bit pattern of |x| over
+// w[32r : 32r+44] (the caller guarantees 32·(len(out)−1)+44 ≤ len(w)):
+// the pre-scan of peakRuns, whose run r covers w[32r : 32r+43], for all
+// runs of a chunk in one pass. Y6 holds the mask of everything but the sign
+// bit; Y0, Y1 two running maxima per run.
+TEXT ·runMaxBitsAVX2(SB), NOSPLIT, $0-48
+	MOVQ         w_base+0(FP), SI
+	MOVQ         out_base+24(FP), DI
+	MOVQ         out_len+32(FP), CX
+	MOVQ         $0x7fffffffffffffff, AX
+	MOVQ         AX, X6
+	VPBROADCASTQ X6, Y6
+	TESTQ        CX, CX
+	JZ           doneruns
+
+loopruns:
+	VPAND (SI), Y6, Y0
+	VPAND 32(SI), Y6, Y1
+	VPAND 64(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	VPAND 96(SI), Y6, Y3
+	MAXBITS(Y3, Y1, Y5)
+	VPAND 128(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	VPAND 160(SI), Y6, Y3
+	MAXBITS(Y3, Y1, Y5)
+	VPAND 192(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	VPAND 224(SI), Y6, Y3
+	MAXBITS(Y3, Y1, Y5)
+	VPAND 256(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	VPAND 288(SI), Y6, Y3
+	MAXBITS(Y3, Y1, Y5)
+	VPAND 320(SI), Y6, Y2
+	MAXBITS(Y2, Y0, Y5)
+	MAXBITS(Y1, Y0, Y5)
+	VEXTRACTI128 $1, Y0, X1
+	MAXBITS(X1, X0, X5)
+	VPSHUFD      $0x4e, X0, X1
+	MAXBITS(X1, X0, X5)
+	MOVQ         X0, (DI)
+
+	ADDQ $256, SI
+	ADDQ $8, DI
+	DECQ CX
+	JNZ  loopruns
+
+doneruns:
+	VZEROUPPER
 	RET

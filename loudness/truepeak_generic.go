@@ -10,3 +10,12 @@ func peak2Squares(w []float64, sq float64) float64 { return peak2SquaresGo(w, sq
 
 // maxAbs is maxAbsGo on platforms without a SIMD kernel.
 func maxAbs(x []float64) float64 { return maxAbsGo(x) }
+
+// runMaxBits sets runMax[r] to max|x| over run r of peakRuns (w[32r :
+// 32r+43], shorter at the end) for r < runs.
+func runMaxBits(w []float64, runMax []float64, runs int) {
+	n := len(w) - history
+	for r := range runs {
+		runMax[r] = maxAbs(w[r*skipRun : min((r+1)*skipRun, n)+history])
+	}
+}
