@@ -1,0 +1,175 @@
+//go:build !purego
+
+#include "textflag.h"
+
+// The hygiene probes' AVX2 kernels (see hygiene_kernel.go). Each running
+// sum lives in its own lane and takes one addition per frame, in frame
+// order, exactly as the Go loop adds it; products are rounded before they
+// are added (no FMA). The full-scale test compares the bits of |x| as
+// integers, which puts NaN above every finite value.
+
+// Offsets in frameState (TestFrameStateLayout checks them).
+#define ST_SUMS 0
+#define ST_PAIR 64
+#define ST_GAINS 112
+#define ST_CHANNELS 240
+#define ST_LEFT 248
+#define ST_RIGHT 256
+#define ST_FULL 264
+#define ST_LANES 272
+
+// func stereoStretchAVX2(seg []float64, s *pairSums, full uint64) bool
+//
+// Registers: SI seg, CX frames left, DI s; Y0 (sl, sr, sll, srr), X1 slr
+// (lane 0), X2 maxDiff (lane 0), X3 the full-scale flags; X15 full−1,
+// X14 the mask of all but the sign bit, Y13 ones.
+TEXT ·stereoStretchAVX2(SB), NOSPLIT, $0-41
+	MOVQ         seg_base+0(FP), SI
+	MOVQ         seg_len+8(FP), CX
+	MOVQ         s+24(FP), DI
+	MOVQ         full+32(FP), AX
+	SHRQ         $1, CX
+	DECQ         AX
+	MOVQ         AX, X15
+	VPBROADCASTQ X15, X15
+	MOVQ         $0x7fffffffffffffff, AX
+	MOVQ         AX, X14
+	VPBROADCASTQ X14, X14
+	MOVQ         $0x3ff0000000000000, AX
+	MOVQ         AX, X13
+	VPBROADCASTQ X13, Y13
+	VMOVUPD      0(DI), Y0
+	VMOVSD       32(DI), X1
+	VMOVSD       40(DI), X2
+	VPXOR        X3, X3, X3
+	TESTQ        CX, CX
+	JZ           sdone
+
+sloop:
+	VBROADCASTF128 (SI), Y4        // l r l r
+	VBLENDPD       $0x0C, Y4, Y13, Y5 // 1 1 l r
+	VMULPD         Y5, Y4, Y5      // l r l·l r·r
+	VADDPD         Y5, Y0, Y0      // sl+=l sr+=r sll+=l·l srr+=r·r
+	VPERMILPD      $1, X4, X6      // r l
+	VMULPD         X6, X4, X7      // l·r
+	VADDPD         X7, X1, X1      // slr+=l·r
+	VSUBPD         X6, X4, X7      // l−r
+	VANDPD         X14, X7, X7     // |l−r|
+	VMAXPD         X2, X7, X2      // |l−r| > md ? |l−r| : md
+	VPAND          X14, X4, X8     // bits of |l|, |r|
+	VPCMPGTQ       X15, X8, X8     // ≥ full
+	VPOR           X8, X3, X3
+	ADDQ           $16, SI
+	DECQ           CX
+	JNZ            sloop
+
+sdone:
+	VMOVUPD Y0, 0(DI)
+	VMOVSD  X1, 32(DI)
+	VMOVSD  X2, 40(DI)
+	VPTEST  X3, X3
+	SETNE   ret+40(FP)
+	VZEROUPPER
+	RET
+
+// func anyStretchAVX2(buf, out []float64, frames int, st *frameState) bool
+//
+// Registers: SI buf, DI out (0 for none), CX frames left, BX st, R8 the
+// frame's size in bytes, R9 and R10 the pair's byte offsets in a frame
+// (R9 < 0 for no pair), R11 the channel count; Y0, Y1 the channel sums
+// (channels 0–3, 4–7), Y2 (sl, sr, sll, srr), X3 slr, X4 maxDiff, Y5 the
+// full-scale flags, Y6, Y7 the load masks; Y15 full−1, Y14 the mask of all
+// but the sign bit, Y13 ones.
+TEXT ·anyStretchAVX2(SB), NOSPLIT, $0-65
+	MOVQ         buf_base+0(FP), SI
+	MOVQ         out_base+24(FP), DI
+	MOVQ         frames+48(FP), CX
+	MOVQ         st+56(FP), BX
+	MOVQ         ST_CHANNELS(BX), R11
+	LEAQ         (R11*8), R8
+	MOVQ         ST_LEFT(BX), R9
+	MOVQ         ST_RIGHT(BX), R10
+	SHLQ         $3, R9
+	SHLQ         $3, R10
+	MOVQ         ST_FULL(BX), AX
+	DECQ         AX
+	MOVQ         AX, X15
+	VPBROADCASTQ X15, Y15
+	MOVQ         $0x7fffffffffffffff, AX
+	MOVQ         AX, X14
+	VPBROADCASTQ X14, Y14
+	MOVQ         $0x3ff0000000000000, AX
+	MOVQ         AX, X13
+	VPBROADCASTQ X13, Y13
+	VMOVDQU      ST_LANES(BX), Y6
+	VMOVDQU      ST_LANES+32(BX), Y7
+	VMOVUPD      ST_SUMS(BX), Y0
+	VMOVUPD      ST_SUMS+32(BX), Y1
+	VMOVUPD      ST_PAIR(BX), Y2
+	VMOVSD       ST_PAIR+32(BX), X3
+	VMOVSD       ST_PAIR+40(BX), X4
+	VPXOR        Y5, Y5, Y5
+	TESTQ        CX, CX
+	JZ           adone
+
+aloop:
+	VMASKMOVPD (SI), Y6, Y10     // channels 0–3 (0 beyond the last)
+	VMASKMOVPD 32(SI), Y7, Y11   // channels 4–7
+	VADDPD     Y10, Y0, Y0
+	VADDPD     Y11, Y1, Y1
+	VPAND      Y14, Y10, Y10
+	VPCMPGTQ   Y15, Y10, Y10
+	VPOR       Y10, Y5, Y5
+	VPAND      Y14, Y11, Y11
+	VPCMPGTQ   Y15, Y11, Y11
+	VPOR       Y11, Y5, Y5
+	TESTQ      R9, R9
+	JS         nopair
+	VMOVSD      (SI)(R9*1), X10
+	VMOVHPD     (SI)(R10*1), X10, X10 // l r
+	VINSERTF128 $1, X10, Y10, Y11     // l r l r
+	VBLENDPD    $0x0C, Y11, Y13, Y12  // 1 1 l r
+	VMULPD      Y12, Y11, Y12         // l r l·l r·r
+	VADDPD      Y12, Y2, Y2
+	VPERMILPD   $1, X10, X12          // r l
+	VMULPD      X12, X10, X9          // l·r
+	VADDPD      X9, X3, X3
+	VSUBPD      X12, X10, X9          // l−r
+	VANDPD      X14, X9, X9
+	VMAXPD      X4, X9, X4
+
+nopair:
+	TESTQ DI, DI
+	JZ    next
+	// Lo, Ro = Σ gain·x from 0 in channel order, both in one register.
+	VXORPD X8, X8, X8
+	MOVQ   SI, R12
+	LEAQ   ST_GAINS(BX), R13
+	MOVQ   R11, R14
+
+fold:
+	VMOVDDUP (R12), X9           // x x
+	VMULPD   (R13), X9, X9       // x·gainLo x·gainRo
+	VADDPD   X9, X8, X8
+	ADDQ     $8, R12
+	ADDQ     $16, R13
+	DECQ     R14
+	JNZ      fold
+	VMOVUPD  X8, (DI)
+	ADDQ     $16, DI
+
+next:
+	ADDQ R8, SI
+	DECQ CX
+	JNZ  aloop
+
+adone:
+	VMOVUPD Y0, ST_SUMS(BX)
+	VMOVUPD Y1, ST_SUMS+32(BX)
+	VMOVUPD Y2, ST_PAIR(BX)
+	VMOVSD  X3, ST_PAIR+32(BX)
+	VMOVSD  X4, ST_PAIR+40(BX)
+	VPTEST  Y5, Y5
+	SETNE   ret+64(FP)
+	VZEROUPPER
+	RET
