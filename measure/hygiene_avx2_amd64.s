@@ -72,6 +72,13 @@ sdone:
 	VZEROUPPER
 	RET
 
+// FOLDSTEP adds channel c's two products (gain into Lo, gain into Ro,
+// times x) to X8, using X9.
+#define FOLDSTEP(c) \
+	VMOVDDUP (c*8)(SI), X9 \
+	VMULPD   (ST_GAINS+c*16)(BX), X9, X9 \
+	VADDPD   X9, X8, X8
+
 // func anyStretchAVX2(buf, out []float64, frames int, st *frameState) bool
 //
 // Registers: SI buf, DI out (0 for none), CX frames left, BX st, R8 the
@@ -141,7 +148,22 @@ aloop:
 nopair:
 	TESTQ DI, DI
 	JZ    next
-	// Lo, Ro = Σ gain·x from 0 in channel order, both in one register.
+	// Lo, Ro = Σ gain·x from 0 in channel order, both in one register;
+	// six channels (5.1) unrolled.
+	CMPQ R11, $6
+	JNE  foldany
+	VXORPD   X8, X8, X8
+	FOLDSTEP(0)
+	FOLDSTEP(1)
+	FOLDSTEP(2)
+	FOLDSTEP(3)
+	FOLDSTEP(4)
+	FOLDSTEP(5)
+	VMOVUPD  X8, (DI)
+	ADDQ     $16, DI
+	JMP      next
+
+foldany:
 	VXORPD X8, X8, X8
 	MOVQ   SI, R12
 	LEAQ   ST_GAINS(BX), R13
