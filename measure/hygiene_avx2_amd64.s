@@ -20,9 +20,12 @@
 
 // func stereoStretchAVX2(seg []float64, s *pairSums, full uint64) bool
 //
-// Registers: SI seg, CX frames left, DI s; Y0 (sl, sr, sll, srr), X1 slr
-// (lane 0), X2 maxDiff (lane 0), X3 the full-scale flags; X15 full−1,
-// X14 the mask of all but the sign bit, Y13 ones.
+// Two frames per step, each sum still taking one frame at a time:
+// registers SI seg, CX frames left, DI s; Y0 (sl, sr, sll, srr), X1 slr
+// (lane 0), Y2 the running maxima of |L−R| (every lane: the maximum is
+// exact in any order, and NaN is never taken, as in Go), Y3 the
+// full-scale flags; Y15 full−1, Y14 the mask of all but the sign bit,
+// Y13 ones.
 TEXT ·stereoStretchAVX2(SB), NOSPLIT, $0-41
 	MOVQ         seg_base+0(FP), SI
 	MOVQ         seg_len+8(FP), CX
@@ -31,44 +34,71 @@ TEXT ·stereoStretchAVX2(SB), NOSPLIT, $0-41
 	SHRQ         $1, CX
 	DECQ         AX
 	MOVQ         AX, X15
-	VPBROADCASTQ X15, X15
+	VPBROADCASTQ X15, Y15
 	MOVQ         $0x7fffffffffffffff, AX
 	MOVQ         AX, X14
-	VPBROADCASTQ X14, X14
+	VPBROADCASTQ X14, Y14
 	MOVQ         $0x3ff0000000000000, AX
 	MOVQ         AX, X13
 	VPBROADCASTQ X13, Y13
 	VMOVUPD      0(DI), Y0
 	VMOVSD       32(DI), X1
-	VMOVSD       40(DI), X2
-	VPXOR        X3, X3, X3
-	TESTQ        CX, CX
-	JZ           sdone
+	VBROADCASTSD 40(DI), Y2
+	VPXOR        Y3, Y3, Y3
+	CMPQ         CX, $2
+	JLT          sone
 
-sloop:
-	VBROADCASTF128 (SI), Y4        // l r l r
+spair:
+	VMOVUPD      (SI), Y4          // l0 r0 l1 r1
+	VMULPD       Y4, Y4, Y5        // l0² r0² l1² r1²
+	VPERM2F128   $0x20, Y5, Y4, Y6 // l0 r0 l0² r0²
+	VPERM2F128   $0x31, Y5, Y4, Y7 // l1 r1 l1² r1²
+	VADDPD       Y6, Y0, Y0        // frame 0 into sl sr sll srr
+	VADDPD       Y7, Y0, Y0        // frame 1
+	VPERMILPD    $5, Y4, Y8        // r0 l0 r1 l1
+	VMULPD       Y8, Y4, Y9        // l0·r0 · l1·r1 ·
+	VADDSD       X9, X1, X1        // slr += l0·r0
+	VEXTRACTF128 $1, Y9, X10
+	VADDSD       X10, X1, X1       // slr += l1·r1
+	VSUBPD       Y8, Y4, Y10       // l0−r0 · l1−r1 ·
+	VANDPD       Y14, Y10, Y10
+	VMAXPD       Y2, Y10, Y2       // |l−r| > md ? |l−r| : md
+	VPAND        Y14, Y4, Y11      // bits of |x|
+	VPCMPGTQ     Y15, Y11, Y11     // ≥ full
+	VPOR         Y11, Y3, Y3
+	ADDQ         $32, SI
+	SUBQ         $2, CX
+	CMPQ         CX, $2
+	JGE          spair
+
+sone:
+	TESTQ          CX, CX
+	JZ             sdone
+	VBROADCASTF128 (SI), Y4           // l r l r
 	VBLENDPD       $0x0C, Y4, Y13, Y5 // 1 1 l r
-	VMULPD         Y5, Y4, Y5      // l r l·l r·r
-	VADDPD         Y5, Y0, Y0      // sl+=l sr+=r sll+=l·l srr+=r·r
-	VPERMILPD      $1, X4, X6      // r l
-	VMULPD         X6, X4, X7      // l·r
-	VADDPD         X7, X1, X1      // slr+=l·r
-	VSUBPD         X6, X4, X7      // l−r
-	VANDPD         X14, X7, X7     // |l−r|
-	VMAXPD         X2, X7, X2      // |l−r| > md ? |l−r| : md
-	VPAND          X14, X4, X8     // bits of |l|, |r|
-	VPCMPGTQ       X15, X8, X8     // ≥ full
-	VPOR           X8, X3, X3
-	ADDQ           $16, SI
-	DECQ           CX
-	JNZ            sloop
+	VMULPD         Y5, Y4, Y5         // l r l·l r·r
+	VADDPD         Y5, Y0, Y0
+	VPERMILPD      $1, X4, X6         // r l
+	VMULPD         X6, X4, X7         // l·r
+	VADDSD         X7, X1, X1
+	VSUBPD         X6, X4, X7         // l−r
+	VANDPD         X14, X7, X7
+	VMAXPD         X2, X7, X7
+	VBLENDPD       $0x03, Y7, Y2, Y2  // into lanes 0, 1
+	VPAND          X14, X4, X8
+	VPCMPGTQ       X15, X8, X8
+	VPOR           Y8, Y3, Y3
 
 sdone:
-	VMOVUPD Y0, 0(DI)
-	VMOVSD  X1, 32(DI)
-	VMOVSD  X2, 40(DI)
-	VPTEST  X3, X3
-	SETNE   ret+40(FP)
+	VEXTRACTF128 $1, Y2, X10
+	VMAXPD       X10, X2, X2
+	VPERMILPD    $1, X2, X10
+	VMAXPD       X10, X2, X2
+	VMOVUPD      Y0, 0(DI)
+	VMOVSD       X1, 32(DI)
+	VMOVSD       X2, 40(DI)
+	VPTEST       Y3, Y3
+	SETNE        ret+40(FP)
 	VZEROUPPER
 	RET
 
