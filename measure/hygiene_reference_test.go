@@ -10,6 +10,8 @@ import (
 // referenceWrite is hygiene.write as it was before the kernels (plain Go,
 // one pass for the stereo file, a loop per channel and then the pair for
 // the others): the reference TestProbesMatchReference holds the probes to.
+// Its products are wrapped in float64(…) so that no build (GOAMD64=v3)
+// fuses them, as the default build never did.
 func referenceWrite(h *hygiene, buf []float64) {
 	nc := h.channels
 	frames := len(buf) / nc
@@ -50,9 +52,9 @@ func referenceStereo(h *hygiene, buf []float64, frames int) {
 			l, r := seg[i], seg[i+1]
 			sl += l
 			sr += r
-			sll += l * l
-			srr += r * r
-			slr += l * r
+			sll += float64(l * l)
+			srr += float64(r * r)
+			slr += float64(l * r)
 			if d := math.Abs(l - r); d > maxDiff {
 				maxDiff = d
 			}
@@ -90,9 +92,9 @@ func referencePair(h *hygiene, buf []float64, frames int) {
 			}
 			sl += l
 			sr += r
-			sll += l * l
-			srr += r * r
-			slr += l * r
+			sll += float64(l * l)
+			srr += float64(r * r)
+			slr += float64(l * r)
 		}
 		w.sl, w.sr, w.sll, w.srr, w.slr = sl, sr, sll, srr, slr
 		w.n += float64(k)
