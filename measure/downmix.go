@@ -73,19 +73,13 @@ func newDownmixer(layout []string, sampleRate int) *downmixer {
 	return d
 }
 
-// write folds and meters one block of interleaved frames. It returns the
-// index of the first frame whose fold-down the meter had to reject (beyond
+// writeWithProbes folds and meters one block of interleaved frames in the
+// hygiene probes' pass over it: h takes the block as h.write does, and
+// hygiene.writeFold makes the fold-down into the meter's buffer with the
+// same operations in the same order as foldAny (TestProbesMatchReference
+// checks it bit for bit), which is then metered. It returns the index of
+// the first frame whose fold-down the meter had to reject (beyond
 // loudness.MaxMagnitude), or -1.
-func (d *downmixer) write(buf []float64) int {
-	out := d.buffer(len(buf) / d.channels)
-	d.fold(out, buf)
-	return d.meterFolded(out)
-}
-
-// writeWithProbes is write fused with h.write: one pass over buf feeds
-// the hygiene probes and makes the fold-down (hygiene.writeFold), which is
-// then metered. The fold-down is write's bit for bit
-// (TestFusedFoldMatchesFold).
 func (d *downmixer) writeWithProbes(buf []float64, h *hygiene) int {
 	out := d.buffer(len(buf) / d.channels)
 	h.writeFold(buf, out, d.gains)
@@ -100,7 +94,7 @@ func (d *downmixer) buffer(frames int) []float64 {
 	return d.stereo[:2*frames]
 }
 
-// meterFolded meters a folded block (see write).
+// meterFolded meters a folded block and returns as writeWithProbes.
 func (d *downmixer) meterFolded(out []float64) int {
 	before := d.meter.Rejected()
 	d.meter.Write(out)
