@@ -227,7 +227,7 @@ func (h *hygiene) stretch(seg, out, gains []float64, p *pairSums) bool {
 	}
 	st := &h.st
 	copy(st.sums[:], h.sum)
-	copy(st.gains[:], gains)
+	st.setGains(gains)
 	st.pair = *p
 	full := anyStretch(seg, out, st)
 	copy(h.sum, st.sums[:nc])

@@ -17,6 +17,7 @@
 #define ST_RIGHT 256
 #define ST_FULL 264
 #define ST_LANES 272
+#define ST_GAINS2 336
 
 // func stereoStretchAVX2(seg []float64, s *pairSums, full uint64) bool
 //
@@ -109,6 +110,16 @@ sdone:
 	VMULPD   (ST_GAINS+c*16)(BX), X9, X9 \
 	VADDPD   X9, X8, X8
 
+// FOLD2 adds to Y6 the products of channels c and c+1 of two frames,
+// whose samples R holds as (f[c], f[c+1], g[c], g[c+1]), using Y13.
+#define FOLD2(R, c) \
+	VMOVDDUP  R, Y13 \
+	VMULPD    (ST_GAINS2+c*32)(BX), Y13, Y13 \
+	VADDPD    Y13, Y6, Y6 \
+	VPERMILPD $0xF, R, Y13 \
+	VMULPD    (ST_GAINS2+c*32+32)(BX), Y13, Y13 \
+	VADDPD    Y13, Y6, Y6
+
 // func anyStretchAVX2(buf, out []float64, frames int, st *frameState) bool
 //
 // Registers: SI buf, DI out (0 for none), CX frames left, BX st, R8 the
@@ -146,8 +157,80 @@ TEXT ·anyStretchAVX2(SB), NOSPLIT, $0-65
 	VMOVSD       ST_PAIR+32(BX), X3
 	VMOVSD       ST_PAIR+40(BX), X4
 	VPXOR        Y5, Y5, Y5
-	TESTQ        CX, CX
-	JZ           adone
+	// 5.1 with L, R first and a fold-down: two frames per step (below).
+	CMPQ         R11, $6
+	JNE          astart
+	TESTQ        DI, DI
+	JZ           astart
+	CMPQ         R9, $0
+	JNE          astart
+	CMPQ         R10, $8
+	JNE          astart
+	CMPQ         CX, $2
+	JLT          astart
+
+six:
+	VMOVUPD    (SI), Y8          // A = f0 f1 f2 f3 (frame f, channels 0–3)
+	VMOVUPD    32(SI), Y9        // B = f4 f5 g0 g1 (g the next frame)
+	VMOVUPD    64(SI), Y10       // C = g2 g3 g4 g5
+	VPAND      Y14, Y8, Y11      // full scale, all twelve samples
+	VPCMPGTQ   Y15, Y11, Y11
+	VPOR       Y11, Y5, Y5
+	VPAND      Y14, Y9, Y11
+	VPCMPGTQ   Y15, Y11, Y11
+	VPOR       Y11, Y5, Y5
+	VPAND      Y14, Y10, Y11
+	VPCMPGTQ   Y15, Y11, Y11
+	VPOR       Y11, Y5, Y5
+	VPERM2F128 $0x21, Y10, Y9, Y11 // G = g0 g1 g2 g3
+	VADDPD     Y8, Y0, Y0        // channel sums 0–3: frame f, then g
+	VADDPD     Y11, Y0, Y0
+	VADDPD     X9, X1, X1        // channel sums 4–5: f, then g
+	VEXTRACTF128 $1, Y10, X12
+	VADDPD     X12, X1, X1
+	VPERM2F128 $0x20, Y11, Y8, Y12 // Q = lf rf lg rg
+	VMULPD     Y12, Y12, Y13       // their squares
+	VPERM2F128 $0x20, Y13, Y12, Y6 // lf rf lf² rf²
+	VPERM2F128 $0x31, Y13, Y12, Y7 // lg rg lg² rg²
+	VADDPD     Y6, Y2, Y2
+	VADDPD     Y7, Y2, Y2
+	VPERMILPD  $5, Y12, Y13        // rf lf rg lg
+	VMULPD     Y13, Y12, Y6        // lf·rf · lg·rg ·
+	VADDSD     X6, X3, X3
+	VEXTRACTF128 $1, Y6, X7
+	VADDSD     X7, X3, X3
+	VSUBPD     Y13, Y12, Y6        // lf−rf · lg−rg ·
+	VANDPD     Y14, Y6, Y6
+	VMAXPD     Y4, Y6, Y4
+	// Fold-down, lanes Lo(f) Ro(f) Lo(g) Ro(g): each channel's two
+	// samples duplicated, times its gains (ST_GAINS2), added from 0.
+	VXORPD     Y6, Y6, Y6
+	FOLD2(Y12, 0)
+	VPERM2F128 $0x31, Y11, Y8, Y12 // f2 f3 g2 g3
+	FOLD2(Y12, 2)
+	VPERM2F128 $0x30, Y10, Y9, Y12 // f4 f5 g4 g5
+	FOLD2(Y12, 4)
+	VMOVUPD    Y6, (DI)
+	ADDQ       $32, DI
+	ADDQ       $96, SI
+	SUBQ       $2, CX
+	CMPQ       CX, $2
+	JGE        six
+	// Back to the one-frame registers: maxDiff in lane 0 of X4, the load
+	// masks and ones.
+	VEXTRACTF128 $1, Y4, X12
+	VMAXPD       X12, X4, X4
+	VPERMILPD    $1, X4, X12
+	VMAXPD       X12, X4, X4
+	VMOVDQU      ST_LANES(BX), Y6
+	VMOVDQU      ST_LANES+32(BX), Y7
+	MOVQ         $0x3ff0000000000000, AX
+	MOVQ         AX, X13
+	VPBROADCASTQ X13, Y13
+
+astart:
+	TESTQ CX, CX
+	JZ    adone
 
 aloop:
 	VMASKMOVPD (SI), Y6, Y10     // channels 0–3 (0 beyond the last)

@@ -41,6 +41,17 @@ type frameState struct {
 	// lanes has all bits set for the lanes of the channels there are (the
 	// kernel's load masks).
 	lanes [maxKernelChannels]uint64
+	// gains2 holds each channel's gains twice (Lo, Ro, Lo, Ro), for the
+	// 5.1 loop that folds two frames at once (setGains).
+	gains2 [maxKernelChannels][4]float64
+}
+
+// setGains copies the fold-down gains (Lo, Ro per channel) into st.
+func (st *frameState) setGains(gains []float64) {
+	copy(st.gains[:], gains)
+	for c := range min(len(gains)/2, maxKernelChannels) {
+		st.gains2[c] = [4]float64{gains[2*c], gains[2*c+1], gains[2*c], gains[2*c+1]}
+	}
 }
 
 // newFrameState returns the kernel state for channels channels with the

@@ -31,6 +31,7 @@ func TestFrameStateLayout(t *testing.T) {
 		{"right", unsafe.Offsetof(st.right), 256},
 		{"full", unsafe.Offsetof(st.full), 264},
 		{"lanes", unsafe.Offsetof(st.lanes), 272},
+		{"gains2", unsafe.Offsetof(st.gains2), 336},
 	} {
 		if c.got != c.want {
 			t.Errorf("frameState.%s at offset %d, the assembly expects %d", c.name, c.got, c.want)
@@ -141,7 +142,9 @@ func TestAnyKernelMatchesGo(t *testing.T) {
 	}
 	full := math.Float64bits(1)
 	for nc := 1; nc <= maxKernelChannels; nc++ {
-		for _, pair := range [][2]int{{-1, -1}, {0, nc - 1}, {nc - 1, 0}} {
+		// {0, 1} with the fold-down at six channels is the 5.1 loop that
+		// takes two frames per step.
+		for _, pair := range [][2]int{{-1, -1}, {0, nc - 1}, {nc - 1, 0}, {0, 1}} {
 			if pair[0] >= 0 && nc < 2 {
 				continue
 			}
@@ -154,7 +157,7 @@ func TestAnyKernelMatchesGo(t *testing.T) {
 					buf := probeSignal(n, nc, uint64(n*nc), n%2 == 1)
 					name := fmt.Sprintf("%dch pair %v fold %v %d frames", nc, pair, fold, n)
 					st := newFrameState(nc, pair[0], pair[1], 1)
-					copy(st.gains[:], gains)
+					st.setGains(gains)
 					for c := range nc {
 						st.sums[c] = float64(c) - 2.5
 					}
