@@ -30,6 +30,7 @@ type downmixer struct {
 	channels int
 	left     []float64 // gain of each input channel into Lo
 	right    []float64 // gain of each input channel into Ro
+	gains    []float64 // left and right interleaved: Lo, Ro gain per channel
 	stereo   []float64
 	meter    *loudness.Meter
 }
@@ -61,6 +62,9 @@ func newDownmixer(layout []string, sampleRate int) *downmixer {
 			return nil
 		}
 	}
+	for i := range layout {
+		d.gains = append(d.gains, d.left[i], d.right[i])
+	}
 	meter, err := loudness.NewMeter(sampleRate, []float64{1, 1})
 	if err != nil {
 		return nil
@@ -69,16 +73,29 @@ func newDownmixer(layout []string, sampleRate int) *downmixer {
 	return d
 }
 
-// write folds and meters one block of interleaved frames. It returns the
-// index of the first frame whose fold-down the meter had to reject (beyond
+// writeWithProbes folds and meters one block of interleaved frames in the
+// hygiene probes' pass over it: h takes the block as h.write does, and
+// hygiene.writeFold makes the fold-down into the meter's buffer with the
+// same operations in the same order as foldAny (TestProbesMatchReference
+// checks it bit for bit), which is then metered. It returns the index of
+// the first frame whose fold-down the meter had to reject (beyond
 // loudness.MaxMagnitude), or -1.
-func (d *downmixer) write(buf []float64) int {
-	frames := len(buf) / d.channels
+func (d *downmixer) writeWithProbes(buf []float64, h *hygiene) int {
+	out := d.buffer(len(buf) / d.channels)
+	h.writeFold(buf, out, d.gains)
+	return d.meterFolded(out)
+}
+
+// buffer returns the fold-down buffer for frames frames.
+func (d *downmixer) buffer(frames int) []float64 {
 	if cap(d.stereo) < 2*frames {
 		d.stereo = make([]float64, 2*frames)
 	}
-	out := d.stereo[:2*frames]
-	d.fold(out, buf)
+	return d.stereo[:2*frames]
+}
+
+// meterFolded meters a folded block and returns as writeWithProbes.
+func (d *downmixer) meterFolded(out []float64) int {
 	before := d.meter.Rejected()
 	d.meter.Write(out)
 	if d.meter.Rejected() == before {

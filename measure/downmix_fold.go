@@ -6,7 +6,10 @@ package measure
 // with the twelve gains in registers (the general loop spends more on its
 // inner loop than on the arithmetic); it performs the same operations in
 // the same order, so the fold-down is the same bit for bit
-// (TestFoldSixMatchesGeneral).
+// (TestFoldSixMatchesGeneral). The measuring pass folds in the hygiene
+// probes' kernel instead (writeWithProbes); fold serves the pre-roll of a
+// section (warm) and is the reference the probes' fold-down is checked
+// against.
 func (d *downmixer) fold(out, buf []float64) {
 	if d.channels == 6 {
 		d.fold6(out, buf)

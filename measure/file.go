@@ -422,12 +422,19 @@ func (s *blockSink) write(block []float64, at int64) error {
 	if s.ev != nil {
 		clips = s.ev.markClips(s.hyg)
 	}
-	s.hyg.write(block)
+	// A surround file's fold-down is made in the probes' pass over the
+	// block (downmixer.writeWithProbes).
+	f := -1
+	if s.fold != nil {
+		f = s.fold.writeWithProbes(block, s.hyg)
+	} else {
+		s.hyg.write(block)
+	}
 	if s.ev != nil {
 		s.ev.afterBlock(s.hyg, clips, at, len(block)/s.channels, s.rate)
 	}
 	if s.fold != nil {
-		if f := s.fold.write(block); f >= 0 {
+		if f >= 0 {
 			at += int64(f)
 			return fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
 				at, float64(at)/float64(s.rate), sci(loudness.MaxMagnitude))

@@ -310,10 +310,15 @@ func (p *programme) write(block []float64, nc int, at int64) error {
 	}
 	p.meter.Write(buf)
 	clips := p.ev.markClips(p.hyg)
-	p.hyg.write(buf)
+	f := -1
+	if p.fold != nil {
+		f = p.fold.writeWithProbes(buf, p.hyg)
+	} else {
+		p.hyg.write(buf)
+	}
 	p.ev.afterBlock(p.hyg, clips, at, n, p.rate)
 	if p.fold != nil {
-		if f := p.fold.write(buf); f >= 0 {
+		if f >= 0 {
 			return fmt.Errorf("group %q: frame %d folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
 				p.group.Name, at+int64(f), sci(loudness.MaxMagnitude))
 		}

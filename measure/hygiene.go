@@ -36,6 +36,7 @@ const (
 type hygiene struct {
 	channels     int
 	clipLevel    float64 // |x| at or above this is a full-scale sample
+	fullBits     uint64  // the bits of clipLevel (see pairSums)
 	silenceLevel float64 // linear sample-peak threshold for silence
 	lsb          float64 // one quantisation step, for the dual-mono test
 	clipRunMin   int64
@@ -59,6 +60,9 @@ type hygiene struct {
 	// the correlation of each one with signal (for phase events).
 	windows  int64
 	onWindow func(k int64, c float64)
+	// st is the any-channel kernel's state block, a value so that a copy
+	// of the probes (a section's, see split.go) has its own.
+	st frameState
 }
 
 // pairStats holds the running sums for a Pearson correlation of two
@@ -115,78 +119,144 @@ func newHygiene(channels, sampleRate, bits int, float bool, layout []string, sil
 	if h.left < 0 || h.right < 0 {
 		h.left, h.right = -1, -1
 	}
+	h.fullBits = math.Float64bits(h.clipLevel)
+	h.st = newFrameState(channels, h.left, h.right, h.clipLevel)
 	return h
 }
 
 // write takes interleaved frames.
-func (h *hygiene) write(buf []float64) {
+func (h *hygiene) write(buf []float64) { h.writeFold(buf, nil, nil) }
+
+// writeFold is write that also folds every frame down to Lo/Ro into out
+// (two samples per frame) with gains (gain into Lo, gain into Ro, per
+// channel; see downmixer), in the same pass over buf. out is nil for no
+// fold-down.
+//
+// The sums go through the kernels of hygiene_kernel.go a window segment at
+// a time; the clipping runs are walked sample by sample only in segments
+// where the kernel saw a full-scale sample or a run is still open.
+func (h *hygiene) writeFold(buf, out, gains []float64) {
 	nc := h.channels
 	frames := len(buf) / nc
-	if nc == 2 && h.left == 0 && h.right == 1 {
+	if nc == 2 && h.left == 0 && h.right == 1 && out == nil {
 		h.writeStereo(buf, frames)
 	} else {
-		lvl := h.clipLevel
-		for c := 0; c < nc; c++ {
-			sum, run := h.sum[c], h.run[c]
-			for i := c; i < len(buf); i += nc {
-				x := buf[i]
-				sum += x
-				if math.Abs(x) >= lvl || run > 0 {
-					run = h.clipStep(x, run)
-				}
-			}
-			h.sum[c], h.run[c] = sum, run
-		}
-		if h.left >= 0 {
-			h.trackPair(buf, frames)
-		}
+		h.writeAny(buf, out, gains, frames)
 	}
 	h.trackLoudness(buf, frames)
 	h.frames += int64(frames)
 }
 
-// writeStereo is write for the common L/R file: the per-channel sums and
-// clipping runs and the pair statistics of trackPair in one pass over the
-// block, so the samples are loaded once. (It is trackPair's loop with the
-// per-channel work folded in; kept separate because the general loop over
-// any channel count cannot be fused the same way.)
+// writeStereo is write for the common L/R file, where the channel sums
+// are made from the window sums (Σ over a segment of the window sum's
+// growth), so the samples are loaded once.
 func (h *hygiene) writeStereo(buf []float64, frames int) {
-	lvl := h.clipLevel
-	sumL, sumR := h.sum[0], h.sum[1]
-	runL, runR := h.run[0], h.run[1]
-	maxDiff := h.maxDiff
 	for f := 0; f < frames; {
 		w := &h.window
 		k := min(frames-f, int(h.windowFrames-int64(w.n)))
-		sl, sr, sll, srr, slr := w.sl, w.sr, w.sll, w.srr, w.slr
 		seg := buf[2*f : 2*(f+k)]
-		for i := 0; i+1 < len(seg); i += 2 {
-			l, r := seg[i], seg[i+1]
-			sl += l
-			sr += r
-			sll += l * l
-			srr += r * r
-			slr += l * r
-			if d := math.Abs(l - r); d > maxDiff {
-				maxDiff = d
-			}
-			if math.Abs(l) >= lvl || math.Abs(r) >= lvl || runL > 0 || runR > 0 {
-				runL = h.clipStep(l, runL)
-				runR = h.clipStep(r, runR)
-			}
+		s := pairSums{w.sl, w.sr, w.sll, w.srr, w.slr, h.maxDiff}
+		full := stereoStretch(seg, &s, h.fullBits)
+		h.sum[0] += s.sl - w.sl
+		h.sum[1] += s.sr - w.sr
+		w.sl, w.sr, w.sll, w.srr, w.slr, h.maxDiff = s.sl, s.sr, s.sll, s.srr, s.slr, s.maxDiff
+		if full || h.run[0] > 0 || h.run[1] > 0 {
+			h.clipStereo(seg)
 		}
-		sumL += sl - w.sl
-		sumR += sr - w.sr
-		w.sl, w.sr, w.sll, w.srr, w.slr = sl, sr, sll, srr, slr
 		w.n += float64(k)
 		f += k
 		if int64(w.n) == h.windowFrames {
 			h.closeWindow()
 		}
 	}
-	h.sum[0], h.sum[1] = sumL, sumR
+}
+
+// clipStereo walks the clipping runs of a stereo segment.
+func (h *hygiene) clipStereo(seg []float64) {
+	lvl := h.clipLevel
+	runL, runR := h.run[0], h.run[1]
+	for i := 0; i+1 < len(seg); i += 2 {
+		l, r := seg[i], seg[i+1]
+		if math.Abs(l) >= lvl || math.Abs(r) >= lvl || runL > 0 || runR > 0 {
+			runL = h.clipStep(l, runL)
+			runR = h.clipStep(r, runR)
+		}
+	}
 	h.run[0], h.run[1] = runL, runR
-	h.maxDiff = maxDiff
+}
+
+// writeAny is writeFold for any channel count and layout: per-channel
+// sums, the L/R pair's window sums where the layout has the pair, and the
+// fold-down when out is set.
+func (h *hygiene) writeAny(buf, out, gains []float64, frames int) {
+	nc := h.channels
+	for f := 0; f < frames; {
+		k := frames - f
+		var p pairSums
+		w := &h.window
+		if h.left >= 0 {
+			k = min(k, int(h.windowFrames-int64(w.n)))
+			p = pairSums{w.sl, w.sr, w.sll, w.srr, w.slr, h.maxDiff}
+		}
+		seg := buf[f*nc : (f+k)*nc]
+		var o []float64
+		if out != nil {
+			o = out[2*f : 2*(f+k)]
+		}
+		full := h.stretch(seg, o, gains, &p)
+		if full || h.runOpen() {
+			h.clipAny(seg)
+		}
+		f += k
+		if h.left >= 0 {
+			w.sl, w.sr, w.sll, w.srr, w.slr, h.maxDiff = p.sl, p.sr, p.sll, p.srr, p.slr, p.maxDiff
+			w.n += float64(k)
+			if int64(w.n) == h.windowFrames {
+				h.closeWindow()
+			}
+		}
+	}
+}
+
+// stretch runs the any-channel kernel over seg: on AVX2 through the
+// kernel's state block, which the sums are copied into and back out of.
+func (h *hygiene) stretch(seg, out, gains []float64, p *pairSums) bool {
+	nc := h.channels
+	if !hygieneAVX2 || nc > maxKernelChannels {
+		return anyStretchGo(seg, out, h.sum, gains, p, h.left, h.right, h.fullBits)
+	}
+	st := &h.st
+	copy(st.sums[:], h.sum)
+	st.setGains(gains)
+	st.pair = *p
+	full := anyStretch(seg, out, st)
+	copy(h.sum, st.sums[:nc])
+	*p = st.pair
+	return full
+}
+
+// runOpen reports whether a channel is inside a clipping run.
+func (h *hygiene) runOpen() bool {
+	for _, r := range h.run {
+		if r > 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// clipAny walks the clipping runs of a segment of any channel count.
+func (h *hygiene) clipAny(seg []float64) {
+	nc, lvl := h.channels, h.clipLevel
+	for c := 0; c < nc; c++ {
+		run := h.run[c]
+		for i := c; i < len(seg); i += nc {
+			if x := seg[i]; math.Abs(x) >= lvl || run > 0 {
+				run = h.clipStep(x, run)
+			}
+		}
+		h.run[c] = run
+	}
 }
 
 // clipStep advances one channel's clipping run by one sample.
@@ -243,38 +313,6 @@ func anyAbove(frame []float64, thr float64) bool {
 		}
 	}
 	return false
-}
-
-// trackPair accumulates the L/R correlation over the file and over 3 s
-// windows, and the largest L−R difference for the dual-mono test. It works
-// window segment by window segment so the inner loop keeps its sums in
-// registers.
-func (h *hygiene) trackPair(buf []float64, frames int) {
-	nc, li, ri := h.channels, h.left, h.right
-	maxDiff := h.maxDiff
-	for f := 0; f < frames; {
-		w := &h.window
-		k := min(frames-f, int(h.windowFrames-int64(w.n)))
-		sl, sr, sll, srr, slr := w.sl, w.sr, w.sll, w.srr, w.slr
-		for end := f + k; f < end; f++ {
-			l, r := buf[f*nc+li], buf[f*nc+ri]
-			d := l - r
-			if d > maxDiff || -d > maxDiff {
-				maxDiff = math.Abs(d)
-			}
-			sl += l
-			sr += r
-			sll += l * l
-			srr += r * r
-			slr += l * r
-		}
-		w.sl, w.sr, w.sll, w.srr, w.slr = sl, sr, sll, srr, slr
-		w.n += float64(k)
-		if int64(w.n) == h.windowFrames {
-			h.closeWindow()
-		}
-	}
-	h.maxDiff = maxDiff
 }
 
 // closeWindow folds the current window into the whole-file sums and, when

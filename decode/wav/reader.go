@@ -3,14 +3,17 @@ package wav
 import (
 	"fmt"
 	"io"
+	"unsafe"
 
 	"github.com/kweigh/kweigh/decode"
 )
 
-// rawBufferSize is the size of the byte buffer each decoder reads the data
-// chunk through. It is fixed whatever the file declares, so memory does not
-// grow with the length of the file.
-const rawBufferSize = 64 << 10
+// readBlock is how many bytes the decoder asks the file for at once: a
+// quarter of a megabyte, so that a long file takes few read calls (one per
+// 1.4 s of 48 kHz stereo 24-bit audio) while the bytes just read still sit
+// in the core's cache when they are converted. It is fixed whatever the
+// file declares, so memory does not grow with the length of the file.
+const readBlock = 256 << 10
 
 // decoder streams the data chunk of one file. It implements decode.Decoder
 // and decode.Noter.
@@ -27,7 +30,12 @@ type decoder struct {
 
 	damage *decode.IntegrityError // returned once after the last whole frame
 	err    error                  // sticky: io.EOF or a read error
-	raw    []byte                 // reused for every read
+	// failed is a read error met by a read that still brought whole
+	// frames: returned, as err, once those frames are delivered.
+	failed error
+	raw    []byte // reused for every read: whole frames, made by fill
+	next   int    // raw[next:have] are read but not yet converted
+	have   int
 	notes  []string
 }
 
@@ -87,7 +95,6 @@ func New(src decode.Source, size int64) (decode.Decoder, error) {
 			"data chunk size %d is not a whole number of %d-byte frames: the last %d bytes are a partial frame",
 			h.dataSize, frameSize, h.dataSize%frameSize)}
 	}
-	d.raw = make([]byte, max(rawBufferSize/l.blockAlign, 1)*l.blockAlign)
 	return d, nil
 }
 
@@ -98,10 +105,19 @@ func (d *decoder) Info() decode.Info { return d.info }
 // duplicate chunks, stray trailing bytes, an unset data size.
 func (d *decoder) Notes() []string { return d.notes }
 
+// rawSize is the size of the read buffer for frames of blockAlign bytes:
+// readBlock in whole frames, at least one.
+func rawSize(blockAlign int) int { return max(readBlock/blockAlign, 1) * blockAlign }
+
 // ReadFrames decodes up to len(dst)/channels frames into dst, interleaved.
 // It returns 0, io.EOF at the end of the audio. When the data chunk is cut
 // short it returns the last whole frames together with a
 // *decode.IntegrityError, and io.EOF after that.
+//
+// The file is read readBlock bytes at a time and converted from there, a
+// call's worth at a time; a call that asks for more than readBlock of
+// audio at once has it read straight into dst and converted in place
+// (see convertInPlace), without the buffer.
 func (d *decoder) ReadFrames(dst []float64) (int, error) {
 	if len(dst)%d.channels != 0 {
 		return 0, fmt.Errorf("wav: ReadFrames buffer of %d samples is not a multiple of %d channels", len(dst), d.channels)
@@ -110,37 +126,88 @@ func (d *decoder) ReadFrames(dst []float64) (int, error) {
 		return 0, d.err
 	}
 	frames := 0
-	want := int64(len(dst) / d.channels)
-	for int64(frames) < want && d.pos < d.readable {
-		n := min(want-int64(frames), int64(len(d.raw))/d.blockAlign, (d.readable-d.pos)/d.blockAlign)
-		raw := d.raw[:n*d.blockAlign]
-		got, err := d.src.ReadAt(raw, d.dataOffset+d.pos)
-		whole := int64(got) / d.blockAlign
-		out := dst[frames*d.channels : (frames+int(whole))*d.channels]
-		d.convert(out, raw[:whole*d.blockAlign])
-		frames += int(whole)
-		d.pos += whole * d.blockAlign
-		if whole < n {
-			// The file is shorter than it was when the header was read,
-			// or the read failed.
-			d.readable = d.pos
-			if err == nil || err == io.EOF {
-				d.damage = &decode.IntegrityError{Format: d.info.Container, Offset: d.dataOffset + d.pos,
-					Problem: "file ended while reading audio (did it shrink while being read?)"}
-			} else {
-				d.err = fmt.Errorf("wav: reading audio at byte %d: %w", d.dataOffset+d.pos, err)
-				return frames, d.err
+	want := len(dst) / d.channels
+	for frames < want {
+		if d.next == d.have {
+			if d.failed != nil || d.pos >= d.readable {
+				break
+			}
+			if rest := int64(want-frames) * d.blockAlign; rest >= readBlock {
+				// A large request: straight into dst.
+				frames += d.readInPlace(dst[frames*d.channels:])
+				continue
+			}
+			d.fill()
+			continue
+		}
+		n := min(want-frames, (d.have-d.next)/int(d.blockAlign))
+		raw := d.raw[d.next : d.next+n*int(d.blockAlign)]
+		d.convert(dst[frames*d.channels:(frames+n)*d.channels], raw)
+		d.next += len(raw)
+		frames += n
+	}
+	if d.next == d.have {
+		if d.failed != nil {
+			d.err = d.failed
+			return frames, d.err
+		}
+		if d.pos >= d.readable {
+			d.err = io.EOF
+			if d.damage != nil {
+				return frames, d.damage
+			}
+			if frames == 0 {
+				return 0, io.EOF
 			}
 		}
 	}
-	if d.pos >= d.readable {
-		d.err = io.EOF
-		if d.damage != nil {
-			return frames, d.damage
-		}
-		if frames == 0 {
-			return 0, io.EOF
+	return frames, nil
+}
+
+// fill reads the next readBlock (or what is left of the audio) into raw,
+// which is made on first use (no larger than the audio).
+func (d *decoder) fill() {
+	if d.raw == nil {
+		d.raw = make([]byte, min(int64(rawSize(int(d.blockAlign))), d.readable-d.pos))
+	}
+	n := min(int64(len(d.raw)), d.readable-d.pos)
+	got := d.readAt(d.raw[:n])
+	d.next, d.have = 0, got
+}
+
+// readInPlace reads whole frames, as many as dst holds and the audio has,
+// into dst itself and converts them there; it returns the frames.
+func (d *decoder) readInPlace(dst []float64) int {
+	frames := min(int64(len(dst)/d.channels), (d.readable-d.pos)/d.blockAlign)
+	dst = dst[:frames*int64(d.channels)]
+	bytes := unsafe.Slice((*byte)(unsafe.Pointer(unsafe.SliceData(dst))), 8*len(dst))
+	// The raw samples go to the end of dst's bytes, so converting from the
+	// front never overwrites a sample not yet read (convertInPlace).
+	size := frames * d.blockAlign
+	tail := bytes[int64(len(bytes))-size:]
+	got := d.readAt(tail)
+	done := got / int(d.blockAlign) * d.channels
+	convertInPlace(d.convert, dst[:done], tail[:got])
+	return got / int(d.blockAlign)
+}
+
+// readAt reads len(raw) bytes (whole frames) of audio at the current
+// position and returns how many bytes of whole frames it got, advancing the
+// position by them. A short read ends the readable audio there: damage
+// when the file ended (it shrank since the header was read), else the read
+// error, kept in failed.
+func (d *decoder) readAt(raw []byte) int {
+	got, err := d.src.ReadAt(raw, d.dataOffset+d.pos)
+	whole := got - got%int(d.blockAlign)
+	d.pos += int64(whole)
+	if whole < len(raw) {
+		d.readable = d.pos
+		if err == nil || err == io.EOF {
+			d.damage = &decode.IntegrityError{Format: d.info.Container, Offset: d.dataOffset + d.pos,
+				Problem: "file ended while reading audio (did it shrink while being read?)"}
+		} else {
+			d.failed = fmt.Errorf("wav: reading audio at byte %d: %w", d.dataOffset+d.pos, err)
 		}
 	}
-	return frames, nil
+	return whole
 }

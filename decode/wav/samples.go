@@ -35,6 +35,14 @@ func converterFor(l sampleLayout) converter {
 	}
 }
 
+// convertInPlace is conv(dst, raw) where raw is the last len(raw) bytes
+// of dst's own memory (ReadFrames reads large requests there). Every
+// converter is safe for it: it reads the bytes of each sample, or of each
+// group of up to four, before it writes their float64s, and a sample of
+// at most 8 bytes placed at the end never lies below where its value goes,
+// so no write reaches a byte not yet read (TestReadInPlace).
+func convertInPlace(conv converter, dst []float64, raw []byte) { conv(dst, raw) }
+
 // The kernels below walk dst and raw by reslicing, which lets the compiler
 // drop bounds checks from the loop bodies, and take four samples per step
 // from one or two wide loads where the sample size allows.

@@ -31,7 +31,6 @@ func (d *decoder) Section(from, to int64) (decode.Decoder, error) {
 		dataOffset: d.dataOffset,
 		pos:        from * d.blockAlign,
 		readable:   to * d.blockAlign,
-		raw:        make([]byte, len(d.raw)),
 	}
 	return s, nil
 }

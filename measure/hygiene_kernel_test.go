@@ -1,0 +1,237 @@
+package measure
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+	"unsafe"
+)
+
+// The probes' kernels claim the very floating-point operations of the Go
+// loops in the same order (hygiene_kernel.go), and the probes built on them
+// claim the figures of the loops they replaced (referenceWrite below, the
+// probes as they were before the kernels): these tests demand both bit for
+// bit, clipping counts, runs, extremes and window minima included.
+
+// TestFrameStateLayout checks the offsets hygiene_avx2_amd64.s uses.
+func TestFrameStateLayout(t *testing.T) {
+	var st frameState
+	for _, c := range []struct {
+		name      string
+		got, want uintptr
+	}{
+		{"sums", unsafe.Offsetof(st.sums), 0},
+		{"pair", unsafe.Offsetof(st.pair), 64},
+		{"pair.slr", unsafe.Offsetof(st.pair) + unsafe.Offsetof(st.pair.slr), 96},
+		{"pair.maxDiff", unsafe.Offsetof(st.pair) + unsafe.Offsetof(st.pair.maxDiff), 104},
+		{"gains", unsafe.Offsetof(st.gains), 112},
+		{"channels", unsafe.Offsetof(st.channels), 240},
+		{"left", unsafe.Offsetof(st.left), 248},
+		{"right", unsafe.Offsetof(st.right), 256},
+		{"full", unsafe.Offsetof(st.full), 264},
+		{"lanes", unsafe.Offsetof(st.lanes), 272},
+		{"gains2", unsafe.Offsetof(st.gains2), 336},
+	} {
+		if c.got != c.want {
+			t.Errorf("frameState.%s at offset %d, the assembly expects %d", c.name, c.got, c.want)
+		}
+	}
+}
+
+// kernelPaths are the probe paths this build and CPU run: Go, and AVX2
+// where present.
+func kernelPaths() []bool {
+	if haveHygieneAVX2 {
+		return []bool{false, true}
+	}
+	return []bool{false}
+}
+
+// useHygieneAVX2 switches the probes' kernels for a test.
+func useHygieneAVX2(t *testing.T, on bool) {
+	old := hygieneAVX2
+	hygieneAVX2 = on
+	t.Cleanup(func() { hygieneAVX2 = old })
+}
+
+func pathName(avx2 bool) string {
+	if avx2 {
+		return "avx2"
+	}
+	return "go"
+}
+
+// probeSignal returns frames of nc channels: noise at programme level with
+// stretches at and beyond full scale (clipping runs of every length,
+// also across the frames the tests cut blocks at), signed zeros, one
+// channel copying another (dual mono) and, when bad is set, a NaN and
+// infinities (which only the kernels see: the engine stops the probes
+// before them).
+func probeSignal(frames, nc int, seed uint64, bad bool) []float64 {
+	rng := rand.New(rand.NewPCG(seed, 5))
+	buf := make([]float64, frames*nc)
+	for i := range buf {
+		buf[i] = 0.15 * rng.NormFloat64()
+	}
+	for k := 0; k < 12 && frames > 0; k++ {
+		at, c := rng.IntN(frames), rng.IntN(nc)
+		n := 1 + rng.IntN(9)
+		for f := at; f < min(frames, at+n); f++ {
+			buf[f*nc+c] = []float64{1, -1, 0.99999988079071044921875, 1.5}[rng.IntN(4)]
+		}
+	}
+	for f := 0; f < frames; f += 11 {
+		buf[f*nc] = math.Copysign(0, -1)
+		if nc > 1 {
+			buf[f*nc+nc-1] = buf[f*nc]
+		}
+	}
+	if bad && frames > 3 {
+		buf[(frames/3)*nc] = math.NaN()
+		buf[(frames/2)*nc+nc-1] = math.Inf(-1)
+	}
+	return buf
+}
+
+var probeLengths = []int{0, 1, 2, 3, 4, 5, 7, 64, 4095, 4096, 4097}
+
+func sameFloat(a, b float64) bool {
+	return math.Float64bits(a) == math.Float64bits(b) || a != a && b != b
+}
+
+func samePair(a, b pairSums) bool {
+	return sameFloat(a.sl, b.sl) && sameFloat(a.sr, b.sr) && sameFloat(a.sll, b.sll) &&
+		sameFloat(a.srr, b.srr) && sameFloat(a.slr, b.slr) && sameFloat(a.maxDiff, b.maxDiff)
+}
+
+// TestStereoKernelMatchesGo checks stereoStretchAVX2 against its Go twin
+// (through stereoStretch, the AVX2 path switched on).
+func TestStereoKernelMatchesGo(t *testing.T) {
+	if !haveHygieneAVX2 {
+		t.Skip("no AVX2 kernels in this build or on this CPU")
+	}
+	useHygieneAVX2(t, true)
+	full := math.Float64bits((math.Ldexp(1, 23) - 1) / math.Ldexp(1, 23))
+	for _, n := range probeLengths {
+		for _, bad := range []bool{false, true} {
+			buf := probeSignal(n, 2, uint64(n), bad)
+			start := pairSums{0.25, -0.5, 3, 4, -1, 0.125}
+			a, b := start, start
+			ha := stereoStretchGo(buf, &a, full)
+			hb := stereoStretch(buf, &b, full)
+			if ha != hb || !samePair(a, b) {
+				t.Errorf("%d frames (bad %v): Go %v %+v, AVX2 %v %+v", n, bad, ha, a, hb, b)
+			}
+		}
+	}
+	// Nothing at full scale: no flag.
+	quiet := []float64{0.5, -0.5, 0.99, -0.99}
+	var s pairSums
+	if stereoStretch(quiet, &s, full) || stereoStretchGo(quiet, &s, full) {
+		t.Error("a stretch below full scale was flagged")
+	}
+}
+
+// TestAnyKernelMatchesGo checks anyStretchAVX2 (through anyStretch) against its Go twin for
+// every channel count it takes, with and without the pair and the
+// fold-down.
+func TestAnyKernelMatchesGo(t *testing.T) {
+	if !haveHygieneAVX2 {
+		t.Skip("no AVX2 kernels in this build or on this CPU")
+	}
+	full := math.Float64bits(1)
+	for nc := 1; nc <= maxKernelChannels; nc++ {
+		// {0, 1} with the fold-down at six channels is the 5.1 loop that
+		// takes two frames per step.
+		for _, pair := range [][2]int{{-1, -1}, {0, nc - 1}, {nc - 1, 0}, {0, 1}} {
+			if pair[0] >= 0 && nc < 2 {
+				continue
+			}
+			for _, fold := range []bool{false, true} {
+				gains := make([]float64, 2*nc)
+				for i := range gains {
+					gains[i] = []float64{1, 0, 1 / math.Sqrt2, -0.5}[(i*7+nc)%4]
+				}
+				for _, n := range probeLengths {
+					buf := probeSignal(n, nc, uint64(n*nc), n%2 == 1)
+					name := fmt.Sprintf("%dch pair %v fold %v %d frames", nc, pair, fold, n)
+					st := newFrameState(nc, pair[0], pair[1], 1)
+					st.setGains(gains)
+					for c := range nc {
+						st.sums[c] = float64(c) - 2.5
+					}
+					st.pair = pairSums{1, 2, 3, 4, 5, 0.5}
+					sums := append([]float64(nil), st.sums[:nc]...)
+					p := st.pair
+					var outA, outB []float64
+					if fold {
+						outA, outB = make([]float64, 2*n), make([]float64, 2*n)
+					}
+					ha := anyStretchGo(buf, outA, sums, gains, &p, pair[0], pair[1], full)
+					hb := anyStretch(buf, outB, &st)
+					if ha != hb {
+						t.Errorf("%s: full-scale flag Go %v, AVX2 %v", name, ha, hb)
+					}
+					for c := range nc {
+						if !sameFloat(sums[c], st.sums[c]) {
+							t.Errorf("%s: channel %d sum Go %v, AVX2 %v", name, c, sums[c], st.sums[c])
+						}
+					}
+					if pair[0] >= 0 && !samePair(p, st.pair) {
+						t.Errorf("%s: pair Go %+v, AVX2 %+v", name, p, st.pair)
+					}
+					for i := range outA {
+						if !sameFloat(outA[i], outB[i]) {
+							t.Fatalf("%s: fold-down sample %d Go %v, AVX2 %v", name, i, outA[i], outB[i])
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// BenchmarkProbes runs the probes alone over one second of 48 kHz
+// programme in 4 096-frame blocks (stereo; 5.1 with its fold-down made in
+// the same pass), on every kernel path. Metric x-realtime: seconds of
+// audio per second.
+//
+//	go test -run '^$' -bench Probes -benchtime 20x -cpu 1 ./measure
+func BenchmarkProbes(b *testing.B) {
+	for _, c := range []struct {
+		name   string
+		layout []string
+	}{
+		{"stereo", []string{"L", "R"}},
+		{"5.1", []string{"L", "R", "C", "LFE", "Ls", "Rs"}},
+	} {
+		for _, avx2 := range kernelPaths() {
+			b.Run(c.name+"/"+pathName(avx2), func(b *testing.B) {
+				old := hygieneAVX2
+				hygieneAVX2 = avx2
+				defer func() { hygieneAVX2 = old }()
+				nc := len(c.layout)
+				buf := probeSignal(48000, nc, 1, false)
+				for i := range buf {
+					buf[i] *= 0.5 // no clipping: the common case
+				}
+				h := newHygiene(nc, 48000, 24, false, c.layout, DefaultSilenceThresholdDBFS, DefaultClipRunMinSamples)
+				d := newDownmixer(c.layout, 48000)
+				out := make([]float64, 2*blockFrames)
+				b.ResetTimer()
+				for b.Loop() {
+					for i := 0; i < len(buf); i += blockFrames * nc {
+						block := buf[i:min(len(buf), i+blockFrames*nc)]
+						if d != nil {
+							h.writeFold(block, out[:2*len(block)/nc], d.gains)
+						} else {
+							h.write(block)
+						}
+					}
+				}
+				b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "x-realtime")
+			})
+		}
+	}
+}
