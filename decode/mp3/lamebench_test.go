@@ -42,10 +42,23 @@ var (
 )
 
 // longFiles makes the 10-minute MP3s once per test binary, in a temporary
-// folder (not committed): lame -b 192 and lame -V2 of longProgramme.
+// folder (not committed): lame -b 192 and lame -V2 of longProgramme. With
+// KWEIGH_MP3_BENCH_DIR set, they are made there once and reused by later
+// runs (for A/B runs of the decoder without encoding again).
 func longFiles(b *testing.B) string {
 	longOnce.Do(func() {
+		if keep := os.Getenv("KWEIGH_MP3_BENCH_DIR"); keep != "" {
+			_, e1 := os.Stat(filepath.Join(keep, "b192.mp3"))
+			_, e2 := os.Stat(filepath.Join(keep, "v2.mp3"))
+			if e1 == nil && e2 == nil {
+				longDir = keep
+				return
+			}
+		}
 		dir, err := os.MkdirTemp("", "kweigh-mp3-bench-")
+		if keep := os.Getenv("KWEIGH_MP3_BENCH_DIR"); keep != "" {
+			dir, err = keep, os.MkdirAll(keep, 0o755)
+		}
 		if err != nil {
 			longErr = err.Error()
 			return

@@ -213,7 +213,7 @@ func buildHuffman(codes string, xlen int) (*huffTable, error) {
 					return nil, fmt.Errorf("codeword %q overlaps another", w)
 				}
 				filled[i] = true
-				t.lookup[i] = uint32(sym) | uint32(len(w))<<huffLenShift
+				t.lookup[i] = t.symbol(sym) | uint32(len(w))<<huffLenShift
 			}
 			continue
 		}
@@ -245,14 +245,24 @@ func buildHuffman(codes string, xlen int) (*huffTable, error) {
 					return nil, fmt.Errorf("codeword %q overlaps another", l.word)
 				}
 				subFilled[i] = true
-				t.lookup[start+i] = uint32(l.sym) | uint32(len(rest))<<huffLenShift
+				t.lookup[start+i] = t.symbol(l.sym) | uint32(len(rest))<<huffLenShift
 			}
 		}
 	}
 	return t, nil
 }
 
-// decode reads one codeword from r and returns its symbol.
+// symbol is what the lookup table stores for symbol i: for the pair
+// tables x<<4 | y (i = x·xlen + y), so that decoding splits it with a
+// shift instead of a division; for the count1 table i itself.
+func (t *huffTable) symbol(i int) uint32 {
+	if t.xlen == 0 {
+		return uint32(i)
+	}
+	return uint32(i/t.xlen<<4 | i%t.xlen)
+}
+
+// decode reads one codeword from r and returns its symbol (see symbol).
 func (t *huffTable) decode(r *bitReader) int {
 	e := t.lookup[r.peek(t.rootBits)]
 	if e&huffPointer != 0 {
@@ -312,42 +322,72 @@ func bigValueTable(n int) (*huffTable, uint, error) {
 }
 
 // pair reads one big_values pair (x, y) with its linbits and sign bits
-// (ISO/IEC 11172-3 §2.4.1.7 huffmancodebits).
+// (ISO/IEC 11172-3 §2.4.1.7 huffmancodebits). A pair takes at most 47
+// bits (a 19-bit codeword, two values of 13 linbits and two sign bits),
+// so one refill of the bit register serves the whole pair and the fields
+// are cut from a local copy of it.
 func (t *huffTable) pair(r *bitReader, linbits uint) (x, y int) {
-	v := t.decode(r)
-	x, y = v>>4, v&15
-	if t.xlen <= 15 {
-		x, y = v/t.xlen, v%t.xlen
+	if r.n < 48 {
+		r.fill()
 	}
+	acc := r.acc
+	e := t.lookup[acc>>(64-t.rootBits)]
+	used := uint(0)
+	if e&huffPointer != 0 {
+		used = t.rootBits
+		sub := uint(e >> huffSubShift & 31)
+		e = t.lookup[int(e&huffIndexMask)+int(acc<<used>>(64-sub))]
+	}
+	used += uint(e >> huffLenShift & 31)
+	x, y = int(e>>4&15), int(e&15)
 	if linbits > 0 && x == 15 {
-		x += int(r.read(linbits))
+		x += int(acc << used >> (64 - linbits))
+		used += linbits
 	}
-	if x != 0 && r.read(1) == 1 {
-		x = -x
+	if x != 0 {
+		if acc<<used>>63 == 1 {
+			x = -x
+		}
+		used++
 	}
 	if linbits > 0 && y == 15 {
-		y += int(r.read(linbits))
+		y += int(acc << used >> (64 - linbits))
+		used += linbits
 	}
-	if y != 0 && r.read(1) == 1 {
-		y = -y
+	if y != 0 {
+		if acc<<used>>63 == 1 {
+			y = -y
+		}
+		used++
 	}
+	r.consume(used)
 	return x, y
 }
 
 // quad reads one count1 quadruple with table A (tableB false) or B and the
-// sign bits of its non-zero values.
+// sign bits of its non-zero values: at most 10 bits, cut from one refill.
 func quad(r *bitReader, tableB bool, out *[4]int) {
+	if r.n < 16 {
+		r.fill()
+	}
+	acc := r.acc
 	var v int
+	var used uint
 	if tableB {
-		v = 15 - int(r.read(4))
+		v, used = 15-int(acc>>60), 4
 	} else {
-		v = count1A.decode(r)
+		e := count1A.lookup[acc>>(64-count1A.rootBits)]
+		v, used = int(e&0xFF), uint(e>>huffLenShift&31)
 	}
 	for i := range 4 {
 		q := v >> (3 - i) & 1
-		if q != 0 && r.read(1) == 1 {
-			q = -q
+		if q != 0 {
+			if acc<<used>>63 == 1 {
+				q = -q
+			}
+			used++
 		}
 		out[i] = q
 	}
+	r.consume(used)
 }

@@ -1,0 +1,31 @@
+//go:build !purego
+
+package layer3
+
+import (
+	"os"
+
+	"golang.org/x/sys/cpu"
+)
+
+// useAVX2 says whether the synthesis sums run on the AVX2 kernel: where the
+// CPU has it, unless KWEIGH_KERNELS (the variable package loudness reads
+// for its kernels, for testing every path on one machine) is "go" or
+// "sse2".
+var useAVX2 = cpu.X86.HasAVX2 && os.Getenv("KWEIGH_KERNELS") != "go" && os.Getenv("KWEIGH_KERNELS") != "sse2"
+
+// synthSumFast runs synthSum's sums on the AVX2 kernel and reports whether
+// it did (false: the CPU lacks AVX2 or the Go loop was asked for).
+func synthSumFast(v *[16][64]float64, newest int, d *[512]float64, o *[32]float64) bool {
+	if !useAVX2 {
+		return false
+	}
+	synthSumAVX2(v, newest, d, o)
+	return true
+}
+
+// synthSumAVX2 is synthSum on four outputs per instruction, with the same
+// products and the same order of additions (synth_avx2_amd64.s).
+//
+//go:noescape
+func synthSumAVX2(v *[16][64]float64, newest int, d *[512]float64, o *[32]float64)
