@@ -8,7 +8,8 @@ import (
 	"golang.org/x/sys/cpu"
 )
 
-// useAVX2 says whether the synthesis sums run on the AVX2 kernel: where the
+// useAVX2 says whether the synthesis sums and the long-block IMDCT run on
+// their AVX2 kernels: where the
 // CPU has it, unless KWEIGH_KERNELS (the variable package loudness reads
 // for its kernels, for testing every path on one machine) is "go" or
 // "sse2".
@@ -29,3 +30,19 @@ func synthSumFast(v *[16][64]float64, newest int, d *[512]float64, o *[32]float6
 //
 //go:noescape
 func synthSumAVX2(v *[16][64]float64, newest int, d *[512]float64, o *[32]float64)
+
+// imdctLongFast runs imdctLong on the AVX2 kernel and reports whether it
+// did.
+func imdctLongFast(in *[18]float64, m *[18][36]float64, out *[36]float64) bool {
+	if !useAVX2 {
+		return false
+	}
+	imdctLongAVX2(in, m, out)
+	return true
+}
+
+// imdctLongAVX2 is imdctLong on four outputs per instruction, with the same
+// products and the same order of additions (imdct_avx2_amd64.s).
+//
+//go:noescape
+func imdctLongAVX2(in *[18]float64, m *[18][36]float64, out *[36]float64)
