@@ -8,8 +8,8 @@ import (
 	"golang.org/x/sys/cpu"
 )
 
-// useAVX2 says whether the synthesis sums and the long-block IMDCT run on
-// their AVX2 kernels: where the
+// useAVX2 says whether the synthesis sums, its DCT and the long-block
+// IMDCT run on their AVX2 kernels: where the
 // CPU has it, unless KWEIGH_KERNELS (the variable package loudness reads
 // for its kernels, for testing every path on one machine) is "go" or
 // "sse2".
@@ -46,3 +46,18 @@ func imdctLongFast(in *[18]float64, m *[18][36]float64, out *[36]float64) bool {
 //
 //go:noescape
 func imdctLongAVX2(in *[18]float64, m *[18][36]float64, out *[36]float64)
+
+// dct32Fast runs dct32 on the AVX2 kernel and reports whether it did.
+func dct32Fast(s *[32]float64, n int, c *[32]float64) bool {
+	if !useAVX2 {
+		return false
+	}
+	dct32AVX2(s, n, c)
+	return true
+}
+
+// dct32AVX2 is dct32 on four outputs per instruction, with the same
+// products and the same order of additions (dct32_avx2_amd64.s).
+//
+//go:noescape
+func dct32AVX2(s *[32]float64, n int, c *[32]float64)
