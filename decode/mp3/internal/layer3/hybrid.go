@@ -86,7 +86,6 @@ func aliasReduce(xr *[576]float64, g *granule) {
 // subbands (every odd sample negated, §2.4.3.4.10.4). out[t][sb] is time
 // sample t of subband sb, the order the synthesis takes them in.
 func hybrid(xr *[576]float64, g *granule, overlap *[32][18]float64, out *[18][32]float64) {
-	var in [18]float64
 	var block [36]float64
 	// Subbands above the last non-zero line have nothing to transform:
 	// their output is what the previous granule left in overlap.
@@ -99,32 +98,33 @@ func hybrid(xr *[576]float64, g *granule, overlap *[32][18]float64, out *[18][32
 		limit = 0
 	}
 	for sb := limit; sb < 32; sb++ {
+		ov := &overlap[sb]
 		for t := range 18 {
-			v := overlap[sb][t]
-			overlap[sb][t] = 0
-			if sb&1 == 1 && t&1 == 1 {
-				v = -v
-			}
-			out[t][sb] = v
+			out[t][sb] = ov[t]
 		}
+		*ov = [18]float64{}
+	}
+	bt := g.blockType
+	if !g.windowSwitching {
+		bt = 0
 	}
 	for sb := range limit {
-		bt := g.blockType
-		if !g.windowSwitching {
-			bt = 0
-		}
+		b := bt
 		if g.windowSwitching && g.mixed && sb < 2 {
-			bt = 0
+			b = 0
 		}
-		copy(in[:], xr[18*sb:18*sb+18])
-		hybridBlock(&in, bt, &block)
+		hybridBlock((*[18]float64)(xr[18*sb:18*sb+18]), b, &block)
+		ov := &overlap[sb]
 		for t := range 18 {
-			v := block[t] + overlap[sb][t]
-			overlap[sb][t] = block[18+t]
-			if sb&1 == 1 && t&1 == 1 {
-				v = -v
-			}
-			out[t][sb] = v
+			out[t][sb] = block[t] + ov[t]
+		}
+		copy(ov[:], block[18:])
+	}
+	// Frequency inversion: every odd sample of every odd subband negated.
+	for t := 1; t < 18; t += 2 {
+		o := &out[t]
+		for sb := 1; sb < 32; sb += 2 {
+			o[sb] = -o[sb]
 		}
 	}
 }
