@@ -68,6 +68,14 @@ func (d *Decoder) Reset() {
 	d.synth = [2]synthesis{}
 }
 
+// Resume forgets the bit reservoir after a stretch of the stream was
+// skipped: the frames after it cannot take main data from before it (a
+// frame that reaches back is then damage, decoded as silence). The filter
+// banks keep their state.
+func (d *Decoder) Resume() {
+	d.resLen = 0
+}
+
 // Frame decodes one whole frame (header, optional CRC, side information
 // and main data, exactly FrameLen bytes) into out, channels interleaved:
 // 576 samples per channel per granule, scaled so that full scale is ±1
