@@ -49,6 +49,21 @@ type Decoder struct {
 	notes []string
 	err   error // damage to report once after the last frame
 	done  bool
+
+	// For sections (section.go): the stream's source, its end and first
+	// header, the index of its frames (nil when the walk found damage),
+	// and the samples dropped at its start (delay + SynthesisDelay, or 0).
+	src       decode.Source
+	end       int64
+	first     frameHeader
+	index     *frameIndex
+	startSkip int64
+	// A section decoder stops at its last frame without walking the rest,
+	// and does not report damage in its first quiet frames (the pre-roll,
+	// whose output it drops).
+	section bool
+	quiet   int64
+	frameNo int64 // frames decoded so far
 }
 
 // New reads the first frame header, the Xing/Info header and the encoder
@@ -111,7 +126,15 @@ func New(src decode.Source, size int64) (*Decoder, error) {
 		}
 	}
 	scan := newFrameFeed(src, audioStart, end, h, declared)
+	scan.index = &frameIndex{}
 	scan.drain()
+	d.src, d.end, d.first = src, end, h
+	if scan.stop == nil && scan.gaps == 0 {
+		d.index = scan.index
+	}
+	if scan.note != "" {
+		d.notes = append(d.notes, scan.note)
+	}
 	d.describeRate(h, x, hasXing, scan)
 	if hasXing {
 		d.applyXing(x, h, scan.frames, scan.gaps > 0)
@@ -121,6 +144,7 @@ func New(src decode.Source, size int64) (*Decoder, error) {
 	}
 	d.feed = newFrameFeed(src, audioStart, end, h, declared)
 	d.feed.known = scan
+	d.startSkip = d.skip
 	return d, nil
 }
 
@@ -273,7 +297,10 @@ func (d *Decoder) refill() bool {
 	}
 	n, err := d.mp3.Frame(d.feed.frame, d.pcm)
 	damage, isDamage := err.(*layer3.Damage)
+	d.frameNo++
 	switch {
+	case isDamage && d.frameNo <= d.quiet:
+		// A section's pre-roll frame: its output is dropped.
 	case isDamage:
 		if d.damaged == 0 {
 			d.firstDamage, d.damageReason = d.feed.frameStart, damage.Problem
@@ -298,12 +325,18 @@ func (d *Decoder) finish() {
 		return
 	}
 	d.done = true
+	if d.section {
+		// The rest of the stream belongs to other sections (the whole
+		// stream's walk found it sound); only this section's frames count.
+		if d.err == nil && d.damaged > 0 {
+			d.err = &decode.IntegrityError{Format: "mp3", Offset: d.firstDamage,
+				Problem: fmt.Sprintf("%d audio frames are damaged and were decoded as silence where their data was bad (first: %s)", d.damaged, d.damageReason)}
+		}
+		return
+	}
 	if d.err == nil {
 		d.feed.drain()
 		d.err = d.damage()
-	}
-	if d.feed.note != "" {
-		d.notes = append(d.notes, d.feed.note)
 	}
 	if d.err == nil && d.info.Frames >= 0 && d.delivered < d.info.Frames {
 		d.notes = append(d.notes, fmt.Sprintf("the stream decoded to %d samples per channel, %d fewer than its frames hold", d.delivered, d.info.Frames-d.delivered))

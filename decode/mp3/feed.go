@@ -54,6 +54,8 @@ type frameFeed struct {
 	gapFrames  int64
 	firstGap   int64
 	gapDetails []string
+	// index, when set, gets the offset of every frame handed out.
+	index *frameIndex
 	// afterGap says that the frame handed out last follows a skipped
 	// stretch (the decoder must not use main data from before it).
 	afterGap bool
@@ -164,6 +166,9 @@ func (f *frameFeed) next() bool {
 		}
 		f.served = 0
 		f.frameStart = off
+		if f.index != nil {
+			f.index.add(off)
+		}
 		f.frames++
 		f.bytes += int64(size)
 		f.minBitRate = min(f.minBitRate, h.bitRate)
