@@ -1,6 +1,7 @@
 package layer3
 
 import (
+	"encoding/binary"
 	"fmt"
 	"strings"
 )
@@ -322,72 +323,137 @@ func bigValueTable(n int) (*huffTable, uint, error) {
 }
 
 // pair reads one big_values pair (x, y) with its linbits and sign bits
-// (ISO/IEC 11172-3 §2.4.1.7 huffmancodebits). A pair takes at most 47
-// bits (a 19-bit codeword, two values of 13 linbits and two sign bits),
-// so one refill of the bit register serves the whole pair and the fields
-// are cut from a local copy of it.
+// (ISO/IEC 11172-3 §2.4.1.7 huffmancodebits). See pairs.
 func (t *huffTable) pair(r *bitReader, linbits uint) (x, y int) {
-	if r.n < 48 {
-		r.fill()
-	}
-	acc := r.acc
-	e := t.lookup[acc>>(64-t.rootBits)]
-	used := uint(0)
-	if e&huffPointer != 0 {
-		used = t.rootBits
-		sub := uint(e >> huffSubShift & 31)
-		e = t.lookup[int(e&huffIndexMask)+int(acc<<used>>(64-sub))]
-	}
-	used += uint(e >> huffLenShift & 31)
-	x, y = int(e>>4&15), int(e&15)
-	if linbits > 0 && x == 15 {
-		x += int(acc << used >> (64 - linbits))
-		used += linbits
-	}
-	if x != 0 {
-		if acc<<used>>63 == 1 {
-			x = -x
-		}
-		used++
-	}
-	if linbits > 0 && y == 15 {
-		y += int(acc << used >> (64 - linbits))
-		used += linbits
-	}
-	if y != 0 {
-		if acc<<used>>63 == 1 {
-			y = -y
-		}
-		used++
-	}
-	r.consume(used)
-	return x, y
+	var out [2]int
+	t.pairs(r, linbits, out[:])
+	return out[0], out[1]
 }
 
-// quad reads one count1 quadruple with table A (tableB false) or B and the
-// sign bits of its non-zero values: at most 10 bits, cut from one refill.
-func quad(r *bitReader, tableB bool, out *[4]int) {
-	if r.n < 16 {
-		r.fill()
-	}
-	acc := r.acc
-	var v int
-	var used uint
-	if tableB {
-		v, used = 15-int(acc>>60), 4
-	} else {
-		e := count1A.lookup[acc>>(64-count1A.rootBits)]
-		v, used = int(e&0xFF), uint(e>>huffLenShift&31)
-	}
-	for i := range 4 {
-		q := v >> (3 - i) & 1
-		if q != 0 {
+// pairs reads len(out)/2 big_values pairs into out, each (x, y) with its
+// linbits and sign bits (ISO/IEC 11172-3 §2.4.1.7 huffmancodebits). A pair
+// takes at most 47 bits (a 19-bit codeword, two values of 13 linbits and
+// two sign bits), so one refill of the bit register serves a whole pair;
+// the register lives in local variables for the whole region.
+func (t *huffTable) pairs(r *bitReader, linbits uint, out []int) {
+	data, pos, acc, n := r.data, r.pos, r.acc, r.n
+	lookup, root := t.lookup, t.rootBits
+	consumed := 0
+	for i := 0; i+1 < len(out); i += 2 {
+		if n < 48 {
+			acc, n, pos = refill(data, pos, acc, n)
+		}
+		e := lookup[acc>>(64-root)]
+		used := uint(0)
+		if e&huffPointer != 0 {
+			used = root
+			sub := uint(e >> huffSubShift & 31)
+			e = lookup[int(e&huffIndexMask)+int(acc<<used>>(64-sub))]
+		}
+		used += uint(e >> huffLenShift & 31)
+		x, y := int(e>>4&15), int(e&15)
+		if linbits > 0 && x == 15 {
+			x += int(acc << used >> (64 - linbits))
+			used += linbits
+		}
+		if x != 0 {
 			if acc<<used>>63 == 1 {
-				q = -q
+				x = -x
 			}
 			used++
 		}
-		out[i] = q
+		if linbits > 0 && y == 15 {
+			y += int(acc << used >> (64 - linbits))
+			used += linbits
+		}
+		if y != 0 {
+			if acc<<used>>63 == 1 {
+				y = -y
+			}
+			used++
+		}
+		acc <<= used
+		n -= used
+		consumed += int(used)
+		out[i], out[i+1] = x, y
 	}
-	r.consume(used)
+	r.pos, r.acc, r.n = pos, acc, n
+	r.used += consumed
+	if r.used > 8*len(data) {
+		r.over = true
+	}
+}
+
+// refill is bitReader.fill on the register held in local variables: it
+// loads whole bytes until at least 57 bits are held (zero bits past the
+// end of data), eight at a time where eight remain. The bits of a partly
+// loaded byte that land below the count are that byte's own bits, which
+// the next load puts in the same place again, so they do no harm.
+func refill(data []byte, pos int, acc uint64, n uint) (uint64, uint, int) {
+	if pos+8 <= len(data) {
+		acc |= binary.BigEndian.Uint64(data[pos:]) >> n
+		k := (64 - n) >> 3
+		return acc, n + 8*k, pos + int(k)
+	}
+	for n <= 56 {
+		if pos < len(data) {
+			acc |= uint64(data[pos]) << (56 - n)
+			pos++
+		}
+		n += 8
+	}
+	return acc, n, pos
+}
+
+// quads reads count1 quadruples with table A (tableB false) or B and the
+// sign bits of their non-zero values into is from line i on, while four
+// lines remain and the bits read stay below end (bit position of the
+// granule's end); it returns the line after the last quadruple. A
+// quadruple takes at most 10 bits.
+func quads(r *bitReader, tableB bool, is *[576]int, i, end int) int {
+	data, pos, acc, n := r.data, r.pos, r.acc, r.n
+	lookup, root := count1A.lookup, count1A.rootBits
+	bit := r.used
+	for i+4 <= 576 && bit < end {
+		if n < 16 {
+			acc, n, pos = refill(data, pos, acc, n)
+		}
+		var v int
+		var used uint
+		if tableB {
+			v, used = 15-int(acc>>60), 4
+		} else {
+			e := lookup[acc>>(64-root)]
+			v, used = int(e&0xFF), uint(e>>huffLenShift&31)
+		}
+		q := (*[4]int)(is[i : i+4])
+		for k := range 4 {
+			x := v >> (3 - k) & 1
+			if x != 0 {
+				if acc<<used>>63 == 1 {
+					x = -x
+				}
+				used++
+			}
+			q[k] = x
+		}
+		acc <<= used
+		n -= used
+		bit += int(used)
+		i += 4
+	}
+	r.pos, r.acc, r.n = pos, acc, n
+	r.used = bit
+	if r.used > 8*len(data) {
+		r.over = true
+	}
+	return i
+}
+
+// quad reads one count1 quadruple with table A (tableB false) or B and the
+// sign bits of its non-zero values (see quads).
+func quad(r *bitReader, tableB bool, out *[4]int) {
+	var is [576]int
+	quads(r, tableB, &is, 0, r.used+1)
+	copy(out[:], is[:4])
 }
