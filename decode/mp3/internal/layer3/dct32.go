@@ -63,14 +63,14 @@ func matrix(s *[32]float64, v *[64]float64) {
 	if n > 0 && !dct32Fast(s, n, &c) {
 		dct32(s, n, &c)
 	}
+	hi, lo := (*[16]float64)(c[16:]), (*[16]float64)(c[:16])
 	for i := range 16 {
-		v[i] = c[16+i]
+		v[i] = hi[i]
+		v[48+i] = -lo[i]
 	}
 	v[16] = 0
-	for i := 17; i < 48; i++ {
-		v[i] = -c[48-i]
-	}
-	for i := 48; i < 64; i++ {
-		v[i] = -c[i-48]
+	mid := (*[31]float64)(v[17:48])
+	for k := range 31 {
+		mid[k] = -c[31-k] // V[17+k] = −C[31−k]
 	}
 }
