@@ -356,22 +356,12 @@ func (t *huffTable) pairs(r *bitReader, linbits uint, out []int) {
 			x += int(acc << used >> (64 - linbits))
 			used += linbits
 		}
-		if x != 0 {
-			if acc<<used>>63 == 1 {
-				x = -x
-			}
-			used++
-		}
+		x, used = signed(x, acc, used)
 		if linbits > 0 && y == 15 {
 			y += int(acc << used >> (64 - linbits))
 			used += linbits
 		}
-		if y != 0 {
-			if acc<<used>>63 == 1 {
-				y = -y
-			}
-			used++
-		}
+		y, used = signed(y, acc, used)
 		acc <<= used
 		n -= used
 		consumed += int(used)
@@ -405,6 +395,16 @@ func refill(data []byte, pos int, acc uint64, n uint) (uint64, uint, int) {
 	return acc, n, pos
 }
 
+// signed applies the sign bit that follows a non-zero magnitude x ≥ 0:
+// bit used of acc (counted from the top) when x is not zero, nothing
+// otherwise. It returns the signed value and the bits used so far, without
+// a branch (the signs of a spectrum are coin tosses to a branch predictor).
+func signed(x int, acc uint64, used uint) (int, uint) {
+	nz := uint(-x) >> 63 // 1 when x > 0
+	s := int(int64(acc<<used)>>63) & -int(nz)
+	return (x ^ s) - s, used + nz
+}
+
 // quads reads count1 quadruples with table A (tableB false) or B and the
 // sign bits of their non-zero values into is from line i on, while four
 // lines remain and the bits read stay below end (bit position of the
@@ -427,16 +427,10 @@ func quads(r *bitReader, tableB bool, is *[576]int, i, end int) int {
 			v, used = int(e&0xFF), uint(e>>huffLenShift&31)
 		}
 		q := (*[4]int)(is[i : i+4])
-		for k := range 4 {
-			x := v >> (3 - k) & 1
-			if x != 0 {
-				if acc<<used>>63 == 1 {
-					x = -x
-				}
-				used++
-			}
-			q[k] = x
-		}
+		q[0], used = signed(v>>3&1, acc, used)
+		q[1], used = signed(v>>2&1, acc, used)
+		q[2], used = signed(v>>1&1, acc, used)
+		q[3], used = signed(v&1, acc, used)
 		acc <<= used
 		n -= used
 		bit += int(used)
