@@ -37,8 +37,8 @@ func init() {
 // dct32 sets c to the unnormalised DCT-II of the first n values of s (the
 // rest are zero): c[m] = Σ_{k<n} s[k] cos(πm(2k + 1)/64), 1 ≤ n ≤ 32,
 // summed in the order k = 0..n−1 with every product rounded on its own (no
-// fused multiply-add), the order the AVX2 kernel (dct32_avx2_amd64.s)
-// keeps, so that the two give the same bits.
+// fused multiply-add), the order the AVX2 kernel (dct32_avx2_amd64.s,
+// matrixFast) keeps, so that the two give the same bits.
 func dct32(s *[32]float64, n int, c *[32]float64) {
 	x := s[0]
 	for m := range 32 {
@@ -59,8 +59,18 @@ func matrix(s *[32]float64, v *[64]float64) {
 	for n > 0 && s[n-1] == 0 {
 		n--
 	}
+	if n > 0 && matrixFast(s, n, v) {
+		return
+	}
+	matrixGo(s, n, v)
+}
+
+// matrixGo is matrix for samples that are zero from n on (0 ≤ n ≤ 32):
+// the DCT (dct32), then V from it by the symmetries above. The AVX2 kernel
+// (matrixFast) gives the same bits.
+func matrixGo(s *[32]float64, n int, v *[64]float64) {
 	var c [32]float64
-	if n > 0 && !dct32Fast(s, n, &c) {
+	if n > 0 {
 		dct32(s, n, &c)
 	}
 	hi, lo := (*[16]float64)(c[16:]), (*[16]float64)(c[:16])

@@ -2,17 +2,19 @@
 
 #include "textflag.h"
 
-// func dct32AVX2(s *[32]float64, n int, c *[32]float64)
+// func matrixAVX2(s *[32]float64, n int, v *[64]float64)
 //
-// c[m] = sum over k = 0..n-1 of s[k] * dctMatrix[k][m] (see dct32), the 32
-// outputs in Y0-Y7, four each; row k of the matrix starts at byte 256k.
-// Products are rounded before they are added (VMULPD, VADDPD: no fused
-// multiply-add) and added in the order k = 0..n-1, as the Go loop does;
-// n >= 1.
-TEXT ·dct32AVX2(SB), NOSPLIT, $0-24
+// The synthesis matrixing (see matrixGo): the DCT-II outputs
+// C[m] = sum over k = 0..n-1 of s[k] * dctMatrix[k][m] (see dct32) in Y0-Y7,
+// four each (row k of the matrix starts at byte 256k; products rounded
+// before they are added, VMULPD then VADDPD, in the order k = 0..n-1, as
+// the Go loop does; n >= 1), then stored as V: V[0..15] = C[16..31],
+// V[16] = 0, V[17+k] = -C[31-k] (k = 0..30) and V[48..63] = -C[0..15].
+// Negation flips the sign bit, as Go's unary minus does.
+TEXT ·matrixAVX2(SB), NOSPLIT, $0-24
 	MOVQ s+0(FP), SI
 	MOVQ n+8(FP), CX
-	MOVQ c+16(FP), DX
+	MOVQ v+16(FP), DX
 	LEAQ ·dctMatrix(SB), DI
 	VBROADCASTSD (SI), Y9
 	VMULPD 0(DI), Y9, Y0
@@ -48,13 +50,49 @@ loop:
 	DECQ CX
 	JNZ loop
 done:
-	VMOVUPD Y0, 0(DX)
-	VMOVUPD Y1, 32(DX)
-	VMOVUPD Y2, 64(DX)
-	VMOVUPD Y3, 96(DX)
-	VMOVUPD Y4, 128(DX)
-	VMOVUPD Y5, 160(DX)
-	VMOVUPD Y6, 192(DX)
-	VMOVUPD Y7, 224(DX)
+	// Y15 = the sign bit in each lane.
+	VPCMPEQQ Y15, Y15, Y15
+	VPSLLQ $63, Y15, Y15
+	// V[0..15] = C[16..31].
+	VMOVUPD Y4, 0(DX)
+	VMOVUPD Y5, 32(DX)
+	VMOVUPD Y6, 64(DX)
+	VMOVUPD Y7, 96(DX)
+	MOVQ $0, 128(DX) // V[16]
+	// V[17+4m .. 20+4m] = -(C[31-4m], C[30-4m], C[29-4m], C[28-4m]), m = 0..7;
+	// m = 7 writes V[48] = -C[0], which the next stores write again.
+	VPERMPD $0x1b, Y7, Y9
+	VXORPD Y15, Y9, Y9
+	VMOVUPD Y9, 136(DX)
+	VPERMPD $0x1b, Y6, Y9
+	VXORPD Y15, Y9, Y9
+	VMOVUPD Y9, 168(DX)
+	VPERMPD $0x1b, Y5, Y9
+	VXORPD Y15, Y9, Y9
+	VMOVUPD Y9, 200(DX)
+	VPERMPD $0x1b, Y4, Y9
+	VXORPD Y15, Y9, Y9
+	VMOVUPD Y9, 232(DX)
+	VPERMPD $0x1b, Y3, Y9
+	VXORPD Y15, Y9, Y9
+	VMOVUPD Y9, 264(DX)
+	VPERMPD $0x1b, Y2, Y9
+	VXORPD Y15, Y9, Y9
+	VMOVUPD Y9, 296(DX)
+	VPERMPD $0x1b, Y1, Y9
+	VXORPD Y15, Y9, Y9
+	VMOVUPD Y9, 328(DX)
+	VPERMPD $0x1b, Y0, Y9
+	VXORPD Y15, Y9, Y9
+	VMOVUPD Y9, 360(DX)
+	// V[48..63] = -C[0..15].
+	VXORPD Y15, Y0, Y0
+	VMOVUPD Y0, 384(DX)
+	VXORPD Y15, Y1, Y1
+	VMOVUPD Y1, 416(DX)
+	VXORPD Y15, Y2, Y2
+	VMOVUPD Y2, 448(DX)
+	VXORPD Y15, Y3, Y3
+	VMOVUPD Y3, 480(DX)
 	VZEROUPPER
 	RET

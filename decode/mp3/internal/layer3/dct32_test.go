@@ -112,9 +112,10 @@ func TestDCT32MatchesLee(t *testing.T) {
 	}
 }
 
-// TestDCT32KernelTwins holds the DCT of the kernel this machine runs (AVX2
-// where it has it) to the Go loop, bit for bit, for every n.
-func TestDCT32KernelTwins(t *testing.T) {
+// TestMatrixKernelTwins holds the matrixing of the kernel this machine
+// runs (AVX2 where it has it: the DCT and the V layout in one) to the Go
+// path, bit for bit, for every n.
+func TestMatrixKernelTwins(t *testing.T) {
 	rng := rand.New(rand.NewPCG(32, 80))
 	for trial := range 320 {
 		n := trial%32 + 1
@@ -126,14 +127,14 @@ func TestDCT32KernelTwins(t *testing.T) {
 			}
 			s[k] = (2*rng.Float64() - 1) * math.Ldexp(1, rng.IntN(60)-30)
 		}
-		var want, got [32]float64
-		dct32(&s, n, &want)
-		if !dct32Fast(&s, n, &got) {
-			t.Skip("no DCT kernel on this build or CPU: the Go loop is the only path")
+		var want, got [64]float64
+		matrixGo(&s, n, &want)
+		if !matrixFast(&s, n, &got) {
+			t.Skip("no matrixing kernel on this build or CPU: the Go path is the only one")
 		}
-		for m := range 32 {
-			if math.Float64bits(got[m]) != math.Float64bits(want[m]) {
-				t.Fatalf("n %d C[%d]: kernel %b, Go %b", n, m, got[m], want[m])
+		for i := range 64 {
+			if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+				t.Fatalf("n %d V[%d]: kernel %b, Go %b", n, i, got[i], want[i])
 			}
 		}
 	}

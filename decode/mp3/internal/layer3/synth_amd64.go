@@ -47,17 +47,19 @@ func imdctLongFast(in *[18]float64, m *[18][36]float64, out *[36]float64) bool {
 //go:noescape
 func imdctLongAVX2(in *[18]float64, m *[18][36]float64, out *[36]float64)
 
-// dct32Fast runs dct32 on the AVX2 kernel and reports whether it did.
-func dct32Fast(s *[32]float64, n int, c *[32]float64) bool {
+// matrixFast runs matrixGo on the AVX2 kernel (the DCT and the V layout
+// in one) and reports whether it did; n ≥ 1.
+func matrixFast(s *[32]float64, n int, v *[64]float64) bool {
 	if !useAVX2 {
 		return false
 	}
-	dct32AVX2(s, n, c)
+	matrixAVX2(s, n, v)
 	return true
 }
 
-// dct32AVX2 is dct32 on four outputs per instruction, with the same
-// products and the same order of additions (dct32_avx2_amd64.s).
+// matrixAVX2 is matrixGo on four outputs per instruction, with the same
+// products, the same order of additions and the same sign flips
+// (dct32_avx2_amd64.s).
 //
 //go:noescape
-func dct32AVX2(s *[32]float64, n int, c *[32]float64)
+func matrixAVX2(s *[32]float64, n int, v *[64]float64)

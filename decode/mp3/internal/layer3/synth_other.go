@@ -12,7 +12,7 @@ func imdctLongFast(in *[18]float64, m *[18][36]float64, out *[36]float64) bool {
 	return false
 }
 
-// dct32Fast has no kernel on this build: dct32's Go loop runs.
-func dct32Fast(s *[32]float64, n int, c *[32]float64) bool {
+// matrixFast has no kernel on this build: matrixGo runs.
+func matrixFast(s *[32]float64, n int, v *[64]float64) bool {
 	return false
 }
