@@ -51,6 +51,12 @@
 //     the last frame one *decode.IntegrityError counts the damaged frames
 //     and names the first.
 //
+//   - Sections. The decoder implements decode.Splitter (section.go): a
+//     section decodes from a few frames before its start (the reservoir's
+//     reach plus two frames for the filter banks) and drops them, so a
+//     long file is measured on several cores with the samples of one
+//     pass, bit for bit. A stream whose walk found damage is not split.
+//
 //   - Scope. Free-format streams (bit-rate index 0) and layers I and II
 //     are recognised by Match but rejected by New with a
 //     *decode.UnsupportedError.
