@@ -22,12 +22,14 @@ import "math"
 // discrete cosine transform", IEEE Trans. ASSP 32(6)); that stays in the
 // tests as a second form the product is checked against.
 
-// dctMatrix[k][m] = cos(πm(2k + 1)/64): row k is what subband sample k
-// adds to each of the 32 DCT outputs.
-var dctMatrix [32][32]float64
+// dctMatrix[k][m] = cos(πm(2k + 1)/64), k = 0..15: what subband samples k
+// and 31 − k add to DCT output m. Since cos(πm(63 − 2k)/64) =
+// (−1)^m cos(πm(2k + 1)/64), sample 31 − k shares row k, added for even m
+// and subtracted for odd m.
+var dctMatrix [16][32]float64
 
 func init() {
-	for k := range 32 {
+	for k := range 16 {
 		for m := range 32 {
 			dctMatrix[k][m] = math.Cos(math.Pi * float64(m*(2*k+1)) / 64)
 		}
@@ -35,19 +37,24 @@ func init() {
 }
 
 // dct32 sets c to the unnormalised DCT-II of the first n values of s (the
-// rest are zero): c[m] = Σ_{k<n} s[k] cos(πm(2k + 1)/64), 1 ≤ n ≤ 32,
-// summed in the order k = 0..n−1 with every product rounded on its own (no
-// fused multiply-add), the order the AVX2 kernel (dct32_avx2_amd64.s,
-// matrixFast) keeps, so that the two give the same bits.
+// rest are zero): c[m] = Σ_{k<32} s[k] cos(πm(2k + 1)/64), 1 ≤ n ≤ 32, as
+// c[m] = Σ_{k<min(n,16)} (s[k] ± s[31−k]) · dctMatrix[k][m] (+ for even m,
+// − for odd): 512 multiplications. The sum runs in the order k = 0, 1, …
+// with every product rounded on its own (no fused multiply-add), the order
+// the AVX2 kernel (dct32_avx2_amd64.s, matrixFast) keeps, so that the two
+// give the same bits.
 func dct32(s *[32]float64, n int, c *[32]float64) {
-	x := s[0]
-	for m := range 32 {
-		c[m] = float64(x * dctMatrix[0][m])
+	a, b := s[0]+s[31], s[0]-s[31]
+	row := &dctMatrix[0]
+	for m := 0; m < 32; m += 2 {
+		c[m] = float64(a * row[m])
+		c[m+1] = float64(b * row[m+1])
 	}
-	for k := 1; k < n; k++ {
-		x, row := s[k], &dctMatrix[k]
-		for m := range 32 {
-			c[m] += float64(x * row[m])
+	for k := 1; k < min(n, 16); k++ {
+		a, b, row := s[k]+s[31-k], s[k]-s[31-k], &dctMatrix[k]
+		for m := 0; m < 32; m += 2 {
+			c[m] += float64(a * row[m])
+			c[m+1] += float64(b * row[m+1])
 		}
 	}
 }

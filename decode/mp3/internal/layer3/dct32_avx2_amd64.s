@@ -4,10 +4,12 @@
 
 // func matrixAVX2(s *[32]float64, n int, v *[64]float64)
 //
-// The synthesis matrixing (see matrixGo): the DCT-II outputs
-// C[m] = sum over k = 0..n-1 of s[k] * dctMatrix[k][m] (see dct32) in Y0-Y7,
-// four each (row k of the matrix starts at byte 256k; products rounded
-// before they are added, VMULPD then VADDPD, in the order k = 0..n-1, as
+// The synthesis matrixing (see matrixGo): the DCT-II outputs C[m] =
+// sum over k = 0..min(n,16)-1 of (s[k] + s[31-k]) * dctMatrix[k][m] for even
+// m and (s[k] - s[31-k]) * dctMatrix[k][m] for odd m (see dct32) in Y0-Y7,
+// four each (row k of the matrix starts at byte 256k; each k blends the sum
+// into the even lanes and the difference into the odd ones; products
+// rounded before they are added, VMULPD then VADDPD, in the order of k, as
 // the Go loop does; n >= 1), then stored as V: V[0..15] = C[16..31],
 // V[16] = 0, V[17+k] = -C[31-k] (k = 0..30) and V[48..63] = -C[0..15].
 // Negation flips the sign bit, as Go's unary minus does.
@@ -15,38 +17,53 @@ TEXT ·matrixAVX2(SB), NOSPLIT, $0-24
 	MOVQ s+0(FP), SI
 	MOVQ n+8(FP), CX
 	MOVQ v+16(FP), DX
+	CMPQ CX, $16
+	JLE counted
+	MOVQ $16, CX
+counted:
 	LEAQ ·dctMatrix(SB), DI
-	VBROADCASTSD (SI), Y9
-	VMULPD 0(DI), Y9, Y0
-	VMULPD 32(DI), Y9, Y1
-	VMULPD 64(DI), Y9, Y2
-	VMULPD 96(DI), Y9, Y3
-	VMULPD 128(DI), Y9, Y4
-	VMULPD 160(DI), Y9, Y5
-	VMULPD 192(DI), Y9, Y6
-	VMULPD 224(DI), Y9, Y7
+	LEAQ 248(SI), R8 // &s[31]
+	// Y13 = s[k] + s[31-k] in even lanes, s[k] - s[31-k] in odd lanes.
+	VBROADCASTSD (SI), Y8
+	VBROADCASTSD (R8), Y9
+	VADDPD Y9, Y8, Y10
+	VSUBPD Y9, Y8, Y11
+	VBLENDPD $0x0a, Y11, Y10, Y13
+	VMULPD 0(DI), Y13, Y0
+	VMULPD 32(DI), Y13, Y1
+	VMULPD 64(DI), Y13, Y2
+	VMULPD 96(DI), Y13, Y3
+	VMULPD 128(DI), Y13, Y4
+	VMULPD 160(DI), Y13, Y5
+	VMULPD 192(DI), Y13, Y6
+	VMULPD 224(DI), Y13, Y7
 	DECQ CX
 	JZ done
 loop:
 	ADDQ $8, SI
+	SUBQ $8, R8
 	ADDQ $256, DI
-	VBROADCASTSD (SI), Y9
-	VMULPD 0(DI), Y9, Y10
-	VADDPD Y10, Y0, Y0
-	VMULPD 32(DI), Y9, Y11
-	VADDPD Y11, Y1, Y1
-	VMULPD 64(DI), Y9, Y12
-	VADDPD Y12, Y2, Y2
-	VMULPD 96(DI), Y9, Y13
-	VADDPD Y13, Y3, Y3
-	VMULPD 128(DI), Y9, Y10
-	VADDPD Y10, Y4, Y4
-	VMULPD 160(DI), Y9, Y11
-	VADDPD Y11, Y5, Y5
-	VMULPD 192(DI), Y9, Y12
-	VADDPD Y12, Y6, Y6
-	VMULPD 224(DI), Y9, Y13
-	VADDPD Y13, Y7, Y7
+	VBROADCASTSD (SI), Y8
+	VBROADCASTSD (R8), Y9
+	VADDPD Y9, Y8, Y10
+	VSUBPD Y9, Y8, Y11
+	VBLENDPD $0x0a, Y11, Y10, Y13
+	VMULPD 0(DI), Y13, Y8
+	VADDPD Y8, Y0, Y0
+	VMULPD 32(DI), Y13, Y9
+	VADDPD Y9, Y1, Y1
+	VMULPD 64(DI), Y13, Y10
+	VADDPD Y10, Y2, Y2
+	VMULPD 96(DI), Y13, Y11
+	VADDPD Y11, Y3, Y3
+	VMULPD 128(DI), Y13, Y8
+	VADDPD Y8, Y4, Y4
+	VMULPD 160(DI), Y13, Y9
+	VADDPD Y9, Y5, Y5
+	VMULPD 192(DI), Y13, Y10
+	VADDPD Y10, Y6, Y6
+	VMULPD 224(DI), Y13, Y11
+	VADDPD Y11, Y7, Y7
 	DECQ CX
 	JNZ loop
 done:
