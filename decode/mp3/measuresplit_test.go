@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"sync/atomic"
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
@@ -17,11 +18,11 @@ import (
 // so a test knows that package measure took the split path.
 type countingSplitter struct {
 	*Decoder
-	sections int
+	sections atomic.Int64 // Section is called from the section goroutines
 }
 
 func (c *countingSplitter) Section(from, to int64) (decode.Decoder, error) {
-	c.sections++
+	c.sections.Add(1)
 	return c.Decoder.Section(from, to)
 }
 
@@ -45,13 +46,13 @@ func TestMeasureOnTwoCoresSameFigures(t *testing.T) {
 		t.Run(tt.name, func(t *testing.T) {
 			b := lameEncode(t, src, tt.name+".mp3", tt.opts...)
 			path := filepath.Join(dir, tt.name+".mp3")
-			run := func(cores *measure.Cores) (*measure.Measurement, int) {
+			run := func(cores *measure.Cores) (*measure.Measurement, int64) {
 				d, err := New(bytes.NewReader(b), int64(len(b)))
 				if err != nil {
 					t.Fatal(err)
 				}
 				c := &countingSplitter{Decoder: d}
-				return measure.Stream(context.Background(), path, c, measure.Options{Cores: cores}), c.sections
+				return measure.Stream(context.Background(), path, c, measure.Options{Cores: cores}), c.sections.Load()
 			}
 			one, _ := run(nil)
 			two, sections := run(measure.NewCores(2))
