@@ -3,6 +3,7 @@ package mp3
 import (
 	"fmt"
 	"io"
+	"strings"
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/decode/mp3/internal/layer3"
@@ -48,6 +49,21 @@ type Decoder struct {
 	notes []string
 	err   error // damage to report once after the last frame
 	done  bool
+
+	// For sections (section.go): the stream's source, its end and first
+	// header, the index of its frames (nil when the walk found damage),
+	// and the samples dropped at its start (delay + SynthesisDelay, or 0).
+	src       decode.Source
+	end       int64
+	first     frameHeader
+	index     *frameIndex
+	startSkip int64
+	// A section decoder stops at its last frame without walking the rest,
+	// and does not report damage in its first quiet frames (the pre-roll,
+	// whose output it drops).
+	section bool
+	quiet   int64
+	frameNo int64 // frames decoded so far
 }
 
 // New reads the first frame header, the Xing/Info header and the encoder
@@ -110,16 +126,25 @@ func New(src decode.Source, size int64) (*Decoder, error) {
 		}
 	}
 	scan := newFrameFeed(src, audioStart, end, h, declared)
+	scan.index = &frameIndex{}
 	scan.drain()
+	d.src, d.end, d.first = src, end, h
+	if scan.stop == nil && scan.gaps == 0 {
+		d.index = scan.index
+	}
+	if scan.note != "" {
+		d.notes = append(d.notes, scan.note)
+	}
 	d.describeRate(h, x, hasXing, scan)
 	if hasXing {
-		d.applyXing(x, h, scan.frames)
+		d.applyXing(x, h, scan.frames, scan.gaps > 0)
 	} else {
 		d.info.Frames = scan.frames * int64(h.samplesPerFrame())
 		d.notes = append(d.notes, fmt.Sprintf("no Xing/Info header: the encoder delay and end padding are unknown, so the audio was measured untrimmed (it starts with the decoder's %d-sample delay plus the encoder's)", SynthesisDelay))
 	}
 	d.feed = newFrameFeed(src, audioStart, end, h, declared)
 	d.feed.known = scan
+	d.startSkip = d.skip
 	return d, nil
 }
 
@@ -160,7 +185,11 @@ func (d *Decoder) describeRate(h frameHeader, x xingHeader, hasXing bool, scan *
 // frame count agrees with the stream: a header that declares fewer frames
 // would otherwise hide the rest of the programme, and one that declares
 // more describes a stream that is not there.
-func (d *Decoder) applyXing(x xingHeader, h frameHeader, counted int64) {
+//
+// A stream with damaged stretches skipped between frames (gapped) holds
+// fewer frames than the header declares; its start and end are still the
+// encoder's, so the delay and padding are applied to the frames there.
+func (d *Decoder) applyXing(x xingHeader, h frameHeader, counted int64, gapped bool) {
 	spf := int64(h.samplesPerFrame())
 	d.info.Frames = counted * spf
 	if !x.hasFrames {
@@ -169,6 +198,15 @@ func (d *Decoder) applyXing(x xingHeader, h frameHeader, counted int64) {
 	}
 	frames := int64(x.frames)
 	switch {
+	case gapped && counted < frames && x.extension && x.extensionCRCOK:
+		total := counted*spf - int64(x.delay) - int64(x.padding)
+		if total < 0 {
+			d.notes = append(d.notes, fmt.Sprintf("the encoder delay (%d) and padding (%d) exceed the %d decoded samples: the audio was measured untrimmed", x.delay, x.padding, counted*spf))
+			break
+		}
+		d.skip = int64(x.delay) + SynthesisDelay
+		d.remaining = total
+		d.info.Frames = total
 	case frames != counted:
 		d.notes = append(d.notes, fmt.Sprintf("the Xing/Info header declares %d audio frames but the stream holds %d: every frame was measured, and the header's encoder delay and padding were not applied (the audio is untrimmed)", frames, counted))
 	case x.extension && x.extensionCRCOK:
@@ -254,9 +292,15 @@ func (d *Decoder) refill() bool {
 		d.finish()
 		return false
 	}
+	if d.feed.afterGap {
+		d.mp3.Resume()
+	}
 	n, err := d.mp3.Frame(d.feed.frame, d.pcm)
 	damage, isDamage := err.(*layer3.Damage)
+	d.frameNo++
 	switch {
+	case isDamage && d.frameNo <= d.quiet:
+		// A section's pre-roll frame: its output is dropped.
 	case isDamage:
 		if d.damaged == 0 {
 			d.firstDamage, d.damageReason = d.feed.frameStart, damage.Problem
@@ -281,22 +325,55 @@ func (d *Decoder) finish() {
 		return
 	}
 	d.done = true
+	if d.section {
+		// The rest of the stream belongs to other sections (the whole
+		// stream's walk found it sound); only this section's frames count.
+		if d.err == nil && d.damaged > 0 {
+			d.err = &decode.IntegrityError{Format: "mp3", Offset: d.firstDamage,
+				Problem: fmt.Sprintf("%d audio frames are damaged and were decoded as silence where their data was bad (first: %s)", d.damaged, d.damageReason)}
+		}
+		return
+	}
 	if d.err == nil {
 		d.feed.drain()
-		if d.feed.stop != nil {
-			d.err = d.feed.stop
-		}
-	}
-	if d.err == nil && d.damaged > 0 {
-		d.err = &decode.IntegrityError{Format: "mp3", Offset: d.firstDamage,
-			Problem: fmt.Sprintf("%d of %d audio frames are damaged and were decoded as silence where their data was bad (first: %s)", d.damaged, d.feed.frames, d.damageReason)}
-	}
-	if d.feed.note != "" {
-		d.notes = append(d.notes, d.feed.note)
+		d.err = d.damage()
 	}
 	if d.err == nil && d.info.Frames >= 0 && d.delivered < d.info.Frames {
 		d.notes = append(d.notes, fmt.Sprintf("the stream decoded to %d samples per channel, %d fewer than its frames hold", d.delivered, d.info.Frames-d.delivered))
 	}
+}
+
+// damage is the one *decode.IntegrityError for everything the walk and
+// the decoding found wrong, or nil: the damaged frames, the stretches
+// skipped between frames, and what ended the stream early, at the offset
+// of the first of them.
+func (d *Decoder) damage() error {
+	var parts []string
+	off := int64(-1)
+	at := func(o int64) {
+		if off < 0 || o < off {
+			off = o
+		}
+	}
+	if d.damaged > 0 {
+		parts = append(parts, fmt.Sprintf("%d of %d audio frames are damaged and were decoded as silence where their data was bad (first: %s)", d.damaged, d.feed.frames, d.damageReason))
+		at(d.firstDamage)
+	}
+	if g := d.feed.gapReport(); g != "" {
+		parts = append(parts, g)
+		at(d.feed.firstGap)
+	}
+	if s := d.feed.stop; s != nil {
+		if len(parts) == 0 {
+			return s
+		}
+		parts = append(parts, s.Problem)
+		at(s.Offset)
+	}
+	if len(parts) == 0 {
+		return nil
+	}
+	return &decode.IntegrityError{Format: "mp3", Offset: off, Problem: strings.Join(parts, "; ")}
 }
 
 // Notes returns what decoding found that the user must be told: missing

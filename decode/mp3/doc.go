@@ -32,10 +32,17 @@
 //
 //   - Framing. Tags (ID3v2 at the start; APEv2, Lyrics3v2, ID3v1 at the end)
 //     are skipped, and the decoder is given only whole frames that belong
-//     to the stream, walked by this package. Bytes that are not frames, a
-//     cut-short last frame or fewer frames than the Xing header declares
-//     end the stream with a *decode.IntegrityError naming the byte offset,
-//     after every frame before them has been delivered.
+//     to the stream, walked by this package: a frame is taken when its
+//     header belongs to the stream and the next header is where its length
+//     says. Bytes that are not frames (or a header whose length runs over
+//     the next frame) are skipped when frames of the stream link up again
+//     after them (resync: a chain of headers of the stream): decoding goes
+//     on there with the bit reservoir emptied, and the stretches skipped,
+//     with their bytes and an estimate of the frames and seconds they
+//     held, are reported in the one *decode.IntegrityError after the last
+//     frame. A cut-short last frame, another stream, or junk with no frames
+//     after it while the Xing header declares more end the stream with a
+//     *decode.IntegrityError naming the byte offset.
 //
 //   - Damaged frames. A frame whose CRC (when present) fails, whose main
 //     data lies in frames that are not there (bit reservoir) or whose
@@ -43,6 +50,12 @@
 //     bad, so the timing of the rest holds; decoding goes on, and after
 //     the last frame one *decode.IntegrityError counts the damaged frames
 //     and names the first.
+//
+//   - Sections. The decoder implements decode.Splitter (section.go): a
+//     section decodes from a few frames before its start (the reservoir's
+//     reach plus two frames for the filter banks) and drops them, so a
+//     long file is measured on several cores with the samples of one
+//     pass, bit for bit. A stream whose walk found damage is not split.
 //
 //   - Scope. Free-format streams (bit-rate index 0) and layers I and II
 //     are recognised by Match but rejected by New with a

@@ -42,10 +42,23 @@ var (
 )
 
 // longFiles makes the 10-minute MP3s once per test binary, in a temporary
-// folder (not committed): lame -b 192 and lame -V2 of longProgramme.
+// folder (not committed): lame -b 192 and lame -V2 of longProgramme. With
+// KWEIGH_MP3_BENCH_DIR set, they are made there once and reused by later
+// runs (for A/B runs of the decoder without encoding again).
 func longFiles(b *testing.B) string {
 	longOnce.Do(func() {
+		if keep := os.Getenv("KWEIGH_MP3_BENCH_DIR"); keep != "" {
+			_, e1 := os.Stat(filepath.Join(keep, "b192.mp3"))
+			_, e2 := os.Stat(filepath.Join(keep, "v2.mp3"))
+			if e1 == nil && e2 == nil {
+				longDir = keep
+				return
+			}
+		}
 		dir, err := os.MkdirTemp("", "kweigh-mp3-bench-")
+		if keep := os.Getenv("KWEIGH_MP3_BENCH_DIR"); keep != "" {
+			dir, err = keep, os.MkdirAll(keep, 0o755)
+		}
 		if err != nil {
 			longErr = err.Error()
 			return
@@ -69,14 +82,17 @@ func longFiles(b *testing.B) string {
 // timed in the same loop on the same file. Metrics: kweigh-s and lame-s
 // per op, their ratio (x-lame; the requirement is ≤ 2), kweigh's speed as
 // a multiple of real time, and the bytes kweigh allocated per second of
-// audio (B/audio-s; the requirement is < 4096).
+// audio (B/audio-s; the requirement is < 4096). The same measurement on two
+// cores (one file in sections, measure.Options{Cores: measure.NewCores(2)})
+// is timed in the same loop: kweigh2-s/op and x-lame-2core, its wall time
+// over lame's (issue 14: it must finish first, below 1).
 func BenchmarkMeasureVsLame(b *testing.B) {
 	dir := longFiles(b)
 	lame := lamePath(b)
 	for _, name := range []string{"b192", "v2"} {
 		path := filepath.Join(dir, name+".mp3")
 		b.Run(name, func(b *testing.B) {
-			var kweigh, ref time.Duration
+			var kweigh, kweigh2, ref time.Duration
 			var alloc uint64
 			var audio float64
 			var ms runtime.MemStats
@@ -93,6 +109,15 @@ func BenchmarkMeasureVsLame(b *testing.B) {
 				}
 				audio = m.DurationS
 				start = time.Now()
+				m2 := measure.File(context.Background(), path, measure.Options{Cores: measure.NewCores(2)})
+				kweigh2 += time.Since(start)
+				if m2.Error != "" {
+					b.Fatal(m2.Error)
+				}
+				if *m2.IntegratedLUFS != *m.IntegratedLUFS && math.Abs(*m2.IntegratedLUFS-*m.IntegratedLUFS) > 1e-9 {
+					b.Fatalf("two cores: %v LUFS, one %v", *m2.IntegratedLUFS, *m.IntegratedLUFS)
+				}
+				start = time.Now()
 				if out, err := exec.Command(lame, "--quiet", "--decode", path, os.DevNull).CombinedOutput(); err != nil {
 					b.Fatalf("lame --decode: %v\n%s", err, out)
 				}
@@ -102,6 +127,8 @@ func BenchmarkMeasureVsLame(b *testing.B) {
 			b.ReportMetric(kweigh.Seconds()/n, "kweigh-s/op")
 			b.ReportMetric(ref.Seconds()/n, "lame-s/op")
 			b.ReportMetric(kweigh.Seconds()/ref.Seconds(), "x-lame")
+			b.ReportMetric(kweigh2.Seconds()/n, "kweigh2-s/op")
+			b.ReportMetric(kweigh2.Seconds()/ref.Seconds(), "x-lame-2core")
 			b.ReportMetric(audio*n/kweigh.Seconds(), "x-realtime")
 			b.ReportMetric(float64(alloc)/n/audio, "B/audio-s")
 		})

@@ -54,6 +54,16 @@ func (r *bitReader) skip(k uint) {
 	}
 }
 
+// consume drops k bits (k ≤ n) that the caller has cut from acc itself.
+func (r *bitReader) consume(k uint) {
+	r.acc <<= k
+	r.n -= k
+	r.used += int(k)
+	if r.used > 8*len(r.data) {
+		r.over = true
+	}
+}
+
 // read consumes and returns the next k bits (k ≤ 32).
 func (r *bitReader) read(k uint) uint32 {
 	if k == 0 {

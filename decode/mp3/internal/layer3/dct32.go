@@ -14,104 +14,80 @@ import "math"
 //	V[i] = C[16+i]   (i = 0..15)     V[16] = 0
 //	V[i] = −C[48−i]  (i = 17..47)    V[i] = −C[i−48]  (i = 48..63)
 //
-// so matrixing is one DCT-II of 32 points, computed here by the even/odd
-// recursive factorisation (Lee, 1984: B. G. Lee, "A new algorithm to
-// compute the discrete cosine transform", IEEE Trans. ASSP 32(6)): 80
-// multiplications instead of 2048.
+// so matrixing is one DCT-II of 32 points: 1024 multiplications, done
+// by an AVX2 kernel four at a time and only over the subbands up to the
+// last non-zero one (the bands above an encoder's low-pass are all zero),
+// which is faster than the scalar even/odd recursive factorisation with 80
+// multiplications (Lee, 1984: B. G. Lee, "A new algorithm to compute the
+// discrete cosine transform", IEEE Trans. ASSP 32(6)); that stays in the
+// tests as a second form the product is checked against.
 
-// dctScale[level][k] = 1 / (2 cos(π(2k + 1)/(2n))) for n = 32 >> level.
-var dctScale [5][16]float64
+// dctMatrix[k][m] = cos(πm(2k + 1)/64), k = 0..15: what subband samples k
+// and 31 − k add to DCT output m. Since cos(πm(63 − 2k)/64) =
+// (−1)^m cos(πm(2k + 1)/64), sample 31 − k shares row k, added for even m
+// and subtracted for odd m.
+var dctMatrix [16][32]float64
 
 func init() {
-	for level := range 5 {
-		n := 32 >> level
-		for k := range n / 2 {
-			dctScale[level][k] = 1 / (2 * math.Cos(math.Pi*float64(2*k+1)/float64(2*n)))
+	for k := range 16 {
+		for m := range 32 {
+			dctMatrix[k][m] = math.Cos(math.Pi * float64(m*(2*k+1)) / 64)
 		}
 	}
 }
 
-// dct32 replaces x with its unnormalised DCT-II: x[m] = Σ x[k]
-// cos(πm(2k + 1)/64). Each level of Lee's recursion has its own function
-// on fixed-size arrays, so that the compiler drops the bounds checks.
-func dct32(x *[32]float64) {
-	var a, b [16]float64
-	sc := &dctScale[0]
-	for k := range 16 {
-		u, v := x[k], x[31-k]
-		a[k] = u + v
-		b[k] = (u - v) * sc[k]
+// dct32 sets c to the unnormalised DCT-II of the first n values of s (the
+// rest are zero): c[m] = Σ_{k<32} s[k] cos(πm(2k + 1)/64), 1 ≤ n ≤ 32, as
+// c[m] = Σ_{k<min(n,16)} (s[k] ± s[31−k]) · dctMatrix[k][m] (+ for even m,
+// − for odd): 512 multiplications. The sum runs in the order k = 0, 1, …
+// with every product rounded on its own (no fused multiply-add), the order
+// the AVX2 kernel (dct32_avx2_amd64.s, matrixFast) keeps, so that the two
+// give the same bits.
+func dct32(s *[32]float64, n int, c *[32]float64) {
+	a, b := s[0]+s[31], s[0]-s[31]
+	row := &dctMatrix[0]
+	for m := 0; m < 32; m += 2 {
+		c[m] = float64(a * row[m])
+		c[m+1] = float64(b * row[m+1])
 	}
-	dct16(&a, 1)
-	dct16(&b, 1)
-	for m := range 15 {
-		x[2*m] = a[m]
-		x[2*m+1] = b[m] + b[m+1]
+	for k := 1; k < min(n, 16); k++ {
+		a, b, row := s[k]+s[31-k], s[k]-s[31-k], &dctMatrix[k]
+		for m := 0; m < 32; m += 2 {
+			c[m] += float64(a * row[m])
+			c[m+1] += float64(b * row[m+1])
+		}
 	}
-	x[30], x[31] = a[15], b[15]
-}
-
-func dct16(x *[16]float64, level int) {
-	var a, b [8]float64
-	sc := &dctScale[level]
-	for k := range 8 {
-		u, v := x[k], x[15-k]
-		a[k] = u + v
-		b[k] = (u - v) * sc[k]
-	}
-	dct8(&a, level+1)
-	dct8(&b, level+1)
-	for m := range 7 {
-		x[2*m] = a[m]
-		x[2*m+1] = b[m] + b[m+1]
-	}
-	x[14], x[15] = a[7], b[7]
-}
-
-func dct8(x *[8]float64, level int) {
-	var a, b [4]float64
-	sc := &dctScale[level]
-	for k := range 4 {
-		u, v := x[k], x[7-k]
-		a[k] = u + v
-		b[k] = (u - v) * sc[k]
-	}
-	dct4(&a, level+1)
-	dct4(&b, level+1)
-	for m := range 3 {
-		x[2*m] = a[m]
-		x[2*m+1] = b[m] + b[m+1]
-	}
-	x[6], x[7] = a[3], b[3]
-}
-
-func dct4(x *[4]float64, level int) {
-	sc := &dctScale[level]
-	a0, a1 := x[0]+x[3], x[1]+x[2]
-	b0, b1 := (x[0]-x[3])*sc[0], (x[1]-x[2])*sc[1]
-	s2 := dctScale[level+1][0]
-	// the two 2-point DCTs
-	a0, a1 = a0+a1, (a0-a1)*s2
-	b0, b1 = b0+b1, (b0-b1)*s2
-	x[0] = a0
-	x[1] = b0 + b1
-	x[2] = a1
-	x[3] = b1
 }
 
 // matrix computes the 64 values V of the synthesis matrixing from the 32
 // subband samples s.
 func matrix(s *[32]float64, v *[64]float64) {
-	c := *s
-	dct32(&c)
+	n := 32
+	for n > 0 && s[n-1] == 0 {
+		n--
+	}
+	if n > 0 && matrixFast(s, n, v) {
+		return
+	}
+	matrixGo(s, n, v)
+}
+
+// matrixGo is matrix for samples that are zero from n on (0 ≤ n ≤ 32):
+// the DCT (dct32), then V from it by the symmetries above. The AVX2 kernel
+// (matrixFast) gives the same bits.
+func matrixGo(s *[32]float64, n int, v *[64]float64) {
+	var c [32]float64
+	if n > 0 {
+		dct32(s, n, &c)
+	}
+	hi, lo := (*[16]float64)(c[16:]), (*[16]float64)(c[:16])
 	for i := range 16 {
-		v[i] = c[16+i]
+		v[i] = hi[i]
+		v[48+i] = -lo[i]
 	}
 	v[16] = 0
-	for i := 17; i < 48; i++ {
-		v[i] = -c[48-i]
-	}
-	for i := 48; i < 64; i++ {
-		v[i] = -c[i-48]
+	mid := (*[31]float64)(v[17:48])
+	for k := range 31 {
+		mid[k] = -c[31-k] // V[17+k] = −C[31−k]
 	}
 }

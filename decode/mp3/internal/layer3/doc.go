@@ -25,13 +25,21 @@
 //     scale-factor band tables.
 //   - requantise: |is|^(4/3) and 2^(e/4) by table (no math.Pow per line).
 //   - matrix, synthesis: the polyphase synthesis, its matrixing as one
-//     32-point DCT-II (Lee's factorisation, 80 multiplications instead of
-//     2048) and its windowing as a 16-term sum per sample over a ring of
-//     V blocks, with the window passed in (checked against the standard's
-//     step-by-step procedure for arbitrary windows).
-//   - imdct36, imdct12, hybridBlock: the IMDCT as a DCT-IV through a
-//     9-point (3 × 3) or 3-point complex DFT, with the block-type windows
-//     and the short-block overlap.
+//     32-point DCT-II (a matrix product over the subbands up to the last
+//     non-zero one, checked against Lee's factorisation and the defining
+//     64×32 product) and its windowing as a 16-term sum per sample over a
+//     ring of V blocks, with the window passed in (checked against the
+//     standard's step-by-step procedure for arbitrary windows).
+//   - imdctLong, imdct12, hybridBlock: the long blocks' IMDCT as one
+//     product with the block type's window folded into the matrix
+//     (checked against a DCT-IV through a 3 × 3 complex DFT, kept in the
+//     tests), the short blocks' through a 3-point complex DFT, and the
+//     short-block overlap.
+//   - Kernels: the matrixing, the synthesis sums and the long-block IMDCT
+//     run on AVX2 (synth_amd64.go, *_avx2_amd64.s) where the CPU has it,
+//     with Go twins doing the same products in the same order, no fused
+//     multiply-adds: the *KernelTwins tests require the same bits, and
+//     -tags purego or KWEIGH_KERNELS=go run the Go code.
 //   - midSide, reorder, aliasReduce, hybrid: M/S stereo, short-block
 //     reordering, the alias-reduction butterflies, and the hybrid filter
 //     bank with overlap-add and frequency inversion (checked against their

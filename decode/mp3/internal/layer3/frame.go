@@ -47,7 +47,7 @@ type Decoder struct {
 	overlap [2][32][18]float64
 	sub     [18][32]float64
 	synth   [2]synthesis
-	pcm     [32]float64
+	gran    [2][576]float64 // one granule's output samples per channel
 
 	// tap, when set (by tests), sees every block of 32 subband samples
 	// before the synthesis, channel by channel.
@@ -66,6 +66,14 @@ func (d *Decoder) Reset() {
 	d.resLen = 0
 	d.overlap = [2][32][18]float64{}
 	d.synth = [2]synthesis{}
+}
+
+// Resume forgets the bit reservoir after a stretch of the stream was
+// skipped: the frames after it cannot take main data from before it (a
+// frame that reaches back is then damage, decoded as silence). The filter
+// banks keep their state.
+func (d *Decoder) Resume() {
+	d.resLen = 0
 }
 
 // Frame decodes one whole frame (header, optional CRC, side information
@@ -160,24 +168,53 @@ func (d *Decoder) decodeFrame(frame []byte, h Header, out []float64) error {
 		}
 		for ch := range h.Channels {
 			g := &d.si.gr[gr][ch]
-			reorder(&d.xr[ch], g, h.RateIndex)
-			aliasReduce(&d.xr[ch], g)
-			hybrid(&d.xr[ch], g, &d.overlap[ch], &d.sub)
-			for t := range 18 {
-				if d.tap != nil {
-					d.tap(ch, &d.sub[t])
-				}
-				d.synth[ch].run(&d.sub[t], d.window, d.pcm[:])
-				o := out[(gr*576+t*32)*h.Channels+ch:]
-				for j, v := range d.pcm {
-					o[j*h.Channels] = v
-				}
+			// Lines from top on are zero: the requantised spectrum ends
+			// at the last non-zero line, joint stereo spreads neither
+			// channel beyond the longer one, and short blocks are
+			// reordered over the whole granule.
+			top := d.nonzero[ch]
+			if h.Channels == 2 && h.Joint {
+				top = max(d.nonzero[0], d.nonzero[1])
 			}
+			if g.windowSwitching && g.blockType == 2 {
+				top = 576
+			}
+			reorder(&d.xr[ch], g, h.RateIndex)
+			top = aliasReduceBelow(&d.xr[ch], g, top)
+			hybridBelow(&d.xr[ch], g, &d.overlap[ch], &d.sub, top)
+			d.synthesise(ch)
 		}
+		d.interleave(h.Channels, out[gr*576*h.Channels:])
 	}
 	d.resLen += len(main)
 	d.trim()
 	return damage
+}
+
+// synthesise runs the 18 blocks of subband samples in d.sub through
+// channel ch's synthesis filter bank into d.gran[ch].
+func (d *Decoder) synthesise(ch int) {
+	for t := range 18 {
+		if d.tap != nil {
+			d.tap(ch, &d.sub[t])
+		}
+		d.synth[ch].run(&d.sub[t], d.window, d.gran[ch][32*t:32*t+32])
+	}
+}
+
+// interleave writes the granule's samples of each channel (d.gran) into
+// out, channels interleaved.
+func (d *Decoder) interleave(channels int, out []float64) {
+	if channels == 1 {
+		copy(out[:576], d.gran[0][:])
+		return
+	}
+	o := (*[1152]float64)(out[:1152])
+	l, r := &d.gran[0], &d.gran[1]
+	for i := range 576 {
+		o[2*i] = l[i]
+		o[2*i+1] = r[i]
+	}
 }
 
 // granule reads the scale factors and Huffman data of one granule and
@@ -232,17 +269,9 @@ func (d *Decoder) silence(h Header, out []float64) {
 		for ch := range h.Channels {
 			d.xr[ch] = [576]float64{}
 			hybrid(&d.xr[ch], &zero, &d.overlap[ch], &d.sub)
-			for t := range 18 {
-				if d.tap != nil {
-					d.tap(ch, &d.sub[t])
-				}
-				d.synth[ch].run(&d.sub[t], d.window, d.pcm[:])
-				o := out[(gr*576+t*32)*h.Channels+ch:]
-				for j, v := range d.pcm {
-					o[j*h.Channels] = v
-				}
-			}
+			d.synthesise(ch)
 		}
+		d.interleave(h.Channels, out[gr*576*h.Channels:])
 	}
 }
 

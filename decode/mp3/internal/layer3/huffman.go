@@ -1,6 +1,7 @@
 package layer3
 
 import (
+	"encoding/binary"
 	"fmt"
 	"strings"
 )
@@ -213,7 +214,7 @@ func buildHuffman(codes string, xlen int) (*huffTable, error) {
 					return nil, fmt.Errorf("codeword %q overlaps another", w)
 				}
 				filled[i] = true
-				t.lookup[i] = uint32(sym) | uint32(len(w))<<huffLenShift
+				t.lookup[i] = t.symbol(sym) | uint32(len(w))<<huffLenShift
 			}
 			continue
 		}
@@ -245,14 +246,24 @@ func buildHuffman(codes string, xlen int) (*huffTable, error) {
 					return nil, fmt.Errorf("codeword %q overlaps another", l.word)
 				}
 				subFilled[i] = true
-				t.lookup[start+i] = uint32(l.sym) | uint32(len(rest))<<huffLenShift
+				t.lookup[start+i] = t.symbol(l.sym) | uint32(len(rest))<<huffLenShift
 			}
 		}
 	}
 	return t, nil
 }
 
-// decode reads one codeword from r and returns its symbol.
+// symbol is what the lookup table stores for symbol i: for the pair
+// tables x<<4 | y (i = x·xlen + y), so that decoding splits it with a
+// shift instead of a division; for the count1 table i itself.
+func (t *huffTable) symbol(i int) uint32 {
+	if t.xlen == 0 {
+		return uint32(i)
+	}
+	return uint32(i/t.xlen<<4 | i%t.xlen)
+}
+
+// decode reads one codeword from r and returns its symbol (see symbol).
 func (t *huffTable) decode(r *bitReader) int {
 	e := t.lookup[r.peek(t.rootBits)]
 	if e&huffPointer != 0 {
@@ -312,42 +323,131 @@ func bigValueTable(n int) (*huffTable, uint, error) {
 }
 
 // pair reads one big_values pair (x, y) with its linbits and sign bits
-// (ISO/IEC 11172-3 §2.4.1.7 huffmancodebits).
+// (ISO/IEC 11172-3 §2.4.1.7 huffmancodebits). See pairs.
 func (t *huffTable) pair(r *bitReader, linbits uint) (x, y int) {
-	v := t.decode(r)
-	x, y = v>>4, v&15
-	if t.xlen <= 15 {
-		x, y = v/t.xlen, v%t.xlen
+	var out [2]int
+	t.pairs(r, linbits, out[:])
+	return out[0], out[1]
+}
+
+// pairs reads len(out)/2 big_values pairs into out, each (x, y) with its
+// linbits and sign bits (ISO/IEC 11172-3 §2.4.1.7 huffmancodebits). A pair
+// takes at most 47 bits (a 19-bit codeword, two values of 13 linbits and
+// two sign bits), so one refill of the bit register serves a whole pair;
+// the register lives in local variables for the whole region.
+func (t *huffTable) pairs(r *bitReader, linbits uint, out []int) {
+	data, pos, acc, n := r.data, r.pos, r.acc, r.n
+	lookup, root := t.lookup, t.rootBits
+	consumed := 0
+	for i := 0; i+1 < len(out); i += 2 {
+		if n < 48 {
+			acc, n, pos = refill(data, pos, acc, n)
+		}
+		e := lookup[acc>>(64-root)]
+		used := uint(0)
+		if e&huffPointer != 0 {
+			used = root
+			sub := uint(e >> huffSubShift & 31)
+			e = lookup[int(e&huffIndexMask)+int(acc<<used>>(64-sub))]
+		}
+		used += uint(e >> huffLenShift & 31)
+		x, y := int(e>>4&15), int(e&15)
+		if linbits > 0 && x == 15 {
+			x += int(acc << used >> (64 - linbits))
+			used += linbits
+		}
+		x, used = signed(x, acc, used)
+		if linbits > 0 && y == 15 {
+			y += int(acc << used >> (64 - linbits))
+			used += linbits
+		}
+		y, used = signed(y, acc, used)
+		acc <<= used
+		n -= used
+		consumed += int(used)
+		out[i], out[i+1] = x, y
 	}
-	if linbits > 0 && x == 15 {
-		x += int(r.read(linbits))
+	r.pos, r.acc, r.n = pos, acc, n
+	r.used += consumed
+	if r.used > 8*len(data) {
+		r.over = true
 	}
-	if x != 0 && r.read(1) == 1 {
-		x = -x
+}
+
+// refill is bitReader.fill on the register held in local variables: it
+// loads whole bytes until at least 57 bits are held (zero bits past the
+// end of data), eight at a time where eight remain. The bits of a partly
+// loaded byte that land below the count are that byte's own bits, which
+// the next load puts in the same place again, so they do no harm.
+func refill(data []byte, pos int, acc uint64, n uint) (uint64, uint, int) {
+	if pos+8 <= len(data) {
+		acc |= binary.BigEndian.Uint64(data[pos:]) >> n
+		k := (64 - n) >> 3
+		return acc, n + 8*k, pos + int(k)
 	}
-	if linbits > 0 && y == 15 {
-		y += int(r.read(linbits))
+	for n <= 56 {
+		if pos < len(data) {
+			acc |= uint64(data[pos]) << (56 - n)
+			pos++
+		}
+		n += 8
 	}
-	if y != 0 && r.read(1) == 1 {
-		y = -y
+	return acc, n, pos
+}
+
+// signed applies the sign bit that follows a non-zero magnitude x ≥ 0:
+// bit used of acc (counted from the top) when x is not zero, nothing
+// otherwise. It returns the signed value and the bits used so far, without
+// a branch (the signs of a spectrum are coin tosses to a branch predictor).
+func signed(x int, acc uint64, used uint) (int, uint) {
+	nz := uint(-x) >> 63 // 1 when x > 0
+	s := int(int64(acc<<used)>>63) & -int(nz)
+	return (x ^ s) - s, used + nz
+}
+
+// quads reads count1 quadruples with table A (tableB false) or B and the
+// sign bits of their non-zero values into is from line i on, while four
+// lines remain and the bits read stay below end (bit position of the
+// granule's end); it returns the line after the last quadruple. A
+// quadruple takes at most 10 bits.
+func quads(r *bitReader, tableB bool, is *[576]int, i, end int) int {
+	data, pos, acc, n := r.data, r.pos, r.acc, r.n
+	lookup, root := count1A.lookup, count1A.rootBits
+	bit := r.used
+	for i+4 <= 576 && bit < end {
+		if n < 16 {
+			acc, n, pos = refill(data, pos, acc, n)
+		}
+		var v int
+		var used uint
+		if tableB {
+			v, used = 15-int(acc>>60), 4
+		} else {
+			e := lookup[acc>>(64-root)]
+			v, used = int(e&0xFF), uint(e>>huffLenShift&31)
+		}
+		q := (*[4]int)(is[i : i+4])
+		q[0], used = signed(v>>3&1, acc, used)
+		q[1], used = signed(v>>2&1, acc, used)
+		q[2], used = signed(v>>1&1, acc, used)
+		q[3], used = signed(v&1, acc, used)
+		acc <<= used
+		n -= used
+		bit += int(used)
+		i += 4
 	}
-	return x, y
+	r.pos, r.acc, r.n = pos, acc, n
+	r.used = bit
+	if r.used > 8*len(data) {
+		r.over = true
+	}
+	return i
 }
 
 // quad reads one count1 quadruple with table A (tableB false) or B and the
-// sign bits of its non-zero values.
+// sign bits of its non-zero values (see quads).
 func quad(r *bitReader, tableB bool, out *[4]int) {
-	var v int
-	if tableB {
-		v = 15 - int(r.read(4))
-	} else {
-		v = count1A.decode(r)
-	}
-	for i := range 4 {
-		q := v >> (3 - i) & 1
-		if q != 0 && r.read(1) == 1 {
-			q = -q
-		}
-		out[i] = q
-	}
+	var is [576]int
+	quads(r, tableB, &is, 0, r.used+1)
+	copy(out[:], is[:4])
 }

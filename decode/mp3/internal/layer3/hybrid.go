@@ -62,12 +62,30 @@ func reorder(xr *[576]float64, g *granule, rateIndex int) {
 // mixed blocks between subbands 0 and 1 only, for short blocks not at
 // all.
 func aliasReduce(xr *[576]float64, g *granule) {
+	aliasReduceBelow(xr, g, 576)
+}
+
+// aliasReduceBelow is aliasReduce for lines that are zero from top on
+// (0 ≤ top ≤ 576); it returns a line from which they are still zero.
+func aliasReduceBelow(xr *[576]float64, g *granule, top int) int {
 	bands := 32
 	if g.windowSwitching && g.blockType == 2 {
 		if !g.mixed {
-			return
+			return top
 		}
 		bands = 2
+	}
+	// A butterfly between subbands sb − 1 and sb reads lines 18sb − 8 to
+	// 18sb + 7; above the last non-zero line they are all zero and stay so.
+	last := top - 1
+	for last >= 0 && xr[last] == 0 {
+		last--
+	}
+	bands = min(bands, (last+8)/18+1)
+	if bands > 1 {
+		top = max(last+1, min(576, 18*(bands-1)+8))
+	} else {
+		top = last + 1
 	}
 	for sb := 1; sb < bands; sb++ {
 		for i := range 8 {
@@ -77,6 +95,7 @@ func aliasReduce(xr *[576]float64, g *granule) {
 			xr[hi] = b*aliasCS[i] + a*aliasCA[i]
 		}
 	}
+	return top
 }
 
 // hybrid runs the IMDCT of each subband of xr with its block type (the
@@ -86,11 +105,16 @@ func aliasReduce(xr *[576]float64, g *granule) {
 // subbands (every odd sample negated, §2.4.3.4.10.4). out[t][sb] is time
 // sample t of subband sb, the order the synthesis takes them in.
 func hybrid(xr *[576]float64, g *granule, overlap *[32][18]float64, out *[18][32]float64) {
-	var in [18]float64
+	hybridBelow(xr, g, overlap, out, 576)
+}
+
+// hybridBelow is hybrid for lines that are zero from top on (0 ≤ top ≤
+// 576).
+func hybridBelow(xr *[576]float64, g *granule, overlap *[32][18]float64, out *[18][32]float64, top int) {
 	var block [36]float64
 	// Subbands above the last non-zero line have nothing to transform:
 	// their output is what the previous granule left in overlap.
-	last := 575
+	last := top - 1
 	for last >= 0 && xr[last] == 0 {
 		last--
 	}
@@ -99,32 +123,33 @@ func hybrid(xr *[576]float64, g *granule, overlap *[32][18]float64, out *[18][32
 		limit = 0
 	}
 	for sb := limit; sb < 32; sb++ {
+		ov := &overlap[sb]
 		for t := range 18 {
-			v := overlap[sb][t]
-			overlap[sb][t] = 0
-			if sb&1 == 1 && t&1 == 1 {
-				v = -v
-			}
-			out[t][sb] = v
+			out[t][sb] = ov[t]
 		}
+		*ov = [18]float64{}
+	}
+	bt := g.blockType
+	if !g.windowSwitching {
+		bt = 0
 	}
 	for sb := range limit {
-		bt := g.blockType
-		if !g.windowSwitching {
-			bt = 0
-		}
+		b := bt
 		if g.windowSwitching && g.mixed && sb < 2 {
-			bt = 0
+			b = 0
 		}
-		copy(in[:], xr[18*sb:18*sb+18])
-		hybridBlock(&in, bt, &block)
+		hybridBlock((*[18]float64)(xr[18*sb:18*sb+18]), b, &block)
+		ov := &overlap[sb]
 		for t := range 18 {
-			v := block[t] + overlap[sb][t]
-			overlap[sb][t] = block[18+t]
-			if sb&1 == 1 && t&1 == 1 {
-				v = -v
-			}
-			out[t][sb] = v
+			out[t][sb] = block[t] + ov[t]
+		}
+		copy(ov[:], block[18:])
+	}
+	// Frequency inversion: every odd sample of every odd subband negated.
+	for t := 1; t < 18; t += 2 {
+		o := &out[t]
+		for sb := 1; sb < 32; sb += 2 {
+			o[sb] = -o[sb]
 		}
 	}
 }

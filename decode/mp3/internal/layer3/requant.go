@@ -45,10 +45,11 @@ func gain(e int) float64 {
 // requantLine returns xr for the quantised value v with the gain exponent
 // e in quarter steps (2^(e/4)).
 func requantLine(v int, g float64) float64 {
-	if v < 0 {
-		return -pow43[-v] * g
-	}
-	return pow43[v] * g
+	sign := v >> 63 // 0 or -1
+	x := pow43[(v^sign)-sign] * g
+	// The sign of v onto the product, without a branch that the signs of
+	// a spectrum would mispredict half the time.
+	return math.Float64frombits(math.Float64bits(x) ^ uint64(sign)<<63)
 }
 
 // requantise turns the quantised lines is[:nonzero] of one granule and

@@ -29,23 +29,20 @@ func readSpectrum(r *bitReader, g *granule, h Header, end int, is *[576]int) (in
 			}
 			continue
 		}
-		for ; i < bounds[region]; i += 2 {
+		if b := bounds[region]; i < b {
+			b += b & 1 // pairs: an odd bound would end with a whole pair
 			if t == nil {
-				is[i], is[i+1] = 0, 0
-				continue
+				clear(is[i:b])
+			} else {
+				t.pairs(r, linbits, is[i:b])
 			}
-			is[i], is[i+1] = t.pair(r, linbits)
+			i = b
 		}
 	}
 	if r.bitPos() > end {
 		return 0, fmt.Errorf("big_values overrun the granule by %d bits", r.bitPos()-end)
 	}
-	var q [4]int
-	for i+4 <= 576 && r.bitPos() < end {
-		quad(r, g.count1B, &q)
-		is[i], is[i+1], is[i+2], is[i+3] = q[0], q[1], q[2], q[3]
-		i += 4
-	}
+	i = quads(r, g.count1B, is, i, end)
 	nonzero := i
 	if r.bitPos() > end {
 		// The last quadruple ran past the granule: it is not part of it

@@ -27,17 +27,27 @@ func (f *synthesis) run(s *[32]float64, d *[512]float64, out []float64) {
 	f.newest = (f.newest + 15) & 15 // one block back: the ring's "shift by 64"
 	matrix(s, &f.v[f.newest])
 	o := (*[32]float64)(out[:32])
-	// U[64i + j] is V[128i + j]: block 2i after the newest, value j;
-	// U[64i + 32 + j] is V[128i + 96 + j]: block 2i + 1, value 32 + j.
+	if !synthSumFast(&f.v, f.newest, d, o) {
+		synthSum(&f.v, f.newest, d, o)
+	}
+}
+
+// synthSum is steps 3–5: out[j] = Σ_{k=0}^{15} U_k[j] · D[32k + j], where
+// U_2i[j] = V[128i + j] is value j of block 2i after the newest and
+// U_2i+1[j] = V[128i + 96 + j] value 32 + j of block 2i + 1. The sum runs
+// in the order k = 0..15 with every product rounded on its own (the
+// conversions forbid fused multiply-adds), the order the AVX2 kernel
+// (synth_avx2_amd64.s) keeps, so that the two give the same bits.
+func synthSum(v *[16][64]float64, newest int, d *[512]float64, o *[32]float64) {
 	var u [16]*[32]float64
 	for i := range 8 {
-		u[2*i] = (*[32]float64)(f.v[(f.newest+2*i)&15][:32])
-		u[2*i+1] = (*[32]float64)(f.v[(f.newest+2*i+1)&15][32:])
+		u[2*i] = (*[32]float64)(v[(newest+2*i)&15][:32])
+		u[2*i+1] = (*[32]float64)(v[(newest+2*i+1)&15][32:])
 	}
 	for j := range 32 {
-		o[j] = u[0][j]*d[j] + u[1][j]*d[32+j] + u[2][j]*d[64+j] + u[3][j]*d[96+j] +
-			u[4][j]*d[128+j] + u[5][j]*d[160+j] + u[6][j]*d[192+j] + u[7][j]*d[224+j] +
-			u[8][j]*d[256+j] + u[9][j]*d[288+j] + u[10][j]*d[320+j] + u[11][j]*d[352+j] +
-			u[12][j]*d[384+j] + u[13][j]*d[416+j] + u[14][j]*d[448+j] + u[15][j]*d[480+j]
+		o[j] = float64(u[0][j]*d[j]) + float64(u[1][j]*d[32+j]) + float64(u[2][j]*d[64+j]) + float64(u[3][j]*d[96+j]) +
+			float64(u[4][j]*d[128+j]) + float64(u[5][j]*d[160+j]) + float64(u[6][j]*d[192+j]) + float64(u[7][j]*d[224+j]) +
+			float64(u[8][j]*d[256+j]) + float64(u[9][j]*d[288+j]) + float64(u[10][j]*d[320+j]) + float64(u[11][j]*d[352+j]) +
+			float64(u[12][j]*d[384+j]) + float64(u[13][j]*d[416+j]) + float64(u[14][j]*d[448+j]) + float64(u[15][j]*d[480+j])
 	}
 }

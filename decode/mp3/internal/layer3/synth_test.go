@@ -75,3 +75,40 @@ func BenchmarkSynthesis(b *testing.B) {
 		f.run(&s, &d, out)
 	}
 }
+
+// TestSynthSumKernelTwins holds the synthesis sums of the kernel this
+// machine runs (AVX2 where it has it) to the Go loop, bit for bit, for
+// every position of the ring and random values (including signed zeros
+// and values far apart in size, where a different order of additions
+// would show).
+func TestSynthSumKernelTwins(t *testing.T) {
+	rng := rand.New(rand.NewPCG(32, 16))
+	var d [512]float64
+	for i := range d {
+		d[i] = (2*rng.Float64() - 1) * math.Ldexp(1, rng.IntN(40)-20)
+	}
+	var v [16][64]float64
+	for trial := range 64 {
+		for b := range v {
+			for i := range v[b] {
+				switch rng.IntN(8) {
+				case 0:
+					v[b][i] = math.Copysign(0, rng.Float64()-0.5)
+				default:
+					v[b][i] = (2*rng.Float64() - 1) * math.Ldexp(1, rng.IntN(60)-30)
+				}
+			}
+		}
+		newest := trial & 15
+		var want, got [32]float64
+		synthSum(&v, newest, &d, &want)
+		if !synthSumFast(&v, newest, &d, &got) {
+			t.Skip("no synthesis kernel on this build or CPU: the Go loop is the only path")
+		}
+		for j := range 32 {
+			if math.Float64bits(got[j]) != math.Float64bits(want[j]) {
+				t.Fatalf("trial %d (newest %d) output %d: kernel %b, Go %b", trial, newest, j, got[j], want[j])
+			}
+		}
+	}
+}
