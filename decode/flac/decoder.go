@@ -321,13 +321,7 @@ func (d *Decoder) tryFrame() (problem string, isFrame bool) {
 			return "the file ends inside the frame", true
 		}
 	}
-	samples := d.fd.samples[:h.channels]
-	var spread uint32
-	if d.hash != nil {
-		spread = d.hash.pack(samples, h.blockSize)
-	} else {
-		spread = spreadOf(samples, h.blockSize)
-	}
+	spread := d.fd.finish(d.hash, h.channels, h.blockSize)
 	if bits < 32 && spread>>(bits-1) != 0 {
 		return d.outOfRange(h.channels, h.blockSize, bits), true
 	}

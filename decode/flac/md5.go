@@ -86,6 +86,45 @@ func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
 	return spread
 }
 
+// packStereo decorrelates the stereo pair a, b in place (see pair), lays
+// the result out like pack and returns the OR of the folded samples: one
+// pass for what would be three.
+func (s *sampleHash) packStereo(assignment int, a, b []int32) uint32 {
+	n := len(a)
+	b = b[:n]
+	size := 2 * n * s.width
+	if cap(s.buf) < size+8 {
+		s.buf = make([]byte, size+8)
+	}
+	buf := s.buf[:size+8]
+	var spread uint32
+	switch s.width {
+	case 3:
+		for i := range a {
+			l, r := pair(assignment, a[i], b[i])
+			a[i], b[i] = l, r
+			spread |= fold(l) | fold(r)
+			o := buf[6*i : 6*i+8 : 6*i+8]
+			binary.LittleEndian.PutUint32(o[0:4], uint32(l))
+			binary.LittleEndian.PutUint32(o[3:7], uint32(r))
+		}
+	case 2:
+		for i := range a {
+			l, r := pair(assignment, a[i], b[i])
+			a[i], b[i] = l, r
+			spread |= fold(l) | fold(r)
+			o := buf[4*i : 4*i+4 : 4*i+4]
+			binary.LittleEndian.PutUint32(o, uint32(uint16(l))|uint32(r)<<16)
+		}
+	default:
+		decorrelate(assignment, a, b)
+		ch := [2][]int32{a, b}
+		return s.pack(ch[:], n)
+	}
+	s.buf = s.buf[:size]
+	return spread
+}
+
 // write hashes the frame pack laid out.
 func (s *sampleHash) write() { s.h.Write(s.buf) }
 
