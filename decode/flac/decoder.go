@@ -42,8 +42,8 @@ type Decoder struct {
 	lostTotal   uint64
 	lostUnknown bool // the stream ends in damage and gives no length
 
-	hash      *sampleHash // nil when MD5 is not checked
-	verified  bool
+	hash     *sampleHash // nil when MD5 is not checked
+	verified bool
 
 	src        decode.Source // for Section, read with ReadAt only
 	size       int64
@@ -56,9 +56,9 @@ type Decoder struct {
 	chainOnce  sync.Once
 	chain      *md5Chain    // the MD5 of sections (see section.go)
 	sec        *sectionSpan // set for a decoder made by Section
-	finished  bool  // no more frames will be read
-	finishErr error // returned once the delivered frames run out
-	notes     []string
+	finished   bool         // no more frames will be read
+	finishErr  error        // returned once the delivered frames run out
+	notes      []string
 }
 
 // damageRecord is one damaged stretch of the stream.
@@ -111,7 +111,7 @@ func NewDecoder(src decode.Source, size int64, opts Options) (*Decoder, error) {
 		audioStart: md.audioStart,
 		seekAt:     md.seekAt,
 		seekPoints: md.seekPoints,
-		scale: 1 / float64(int64(1)<<(si.bits-1)),
+		scale:      1 / float64(int64(1)<<(si.bits-1)),
 		info: decode.Info{
 			Container:     "flac",
 			Codec:         "flac",

@@ -28,11 +28,12 @@ import (
 // cannot each check it. They hand their frames, laid out as the MD5
 // wants them, to one md5Chain: a section whose frames continue what is
 // hashed hashes them itself; the others' bytes wait, copied, until the
-// hash reaches them, and the section that gets there hashes them too.
-// Only one goroutine hashes at a time (the chain's busy token); the
-// waiting bytes are at most a section's, and MaxSectionFrames keeps a
-// section to maxSectionBytes of them, so memory stays bounded however long
-// the stream. Once every section is read, CheckSections compares the hash
+// hash reaches them, and a goroutine of the chain hashes them then,
+// beside the sections still decoding. Only one goroutine hashes at a time
+// (the chain's busy token); MaxSectionFrames keeps a section to
+// maxSectionBytes of MD5 bytes and at most maxHeldBytes wait in all (a
+// section beyond that waits for the hash), so memory stays bounded however
+// long the stream. Once every section is read, CheckSections compares the hash
 // with STREAMINFO and returns exactly the *decode.IntegrityError one pass
 // would have returned at its end.
 
@@ -89,7 +90,8 @@ func (d *Decoder) CheckSections() error {
 	}
 	c.mu.Lock()
 	defer c.mu.Unlock()
-	if c.busy || len(c.waiting) > 0 || c.next != d.si.samples {
+	c.wait()
+	if len(c.waiting) > 0 || c.next != d.si.samples {
 		return fmt.Errorf("flac: the sections reached sample %d of %d in order; the MD5 was not checked", c.next, d.si.samples)
 	}
 	var got [md5.Size]byte
@@ -140,7 +142,7 @@ func (d *Decoder) Section(from, to int64) (decode.Decoder, error) {
 	s.nextSample = first
 	s.in = newInput(io.NewSectionReader(d.src, off, d.size-off), off, d.size)
 	if d.hash != nil {
-		d.chainOnce.Do(func() { d.chain = &md5Chain{h: md5.New(), frameBytes: d.si.channels * d.hash.width} })
+		d.chainOnce.Do(func() { d.chain = newMD5Chain(d.si.channels * d.hash.width) })
 		s.hash = &sampleHash{width: d.hash.width}
 		s.sec.chain = d.chain
 	}
@@ -178,12 +180,24 @@ func (s *sectionSpan) feed(h *sampleHash, first uint64, n int) {
 // this file).
 type md5Chain struct {
 	mu         sync.Mutex
+	cond       sync.Cond // signalled when busy ends or waiting bytes are hashed
 	h          hash.Hash // written by the holder of busy only
 	frameBytes int       // MD5 bytes per sample of all channels
 	next       uint64    // samples per channel hashed so far
 	busy       bool      // a goroutine is hashing
 	waiting    []*md5Part
+	held       int      // bytes in waiting
 	free       [][]byte // buffers of drained parts, for reuse
+}
+
+// maxHeldBytes bounds the bytes waiting in a chain: a section whose bytes
+// would go beyond it waits until the hash reaches it.
+const maxHeldBytes = 4 * maxSectionBytes
+
+func newMD5Chain(frameBytes int) *md5Chain {
+	c := &md5Chain{h: md5.New(), frameBytes: frameBytes}
+	c.cond.L = &c.mu
+	return c
 }
 
 // md5Part is the bytes of one section that wait for the hash to reach
@@ -196,10 +210,17 @@ type md5Part struct {
 // feed hashes data (whole frames from sample first on) if it continues
 // the hash and nobody else is hashing, else keeps a copy in p to be hashed
 // when the hash gets there. Bytes of samples already hashed (a section's
-// pre-roll overlaps the section before it) are skipped.
+// pre-roll overlaps the section before it) are skipped. Parts the hash
+// reaches are hashed by a goroutine of the chain's (drain), so a section
+// that finishes does not wait for the bytes of the next: the hashing goes
+// on beside the sections of the next round. A section whose bytes cannot
+// be hashed yet waits while maxHeldBytes are waiting already.
 func (c *md5Chain) feed(p *md5Part, first uint64, data []byte) {
 	c.mu.Lock()
 	if c.busy || len(p.pend) > 0 || first > c.next {
+		for first > c.next && c.held+len(data) > maxHeldBytes && len(p.pend) == 0 {
+			c.cond.Wait()
+		}
 		if len(p.pend) == 0 {
 			p.first = first
 			if k := len(c.free); k > 0 {
@@ -208,13 +229,33 @@ func (c *md5Chain) feed(p *md5Part, first uint64, data []byte) {
 			c.waiting = append(c.waiting, p)
 		}
 		p.pend = append(p.pend, data...)
+		c.held += len(data)
 		c.mu.Unlock()
 		return
 	}
 	c.busy = true
 	c.mu.Unlock()
 	c.write(first, data)
-	c.drain()
+	c.mu.Lock()
+	if c.reachable() < 0 {
+		c.busy = false
+		c.cond.Broadcast()
+		c.mu.Unlock()
+		return
+	}
+	c.mu.Unlock()
+	go c.drain()
+}
+
+// reachable returns the index of a waiting part the hash has reached, or
+// -1. c.mu is held.
+func (c *md5Chain) reachable() int {
+	for i, p := range c.waiting {
+		if p.first <= c.next {
+			return i
+		}
+	}
+	return -1
 }
 
 // write hashes what data holds past the samples hashed; first is at most
@@ -233,20 +274,15 @@ func (c *md5Chain) write(first uint64, data []byte) {
 	c.mu.Unlock()
 }
 
-// drain hashes every waiting part the hash has reached, then gives up
-// busy.
+// drain, run by the holder of busy, hashes every waiting part the hash
+// has reached, then gives up busy.
 func (c *md5Chain) drain() {
 	c.mu.Lock()
 	for {
-		i := -1
-		for j, p := range c.waiting {
-			if p.first <= c.next {
-				i = j
-				break
-			}
-		}
+		i := c.reachable()
 		if i < 0 {
 			c.busy = false
+			c.cond.Broadcast()
 			c.mu.Unlock()
 			return
 		}
@@ -257,7 +293,16 @@ func (c *md5Chain) drain() {
 		c.mu.Unlock()
 		c.write(first, buf)
 		c.mu.Lock()
+		c.held -= len(buf)
 		c.free = append(c.free, buf[:0])
+		c.cond.Broadcast()
+	}
+}
+
+// wait returns once no goroutine is hashing. c.mu is held.
+func (c *md5Chain) wait() {
+	for c.busy {
+		c.cond.Wait()
 	}
 }
 
