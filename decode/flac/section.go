@@ -190,8 +190,9 @@ type md5Chain struct {
 	free       [][]byte // buffers of drained parts, for reuse
 }
 
-// maxHeldBytes bounds the bytes waiting in a chain: a section whose bytes
-// would go beyond it waits until the hash reaches it.
+// maxHeldBytes bounds the bytes waiting in a chain while the hash is at
+// work: a section whose bytes would go beyond it waits. Beyond that only
+// the sections of one round (one per core, maxSectionBytes each) wait.
 const maxHeldBytes = 4 * maxSectionBytes
 
 func newMD5Chain(frameBytes int) *md5Chain {
@@ -214,11 +215,14 @@ type md5Part struct {
 // reaches are hashed by a goroutine of the chain's (drain), so a section
 // that finishes does not wait for the bytes of the next: the hashing goes
 // on beside the sections of the next round. A section whose bytes cannot
-// be hashed yet waits while maxHeldBytes are waiting already.
+// be hashed yet waits while maxHeldBytes are waiting already and the hash
+// is at work on them.
 func (c *md5Chain) feed(p *md5Part, first uint64, data []byte) {
 	c.mu.Lock()
 	if c.busy || len(p.pend) > 0 || first > c.next {
-		for first > c.next && c.held+len(data) > maxHeldBytes && len(p.pend) == 0 {
+		// Wait only while the hash is being worked on (busy always
+		// ends), so a section never waits on one that stopped.
+		for c.busy && first > c.next && c.held+len(data) > maxHeldBytes {
 			c.cond.Wait()
 		}
 		if len(p.pend) == 0 {
