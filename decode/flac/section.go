@@ -30,12 +30,12 @@ import (
 // hashed hashes them itself; the others' bytes wait, copied, until the
 // hash reaches them, and a goroutine of the chain hashes them then,
 // beside the sections still decoding. Only one goroutine hashes at a time
-// (the chain's busy token); MaxSectionFrames keeps a section to
-// maxSectionBytes of MD5 bytes and at most maxHeldBytes wait in all (a
-// section beyond that waits for the hash), so memory stays bounded however
-// long the stream. Once every section is read, CheckSections compares the hash
-// with STREAMINFO and returns exactly the *decode.IntegrityError one pass
-// would have returned at its end.
+// (the chain's busy token). MaxSectionFrames keeps a section to
+// maxSectionBytes of MD5 bytes, and a section waits while more than
+// maxHeldBytes wait and the hash is at work, so memory stays bounded
+// however long the stream. Once every section is read, CheckSections
+// compares the hash with STREAMINFO and returns exactly the
+// *decode.IntegrityError one pass would have returned at its end.
 
 // maxSectionBytes bounds the MD5 bytes (ceil(bits/8) per sample) of a
 // section: what waits in memory while an earlier section is being hashed.
