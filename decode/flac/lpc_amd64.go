@@ -2,21 +2,25 @@
 
 package flac
 
-// lpcKernel restores x[len(c):] with the Go loops of lpc_orders.go up to
-// maxUnrolled, and above it with the assembly loop of lpc_amd64.s, which
-// uses only base amd64 instructions (64-bit IMUL, no CPU feature to
-// detect). The assembly has a loop for every order 1 to 32, but up to
-// order 12 the Go loops, which keep the whole history in registers, are as
-// fast or faster (measured side by side, order 8: 4.3 against 8 ns per
-// sample); above 12 the Go code falls back to the plain double loop and
-// the assembly is 3.7 times faster (BenchmarkRestoreLPC/32). The Go loops
-// are its twins (TestLPCKernelMatchesGo, every order).
+// lpcKernel restores x[len(c):] with the fastest loop for the order,
+// measured side by side (BenchmarkRestoreLPC and A/B runs): orders 1 to 8
+// by the assembly of lpc_amd64.s with the whole history in registers
+// (lpcRegs; order 8, the common one of flac -5: 3.7 against 5.3 ns per
+// sample for the Go loop), 9 to 12 by the Go loops of lpc_orders.go (as
+// fast as the assembly that reads the history from memory), 13 to 32 by
+// that assembly (lpcAsm; 3.7 times the plain double loop the Go code has
+// for them). The assembly uses only base amd64 instructions (64-bit
+// IMUL, no CPU feature to detect). The Go loops are its twins
+// (TestLPCKernelMatchesGo, every order of both kernels).
 func lpcKernel(x []int32, c []int32, shift uint) bool {
-	if restoreLPCUnrolled(x, c, shift) {
-		return true
-	}
-	if len(c) == 0 || len(c) > 32 {
+	switch {
+	case len(c) == 0 || len(c) > 32:
 		return false
+	case len(c) <= 8:
+		lpcRegsWide(x, c, shift)
+		return true
+	case len(c) <= maxUnrolled:
+		return restoreLPCUnrolled(x, c, shift)
 	}
 	lpcAsmWide(x, c, shift)
 	return true
@@ -39,3 +43,18 @@ const hasLPCAsm = true
 //
 //go:noescape
 func lpcAsm(x []int32, c *[32]int64, order int, shift uint)
+
+// lpcRegs is lpcAsm for orders 1 to 8 with the whole history in
+// registers.
+//
+//go:noescape
+func lpcRegs(x []int32, c *[32]int64, order int, shift uint)
+
+// lpcRegsWide runs lpcRegs with the coefficients sign-extended to 64 bits.
+func lpcRegsWide(x []int32, c []int32, shift uint) {
+	var wide [32]int64
+	for j, v := range c {
+		wide[j] = int64(v)
+	}
+	lpcRegs(x, &wide, len(c), shift)
+}

@@ -14,3 +14,7 @@ const hasLPCAsm = false
 // lpcAsmWide stands in for the assembly loop so the tests build; it is
 // never called.
 func lpcAsmWide(x []int32, c []int32, shift uint) { restoreLPCPlain(x, c, shift) }
+
+// lpcRegsWide stands in for the assembly loop so the tests build; it is
+// never called.
+func lpcRegsWide(x []int32, c []int32, shift uint) { restoreLPCPlain(x, c, shift) }

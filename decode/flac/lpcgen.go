@@ -122,5 +122,45 @@ func assembly() []byte {
 		fmt.Fprintf(&b, "\tSARQ CX, AX\n\tADDL (DI)(R9*4), AX\n\tMOVL AX, (DI)(R9*4)\n\tMOVLQSX AX, R10\n\tINCQ R9\n\tCMPQ R9, R8\n\tJLT order%d\n\tRET\n", p)
 	}
 	b.WriteString("\ndone:\n\tRET\n")
+	registers(&b)
 	return b.Bytes()
+}
+
+// maxRegisters is the highest order lpcRegs has a loop for: the history
+// of eight samples takes eight of the fourteen general registers.
+const maxRegisters = 8
+
+// registers writes lpcRegs: for orders 1 to 8 the whole history in
+// registers (x1, the newest, in R10; then R11 to R15, BX, R8), moved down
+// one register per sample, and the coefficients read from memory. The
+// index R9 counts from order-len(x) up to 0 against DI, the end of x, so
+// the loop needs no length register. The chain from one sample to the
+// next is one multiply, an add, the shift and the residual add.
+func registers(b *bytes.Buffer) {
+	hist := []string{"", "R10", "R11", "R12", "R13", "R14", "R15", "BX", "R8"}
+	b.WriteString("\n// func lpcRegs(x []int32, c *[32]int64, order int, shift uint)\n")
+	b.WriteString("TEXT ·lpcRegs(SB), NOSPLIT, $0-48\n")
+	b.WriteString("\tMOVQ x_base+0(FP), DI\n\tMOVQ x_len+8(FP), AX\n\tMOVQ c+24(FP), SI\n\tMOVQ order+32(FP), R9\n\tMOVQ shift+40(FP), CX\n")
+	b.WriteString("\tMOVQ R9, DX\n\tCMPQ R9, AX\n\tJGE regsDone\n\tLEAQ (DI)(AX*4), DI\n\tSUBQ AX, R9\n")
+	for p := 1; p <= maxRegisters; p++ {
+		fmt.Fprintf(b, "\tCMPQ DX, $%d\n\tJEQ regs%d\n", p, p)
+	}
+	b.WriteString("\tJMP regsDone\n")
+	for p := 1; p <= maxRegisters; p++ {
+		fmt.Fprintf(b, "\nregs%d:\n", p)
+		for j := 1; j <= p; j++ {
+			fmt.Fprintf(b, "\tMOVLQSX -%d(DI)(R9*4), %s\n", 4*j, hist[j])
+		}
+		fmt.Fprintf(b, "\nregsLoop%d:\n", p)
+		fmt.Fprintf(b, "\tMOVQ %s, AX\n\tIMULQ %d(SI), AX\n", hist[p], 8*(p-1))
+		for j := p - 1; j >= 1; j-- {
+			fmt.Fprintf(b, "\tMOVQ %s, DX\n\tIMULQ %d(SI), DX\n\tADDQ DX, AX\n", hist[j], 8*(j-1))
+		}
+		b.WriteString("\tSARQ CX, AX\n\tADDL (DI)(R9*4), AX\n\tMOVL AX, (DI)(R9*4)\n")
+		for j := p; j >= 2; j-- {
+			fmt.Fprintf(b, "\tMOVQ %s, %s\n", hist[j-1], hist[j])
+		}
+		fmt.Fprintf(b, "\tMOVLQSX AX, R10\n\tINCQ R9\n\tJNZ regsLoop%d\n\tRET\n", p)
+	}
+	b.WriteString("\nregsDone:\n\tRET\n")
 }

@@ -56,15 +56,21 @@ func TestLPCKernelMatchesGo(t *testing.T) {
 			coefs := randomBlock(uint64(order+7), order, 15)
 			base := randomBlock(uint64(order*31)+uint64(width), 1000, width)
 			for _, shift := range []uint{0, 9, 15, 31} {
-				got := append([]int32(nil), base...)
 				want := append([]int32(nil), base...)
-				lpcAsmWide(got, coefs, shift)
 				if !restoreLPCUnrolled(want, coefs, shift) {
 					restoreLPCPlain(want, coefs, shift)
 				}
-				for i := range want {
-					if got[i] != want[i] {
-						t.Fatalf("order %d, %d-bit, shift %d: sample %d = %d, Go loop %d", order, width, shift, i, got[i], want[i])
+				kernels := []func([]int32, []int32, uint){lpcAsmWide}
+				if order <= 8 {
+					kernels = append(kernels, lpcRegsWide)
+				}
+				for k, kernel := range kernels {
+					got := append([]int32(nil), base...)
+					kernel(got, coefs, shift)
+					for i := range want {
+						if got[i] != want[i] {
+							t.Fatalf("kernel %d, order %d, %d-bit, shift %d: sample %d = %d, Go loop %d", k, order, width, shift, i, got[i], want[i])
+						}
 					}
 				}
 			}
