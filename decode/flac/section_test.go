@@ -5,10 +5,12 @@ import (
 	"errors"
 	"io"
 	"math/rand/v2"
+	"strings"
 	"sync"
 	"testing"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // readAll decodes d to its end and returns the samples and the final
@@ -214,4 +216,70 @@ func TestLocateLandsNearTheTarget(t *testing.T) {
 			t.Errorf("%s: a section across damage ends in %v, want a plain error", tc.name, err)
 		}
 	}
+}
+
+// FuzzFLACSections cuts whatever stream the fuzzer makes into three
+// sections (the middle one starting before the first one ends, like a
+// pre-roll). Nothing may panic or loop; a section either fails with an
+// error or ends with io.EOF; and when one pass decodes the stream cleanly,
+// every section that succeeds must give exactly the one-pass samples of
+// its span, and when all do, CheckSections must agree with one pass (nil,
+// or the same MD5 report). The seed corpus is in
+// testdata/fuzz/FuzzFLACSections plus the small fixtures.
+func FuzzFLACSections(f *testing.F) {
+	for _, name := range []string{"mono8-8k.flac", "mono16-24k.flac"} {
+		f.Add(audiotest.Fixture(f, name))
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		open := func() *Decoder {
+			d, err := NewDecoder(bytes.NewReader(data), int64(len(data)), DefaultOptions())
+			if err != nil {
+				return nil
+			}
+			return d
+		}
+		d := open()
+		if d == nil {
+			return
+		}
+		total := d.SplitFrames()
+		if total == 0 || total > 1<<22 {
+			return
+		}
+		ch := int64(d.Info().Channels)
+		want, onePass := readAllQuiet(open())
+		var ie *decode.IntegrityError
+		clean := onePass == nil || errors.As(onePass, &ie) && strings.HasPrefix(ie.Problem, "MD5 of the decoded audio")
+		cuts := [][2]int64{{0, total / 3}, {max(0, total/3-10), 2 * total / 3}, {2 * total / 3, total}}
+		all := true
+		for _, c := range cuts {
+			s, err := d.Section(c[0], c[1])
+			if err != nil {
+				t.Fatalf("Section(%d, %d) of %d: %v", c[0], c[1], total, err)
+			}
+			got, err := readAllQuiet(s)
+			if err != nil {
+				all = false
+				continue
+			}
+			if int64(len(got)) != (c[1]-c[0])*ch {
+				t.Fatalf("section %v: %d samples, want %d", c, len(got), (c[1]-c[0])*ch)
+			}
+			if clean && int64(len(want)) == total*ch {
+				w := want[c[0]*ch : c[1]*ch]
+				for i := range w {
+					if got[i] != w[i] {
+						t.Fatalf("section %v: sample %d = %v, one pass %v", c, i, got[i], w[i])
+					}
+				}
+			}
+		}
+		if !all || !clean || int64(len(want)) != total*ch {
+			return
+		}
+		err := d.CheckSections()
+		if (err == nil) != (onePass == nil) || err != nil && err.Error() != onePass.Error() {
+			t.Fatalf("CheckSections %v, one pass %v", err, onePass)
+		}
+	})
 }
