@@ -64,3 +64,40 @@ func TestFusedStereoMatchesPlain(t *testing.T) {
 		}
 	}
 }
+
+// TestPackMatchesPlainLayout holds sampleHash.pack, with its per-width
+// and per-channel-count loops, to the layout RFC 9639 section 8.2 gives
+// the MD5 written out byte by byte: every sample of every channel,
+// interleaved, signed little-endian in ceil(bits/8) bytes. Every channel
+// count 1 to 8 at 8, 16, 24 and 32 bits.
+func TestPackMatchesPlainLayout(t *testing.T) {
+	for _, bits := range []int{8, 16, 24, 32} {
+		for ch := 1; ch <= 8; ch++ {
+			n := 300
+			channels := make([][]int32, ch)
+			var spread uint32
+			for c := range channels {
+				channels[c] = randomBlock(uint64(bits*100+ch*10+c), n, uint(bits))
+				for _, v := range channels[c] {
+					spread |= fold(v)
+				}
+			}
+			width := (bits + 7) / 8
+			var want []byte
+			for i := range n {
+				for c := range channels {
+					for k := range width {
+						want = append(want, byte(channels[c][i]>>(8*k)))
+					}
+				}
+			}
+			s := newSampleHash(bits)
+			if got := s.pack(channels, n); got != spread {
+				t.Errorf("%d bits, %d channels: spread %#x, want %#x", bits, ch, got, spread)
+			}
+			if !bytes.Equal(s.buf, want) {
+				t.Errorf("%d bits, %d channels: pack lays out other bytes than the plain layout", bits, ch)
+			}
+		}
+	}
+}

@@ -56,8 +56,32 @@ func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
 			o := buf[4*i : 4*i+4 : 4*i+4]
 			binary.LittleEndian.PutUint32(o, uint32(uint16(a))|uint32(b)<<16)
 		}
-	case s.width == 3 || s.width == 4:
-		// The fourth byte of a 3-byte sample is overwritten by the next.
+	case s.width == 3:
+		// A pass per channel, at the stride of a frame: the fourth byte
+		// of a 3-byte sample lands on the next channel's first byte,
+		// which that channel's pass (after this one) writes again; the
+		// last channel, whose fourth byte would be the next frame's,
+		// writes three bytes.
+		stride := 3 * len(channels)
+		last := len(channels) - 1
+		for c, x := range channels[:last] {
+			x = x[:n]
+			j := 3 * c
+			for _, v := range x {
+				spread |= fold(v)
+				binary.LittleEndian.PutUint32(buf[j:j+4:j+4], uint32(v))
+				j += stride
+			}
+		}
+		j := 3 * last
+		for _, v := range channels[last][:n] {
+			spread |= fold(v)
+			o := buf[j : j+3 : j+3]
+			binary.LittleEndian.PutUint16(o, uint16(v))
+			o[2] = byte(v >> 16)
+			j += stride
+		}
+	case s.width == 4:
 		j := 0
 		for i := range n {
 			for _, c := range channels {
