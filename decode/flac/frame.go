@@ -250,22 +250,7 @@ func (f *frameDecoder) residual(dst []int32, order int) error {
 	return nil
 }
 
-// pair turns one sample pair of a stereo-coded frame back into left and
-// right (RFC 9639, section 4.2).
-func pair(assignment int, a, b int32) (int32, int32) {
-	switch assignment {
-	case leftSide:
-		return a, a - b
-	case sideRight:
-		return a + b, b
-	case midSide:
-		m := a<<1 | b&1
-		return (m + b) >> 1, (m - b) >> 1
-	}
-	return a, b
-}
-
-// decorrelateSpread decorrelates a and b in place (see pair) and returns
+// decorrelateSpread decorrelates a and b in place (see decorrelate) and returns
 // the OR of the folded samples.
 func decorrelateSpread(assignment int, a, b []int32) uint32 {
 	b = b[:len(a)]

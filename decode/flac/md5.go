@@ -110,7 +110,7 @@ func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
 	return spread
 }
 
-// packStereo decorrelates the stereo pair a, b in place (see pair), lays
+// packStereo decorrelates the stereo pair a, b in place (see decorrelate), lays
 // the result out like pack and returns the OR of the folded samples: one
 // pass for what would be three.
 func (s *sampleHash) packStereo(assignment int, a, b []int32) uint32 {
@@ -122,19 +122,62 @@ func (s *sampleHash) packStereo(assignment int, a, b []int32) uint32 {
 	}
 	buf := s.buf[:size+8]
 	var spread uint32
-	switch s.width {
-	case 3:
+	// A loop per width and mode, the mode's arithmetic as in decorrelate.
+	switch {
+	case s.width == 3 && assignment == leftSide:
 		for i := range a {
-			l, r := pair(assignment, a[i], b[i])
+			l := a[i]
+			r := l - b[i]
+			b[i] = r
+			spread |= fold(l) | fold(r)
+			o := buf[6*i : 6*i+8 : 6*i+8]
+			binary.LittleEndian.PutUint32(o[0:4], uint32(l))
+			binary.LittleEndian.PutUint32(o[3:7], uint32(r))
+		}
+	case s.width == 3 && assignment == sideRight:
+		for i := range a {
+			r := b[i]
+			l := a[i] + r
+			a[i] = l
+			spread |= fold(l) | fold(r)
+			o := buf[6*i : 6*i+8 : 6*i+8]
+			binary.LittleEndian.PutUint32(o[0:4], uint32(l))
+			binary.LittleEndian.PutUint32(o[3:7], uint32(r))
+		}
+	case s.width == 3 && assignment == midSide:
+		for i := range a {
+			m, sd := a[i], b[i]
+			m = m<<1 | sd&1
+			l, r := (m+sd)>>1, (m-sd)>>1
 			a[i], b[i] = l, r
 			spread |= fold(l) | fold(r)
 			o := buf[6*i : 6*i+8 : 6*i+8]
 			binary.LittleEndian.PutUint32(o[0:4], uint32(l))
 			binary.LittleEndian.PutUint32(o[3:7], uint32(r))
 		}
-	case 2:
+	case s.width == 2 && assignment == leftSide:
 		for i := range a {
-			l, r := pair(assignment, a[i], b[i])
+			l := a[i]
+			r := l - b[i]
+			b[i] = r
+			spread |= fold(l) | fold(r)
+			o := buf[4*i : 4*i+4 : 4*i+4]
+			binary.LittleEndian.PutUint32(o, uint32(uint16(l))|uint32(r)<<16)
+		}
+	case s.width == 2 && assignment == sideRight:
+		for i := range a {
+			r := b[i]
+			l := a[i] + r
+			a[i] = l
+			spread |= fold(l) | fold(r)
+			o := buf[4*i : 4*i+4 : 4*i+4]
+			binary.LittleEndian.PutUint32(o, uint32(uint16(l))|uint32(r)<<16)
+		}
+	case s.width == 2 && assignment == midSide:
+		for i := range a {
+			m, sd := a[i], b[i]
+			m = m<<1 | sd&1
+			l, r := (m+sd)>>1, (m-sd)>>1
 			a[i], b[i] = l, r
 			spread |= fold(l) | fold(r)
 			o := buf[4*i : 4*i+4 : 4*i+4]
