@@ -187,13 +187,13 @@ type md5Chain struct {
 	busy       bool      // a goroutine is hashing
 	waiting    []*md5Part
 	held       int      // bytes in waiting
-	free       [][]byte // buffers of drained parts, for reuse
+	free       [][]byte // drained chunks, for reuse
 }
 
 // maxHeldBytes bounds the bytes waiting in a chain while the hash is at
 // work: a section whose bytes would go beyond it waits. Beyond that only
 // the sections of one round (one per core, maxSectionBytes each) wait.
-const maxHeldBytes = 4 * maxSectionBytes
+const maxHeldBytes = 2 * maxSectionBytes
 
 func newMD5Chain(frameBytes int) *md5Chain {
 	c := &md5Chain{h: md5.New(), frameBytes: frameBytes}
@@ -205,7 +205,36 @@ func newMD5Chain(frameBytes int) *md5Chain {
 // them: frames from sample first on.
 type md5Part struct {
 	first uint64
-	pend  []byte
+	pend  [][]byte // chunks of chunkBytes capacity, filled in order
+	size  int      // bytes in pend
+}
+
+// chunkBytes is the size of the chunks waiting bytes are kept in; at most
+// maxFreeChunks drained ones are kept for reuse, so the memory held is the
+// bytes waiting rounded up to chunks, plus that reserve.
+const (
+	chunkBytes    = 1 << 20
+	maxFreeChunks = 8
+)
+
+// add appends data to p's chunks, taking chunks from free or making them.
+func (p *md5Part) add(data []byte, free *[][]byte) {
+	p.size += len(data)
+	for len(data) > 0 {
+		if k := len(p.pend); k == 0 || len(p.pend[k-1]) == chunkBytes {
+			var c []byte
+			if f := len(*free); f > 0 {
+				c, *free = (*free)[f-1], (*free)[:f-1]
+			} else {
+				c = make([]byte, 0, chunkBytes)
+			}
+			p.pend = append(p.pend, c)
+		}
+		last := &p.pend[len(p.pend)-1]
+		n := min(len(data), chunkBytes-len(*last))
+		*last = append(*last, data[:n]...)
+		data = data[n:]
+	}
 }
 
 // feed hashes data (whole frames from sample first on) if it continues
@@ -227,19 +256,16 @@ func (c *md5Chain) feed(p *md5Part, first uint64, data []byte) {
 		}
 		if len(p.pend) == 0 {
 			p.first = first
-			if k := len(c.free); k > 0 {
-				p.pend, c.free = c.free[k-1], c.free[:k-1]
-			}
 			c.waiting = append(c.waiting, p)
 		}
-		p.pend = append(p.pend, data...)
+		p.add(data, &c.free)
 		c.held += len(data)
 		c.mu.Unlock()
 		return
 	}
 	c.busy = true
 	c.mu.Unlock()
-	c.write(first, data)
+	c.write(first, len(data), data)
 	c.mu.Lock()
 	if c.reachable() < 0 {
 		c.busy = false
@@ -262,17 +288,26 @@ func (c *md5Chain) reachable() int {
 	return -1
 }
 
-// write hashes what data holds past the samples hashed; first is at most
-// c.next. Only the holder of busy calls it.
-func (c *md5Chain) write(first uint64, data []byte) {
-	end := first + uint64(len(data)/c.frameBytes)
+// write hashes what the chunks (size bytes in all, whole frames from
+// sample first on) hold past the samples hashed; first is at most c.next.
+// Only the holder of busy calls it.
+func (c *md5Chain) write(first uint64, size int, chunks ...[]byte) {
+	end := first + uint64(size/c.frameBytes)
 	c.mu.Lock()
 	next := c.next
 	c.mu.Unlock()
 	if end <= next {
 		return
 	}
-	c.h.Write(data[int(next-first)*c.frameBytes:])
+	skip := int(next-first) * c.frameBytes
+	for _, b := range chunks {
+		if skip >= len(b) {
+			skip -= len(b)
+			continue
+		}
+		c.h.Write(b[skip:])
+		skip = 0
+	}
 	c.mu.Lock()
 	c.next = end
 	c.mu.Unlock()
@@ -292,13 +327,17 @@ func (c *md5Chain) drain() {
 		}
 		p := c.waiting[i]
 		c.waiting = append(c.waiting[:i], c.waiting[i+1:]...)
-		buf, first := p.pend, p.first
-		p.pend = nil
+		chunks, first, size := p.pend, p.first, p.size
+		p.pend, p.size = nil, 0
 		c.mu.Unlock()
-		c.write(first, buf)
+		c.write(first, size, chunks...)
 		c.mu.Lock()
-		c.held -= len(buf)
-		c.free = append(c.free, buf[:0])
+		c.held -= size
+		for _, b := range chunks {
+			if len(c.free) < maxFreeChunks {
+				c.free = append(c.free, b[:0])
+			}
+		}
 		c.cond.Broadcast()
 	}
 }

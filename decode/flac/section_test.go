@@ -2,15 +2,22 @@ package flac
 
 import (
 	"bytes"
+	"context"
 	"errors"
 	"io"
 	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"testing"
+	"time"
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/internal/audiotest"
+	kmeasure "github.com/kweigh/kweigh/measure"
 )
 
 // readAll decodes d to its end and returns the samples and the final
@@ -282,4 +289,72 @@ func FuzzFLACSections(f *testing.F) {
 			t.Fatalf("CheckSections %v, one pass %v", err, onePass)
 		}
 	})
+}
+
+// TestSectionsMemoryFlat measures a 5-minute and a 25-minute stream on
+// two cores through sections (package measure, MD5 checked across them)
+// and compares the peak live heap sampled every 20 ms while measuring: the
+// bytes that wait for the MD5 are bounded (maxHeldBytes and the section
+// length), not by the file's length.
+func TestSectionsMemoryFlat(t *testing.T) {
+	if testing.Short() {
+		t.Skip("measures 30 minutes of audio")
+	}
+	level := func(i int) int16 { return int16(i%200*100 - 10000) }
+	peak := func(minutes int) uint64 {
+		data, _ := constantFLAC(48000*60*minutes/4096, level)
+		path := filepath.Join(t.TempDir(), "long.flac")
+		if err := os.WriteFile(path, data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		f, err := os.Open(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer f.Close()
+		d, err := NewDecoder(f, int64(len(data)), DefaultOptions())
+		if err != nil {
+			t.Fatal(err)
+		}
+		runtime.GC()
+		var most atomic.Uint64
+		stop := make(chan struct{})
+		done := make(chan struct{})
+		go func() {
+			defer close(done)
+			var ms runtime.MemStats
+			for {
+				runtime.GC() // the live heap, not the garbage between collections
+				runtime.ReadMemStats(&ms)
+				if ms.HeapAlloc > most.Load() {
+					most.Store(ms.HeapAlloc)
+				}
+				select {
+				case <-stop:
+					return
+				case <-time.After(20 * time.Millisecond):
+				}
+			}
+		}()
+		m := kmeasure.Stream(context.Background(), path, d, kmeasure.Options{Cores: kmeasure.NewCores(2)})
+		close(stop)
+		<-done
+		if m.Err != nil || m.Damaged != "" {
+			t.Fatalf("%d min: %v %s", minutes, m.Err, m.Damaged)
+		}
+		if d.chain == nil || !d.MD5Verified() {
+			t.Fatalf("%d min: not measured in sections with the MD5 checked", minutes)
+		}
+		return most.Load()
+	}
+	short, long := peak(5), peak(25)
+	// The design's bound on what waits for the MD5: maxHeldBytes while
+	// the hash is at work, plus a section's bytes for each of the two
+	// cores. These frames decode far faster than the MD5 runs, so the
+	// longer file reaches the bound; a longer one still could not pass it.
+	bound := uint64(maxHeldBytes + 2*maxSectionBytes)
+	t.Logf("peak live heap measuring in sections: 5 min %d B, 25 min %d B (bound on the growth %d B)", short, long, bound)
+	if long > short+bound {
+		t.Errorf("peak heap grew from %d B (5 min) to %d B (25 min), more than the %d B bound", short, long, bound)
+	}
 }
