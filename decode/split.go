@@ -1,10 +1,10 @@
 package decode
 
 // Splitter is implemented by decoders whose audio can be read from any
-// frame on without decoding what comes before (PCM in WAV, RF64 and AIFF):
-// package measure cuts a long file into sections and measures them on
-// several cores at once (FLAC finds a frame by its seek table or by
-// bisection on verified frame headers). Decoders of formats that need the
+// frame on without decoding what comes before (PCM in WAV, RF64 and AIFF;
+// FLAC, which finds a frame by its seek table or by bisection on verified
+// frame headers): package measure cuts a long file into sections and
+// measures them on several cores at once. Decoders of formats that need the
 // stream before a point to decode it (MP3's bit reservoir) do not
 // implement it until they can find exact entry points.
 type Splitter interface {
