@@ -1,11 +1,11 @@
 package decode
 
 // Splitter is implemented by decoders whose audio can be read from any
-// frame on without decoding what comes before (PCM in WAV, RF64 and AIFF):
-// package measure cuts a long file into sections and measures them on
-// several cores at once. Decoders of formats that need the stream before a
-// point to decode it (FLAC without a seek table, MP3's bit reservoir) do
-// not implement it until they can find exact entry points.
+// frame on (PCM in WAV, RF64 and AIFF; FLAC, which finds a frame by its
+// seek table or by bisection on verified frame headers; MP3, which starts
+// a few frames early for the bit reservoir and the filter-bank state and
+// drops what it decoded before the section): package measure cuts a long
+// file into sections and measures them on several cores at once.
 type Splitter interface {
 	// SplitFrames returns how many frames Section can reach: every frame
 	// of the stream when it is sound, or 0 when it must be read in one
@@ -27,4 +27,19 @@ func Splittable(d Decoder) (Splitter, bool) {
 	}
 	s, ok := d.(Splitter)
 	return s, ok
+}
+
+// SectionChecker is implemented by a Splitter whose stream carries a
+// checksum of the whole audio in order (FLAC's MD5): its sections feed
+// one running check, which needs them short enough that the audio waiting
+// for it stays small, and which is read out once every section is done.
+type SectionChecker interface {
+	// MaxSectionFrames is the longest section the checker wants (0: no
+	// limit), keeping the bytes that wait for the check bounded.
+	MaxSectionFrames() int64
+	// CheckSections, called after sections covering frames
+	// [0, SplitFrames()) have all been read, returns nil when the check
+	// holds, the *IntegrityError one pass would have ended with when it
+	// fails, or another error when the sections did not cover the stream.
+	CheckSections() error
 }

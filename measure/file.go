@@ -210,6 +210,10 @@ func stream(ctx context.Context, path string, d decode.Decoder, opt Options) *Me
 		return h.clipped > 0 || (h.haveWindow && h.minWindow < *ev.lim.PhaseLimit)
 	}
 	frames, err := measureSplit(ctx, d, info, layout, weights, meter, fold, hyg, budget, redo)
+	var damage *decode.IntegrityError
+	if frames >= 0 && errors.As(err, &damage) {
+		m.Damaged, err = damage.Error(), nil // as onePass records it
+	}
 	if err != nil {
 		return fail(err)
 	}

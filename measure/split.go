@@ -125,6 +125,14 @@ func measureSplit(ctx context.Context, d decode.Decoder, info decode.Info, layou
 	length := (total + cores - 1) / cores
 	length = min(max(length, minSectionS*rate), maxSectionS*rate)
 	length = (length + unit - 1) / unit * unit
+	// A stream checksummed as a whole (FLAC's MD5) wants sections short
+	// enough that the audio waiting for the check stays small.
+	checker, _ := sp.(decode.SectionChecker)
+	if checker != nil {
+		if most := checker.MaxSectionFrames(); most > 0 {
+			length = min(length, max(most/unit*unit, unit))
+		}
+	}
 
 	blank := *hyg // the probes' configuration, before anything is joined
 	restart := func() {
@@ -175,6 +183,13 @@ func measureSplit(ctx context.Context, d decode.Decoder, info decode.Info, layou
 	if redo != nil && redo(hyg) {
 		restart()
 		return -1, nil
+	}
+	if checker != nil {
+		// An *decode.IntegrityError here is the damage one pass reports at
+		// its end; the caller records it the same way.
+		if err := checker.CheckSections(); err != nil {
+			return frames, err
+		}
 	}
 	return frames, nil
 }

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"sync"
 
 	"github.com/kweigh/kweigh/decode"
 )
@@ -41,11 +42,23 @@ type Decoder struct {
 	lostTotal   uint64
 	lostUnknown bool // the stream ends in damage and gives no length
 
-	hash      *sampleHash // nil when MD5 is not checked
-	verified  bool
-	finished  bool  // no more frames will be read
-	finishErr error // returned once the delivered frames run out
-	notes     []string
+	hash     *sampleHash // nil when MD5 is not checked
+	verified bool
+
+	src        decode.Source // for Section, read with ReadAt only
+	size       int64
+	audioStart int64
+	seekAt     int64 // SEEKTABLE body and points (see locate)
+	seekPoints int64
+	splitOnce  sync.Once
+	splitTotal int64  // SplitFrames
+	probeBuf   []byte // scratch of probe
+	chainOnce  sync.Once
+	chain      *md5Chain    // the MD5 of sections (see section.go)
+	sec        *sectionSpan // set for a decoder made by Section
+	finished   bool         // no more frames will be read
+	finishErr  error        // returned once the delivered frames run out
+	notes      []string
 }
 
 // damageRecord is one damaged stretch of the stream.
@@ -90,10 +103,15 @@ func NewDecoder(src decode.Source, size int64, opts Options) (*Decoder, error) {
 	}
 	layout, mask, note := channelLayout(md, si.channels)
 	d := &Decoder{
-		in:    newInput(src, md.audioStart, size),
-		si:    si,
-		opts:  opts,
-		scale: 1 / float64(int64(1)<<(si.bits-1)),
+		in:         newInput(src, md.audioStart, size),
+		si:         si,
+		opts:       opts,
+		src:        src,
+		size:       size,
+		audioStart: md.audioStart,
+		seekAt:     md.seekAt,
+		seekPoints: md.seekPoints,
+		scale:      1 / float64(int64(1)<<(si.bits-1)),
 		info: decode.Info{
 			Container:     "flac",
 			Codec:         "flac",
@@ -229,6 +247,9 @@ func (d *Decoder) deliver(dst []float64, pos, k int) {
 // *decode.IntegrityError when anything was damaged, missing or failed the
 // MD5 check.
 func (d *Decoder) next() error {
+	if d.sec != nil && d.nextSample >= d.sec.to {
+		return io.EOF
+	}
 	for {
 		d.in.fill(d.lowWater)
 		if d.in.err != nil {
@@ -236,6 +257,9 @@ func (d *Decoder) next() error {
 		}
 		b := d.in.bytes()
 		if len(b) == 0 {
+			if d.sec != nil {
+				return fmt.Errorf("flac: the stream ends at sample %d, inside the section that ends at %d", d.nextSample, d.sec.to)
+			}
 			return d.endOfStream()
 		}
 		if d.searching && (len(b) < 2 || b[0] != 0xFF || b[1]&0xFE != 0xF8) {
@@ -246,6 +270,11 @@ func (d *Decoder) next() error {
 		problem, isFrame := d.tryFrame()
 		if problem == "" {
 			return nil
+		}
+		if d.sec != nil {
+			// A section does not resynchronise: one pass reports the
+			// damage in order.
+			return fmt.Errorf("flac: frame at byte %d: %s", off, problem)
 		}
 		if !d.searching {
 			d.searching = true
@@ -321,13 +350,7 @@ func (d *Decoder) tryFrame() (problem string, isFrame bool) {
 			return "the file ends inside the frame", true
 		}
 	}
-	samples := d.fd.samples[:h.channels]
-	var spread uint32
-	if d.hash != nil {
-		spread = d.hash.pack(samples, h.blockSize)
-	} else {
-		spread = spreadOf(samples, h.blockSize)
-	}
+	spread := d.fd.finish(d.hash, h.channels, h.blockSize)
 	if bits < 32 && spread>>(bits-1) != 0 {
 		return d.outOfRange(h.channels, h.blockSize, bits), true
 	}
@@ -355,13 +378,20 @@ func (d *Decoder) tryFrame() (problem string, isFrame bool) {
 		}
 	}
 	if d.hash != nil && d.damageCount == 0 {
-		d.hash.write()
+		if d.sec != nil {
+			d.sec.feed(d.hash, first, h.blockSize)
+		} else {
+			d.hash.write()
+		}
 	}
 	d.nextFrame = h.number + 1
 	d.nextSample = first + uint64(h.blockSize)
 	d.decoded += uint64(h.blockSize)
 	d.frameIndex++
 	d.curLen, d.curPos = h.blockSize, 0
+	if d.sec != nil {
+		d.curLen, d.curPos = d.sec.within(first, h.blockSize)
+	}
 	return "", true
 }
 

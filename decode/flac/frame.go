@@ -21,6 +21,30 @@ type frameDecoder struct {
 	samples [8][]int32 // the samples of each channel of the current frame
 	wide    []int64    // the 33-bit side channel of a 32-bit stream
 	coefs   [32]int32  // LPC coefficients of the current subframe
+
+	// assignment is the stereo decorrelation decode leaves undone for
+	// finish (independent when there is none or it is done).
+	assignment int
+}
+
+// finish completes the frame decode left: the stereo decorrelation, in
+// the same pass as the MD5 layout of the samples (hash.pack) or, without
+// MD5, as the range check. It returns the OR of the folded samples (see
+// fold).
+func (f *frameDecoder) finish(hash *sampleHash, channels, n int) uint32 {
+	samples := f.samples[:channels]
+	a := f.assignment
+	f.assignment = independent
+	if a != independent {
+		if hash != nil {
+			return hash.packStereo(a, samples[0][:n], samples[1][:n])
+		}
+		return decorrelateSpread(a, samples[0][:n], samples[1][:n])
+	}
+	if hash != nil {
+		return hash.pack(samples, n)
+	}
+	return spreadOf(samples, n)
 }
 
 // grow makes room for blockSize samples in the first channels buffers.
@@ -74,10 +98,13 @@ func (f *frameDecoder) decode(data []byte, h *frameHeader, bits int) (int, error
 	if got := crc.Update16(0, data[:n-2]); got != want {
 		return 0, fmt.Errorf("frame CRC-16 is %#04x, computed %#04x", want, got)
 	}
+	f.assignment = independent
 	if wideSide {
 		f.decorrelateWide(h.assignment)
 	} else {
-		decorrelate(h.assignment, f.samples[0], f.samples[1])
+		// Left to finish, which fuses it with the MD5 layout or the
+		// range check.
+		f.assignment = h.assignment
 	}
 	return n, nil
 }
@@ -223,8 +250,45 @@ func (f *frameDecoder) residual(dst []int32, order int) error {
 	return nil
 }
 
+// decorrelateSpread decorrelates a and b in place (see decorrelate) and returns
+// the OR of the folded samples.
+func decorrelateSpread(assignment int, a, b []int32) uint32 {
+	b = b[:len(a)]
+	var sa, sb uint32
+	switch assignment {
+	case leftSide:
+		for i, l := range a {
+			r := l - b[i]
+			b[i] = r
+			sa |= fold(l)
+			sb |= fold(r)
+		}
+	case sideRight:
+		for i, r := range b {
+			l := a[i] + r
+			a[i] = l
+			sa |= fold(l)
+			sb |= fold(r)
+		}
+	case midSide:
+		for i, m := range a {
+			s := b[i]
+			m = m<<1 | s&1
+			l, r := (m+s)>>1, (m-s)>>1
+			a[i], b[i] = l, r
+			sa |= fold(l)
+			sb |= fold(r)
+		}
+	default:
+		return spreadOf([][]int32{a, b}, len(a))
+	}
+	return sa | sb
+}
+
 // decorrelate turns the channel pair of a stereo-coded frame back into left
-// and right (RFC 9639, section 4.2).
+// and right (RFC 9639, section 4.2), a loop per mode: the plain form the
+// fused loops (decorrelateSpread, sampleHash.packStereo) are tested
+// against.
 func decorrelate(assignment int, a, b []int32) {
 	switch assignment {
 	case leftSide:

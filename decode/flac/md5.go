@@ -56,8 +56,32 @@ func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
 			o := buf[4*i : 4*i+4 : 4*i+4]
 			binary.LittleEndian.PutUint32(o, uint32(uint16(a))|uint32(b)<<16)
 		}
-	case s.width == 3 || s.width == 4:
-		// The fourth byte of a 3-byte sample is overwritten by the next.
+	case s.width == 3:
+		// A pass per channel, at the stride of a frame: the fourth byte
+		// of a 3-byte sample lands on the next channel's first byte,
+		// which that channel's pass (after this one) writes again; the
+		// last channel, whose fourth byte would be the next frame's,
+		// writes three bytes.
+		stride := 3 * len(channels)
+		last := len(channels) - 1
+		for c, x := range channels[:last] {
+			x = x[:n]
+			j := 3 * c
+			for _, v := range x {
+				spread |= fold(v)
+				binary.LittleEndian.PutUint32(buf[j:j+4:j+4], uint32(v))
+				j += stride
+			}
+		}
+		j := 3 * last
+		for _, v := range channels[last][:n] {
+			spread |= fold(v)
+			o := buf[j : j+3 : j+3]
+			binary.LittleEndian.PutUint16(o, uint16(v))
+			o[2] = byte(v >> 16)
+			j += stride
+		}
+	case s.width == 4:
 		j := 0
 		for i := range n {
 			for _, c := range channels {
@@ -81,6 +105,88 @@ func (s *sampleHash) pack(channels [][]int32, n int) uint32 {
 				j += s.width
 			}
 		}
+	}
+	s.buf = s.buf[:size]
+	return spread
+}
+
+// packStereo decorrelates the stereo pair a, b in place (see decorrelate), lays
+// the result out like pack and returns the OR of the folded samples: one
+// pass for what would be three.
+func (s *sampleHash) packStereo(assignment int, a, b []int32) uint32 {
+	n := len(a)
+	b = b[:n]
+	size := 2 * n * s.width
+	if cap(s.buf) < size+8 {
+		s.buf = make([]byte, size+8)
+	}
+	buf := s.buf[:size+8]
+	var spread uint32
+	// A loop per width and mode, the mode's arithmetic as in decorrelate.
+	switch {
+	case s.width == 3 && assignment == leftSide:
+		for i := range a {
+			l := a[i]
+			r := l - b[i]
+			b[i] = r
+			spread |= fold(l) | fold(r)
+			o := buf[6*i : 6*i+8 : 6*i+8]
+			binary.LittleEndian.PutUint32(o[0:4], uint32(l))
+			binary.LittleEndian.PutUint32(o[3:7], uint32(r))
+		}
+	case s.width == 3 && assignment == sideRight:
+		for i := range a {
+			r := b[i]
+			l := a[i] + r
+			a[i] = l
+			spread |= fold(l) | fold(r)
+			o := buf[6*i : 6*i+8 : 6*i+8]
+			binary.LittleEndian.PutUint32(o[0:4], uint32(l))
+			binary.LittleEndian.PutUint32(o[3:7], uint32(r))
+		}
+	case s.width == 3 && assignment == midSide:
+		for i := range a {
+			m, sd := a[i], b[i]
+			m = m<<1 | sd&1
+			l, r := (m+sd)>>1, (m-sd)>>1
+			a[i], b[i] = l, r
+			spread |= fold(l) | fold(r)
+			o := buf[6*i : 6*i+8 : 6*i+8]
+			binary.LittleEndian.PutUint32(o[0:4], uint32(l))
+			binary.LittleEndian.PutUint32(o[3:7], uint32(r))
+		}
+	case s.width == 2 && assignment == leftSide:
+		for i := range a {
+			l := a[i]
+			r := l - b[i]
+			b[i] = r
+			spread |= fold(l) | fold(r)
+			o := buf[4*i : 4*i+4 : 4*i+4]
+			binary.LittleEndian.PutUint32(o, uint32(uint16(l))|uint32(r)<<16)
+		}
+	case s.width == 2 && assignment == sideRight:
+		for i := range a {
+			r := b[i]
+			l := a[i] + r
+			a[i] = l
+			spread |= fold(l) | fold(r)
+			o := buf[4*i : 4*i+4 : 4*i+4]
+			binary.LittleEndian.PutUint32(o, uint32(uint16(l))|uint32(r)<<16)
+		}
+	case s.width == 2 && assignment == midSide:
+		for i := range a {
+			m, sd := a[i], b[i]
+			m = m<<1 | sd&1
+			l, r := (m+sd)>>1, (m-sd)>>1
+			a[i], b[i] = l, r
+			spread |= fold(l) | fold(r)
+			o := buf[4*i : 4*i+4 : 4*i+4]
+			binary.LittleEndian.PutUint32(o, uint32(uint16(l))|uint32(r)<<16)
+		}
+	default:
+		decorrelate(assignment, a, b)
+		ch := [2][]int32{a, b}
+		return s.pack(ch[:], n)
 	}
 	s.buf = s.buf[:size]
 	return spread

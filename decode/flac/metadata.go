@@ -13,6 +13,7 @@ import (
 // Metadata block types (RFC 9639, section 8.1).
 const (
 	blockStreamInfo    = 0
+	blockSeekTable     = 3
 	blockVorbisComment = 4
 	blockInvalid       = 127
 )
@@ -55,6 +56,8 @@ type metadata struct {
 	maskValue  string
 	maskFound  bool
 	commentErr error // the Vorbis comment could not be read
+	seekAt     int64 // offset of the SEEKTABLE body, 0 if none
+	seekPoints int64 // its number of 18-byte seek points
 }
 
 // readMetadata walks the metadata blocks that follow the "fLaC" signature
@@ -94,6 +97,10 @@ func readMetadata(r io.ReaderAt, start, size int64) (*metadata, error) {
 				return nil, &metadataError{body, "the file ends inside STREAMINFO", io.ErrUnexpectedEOF}
 			}
 			md.info = parseStreamInfo(b[:])
+		case blockSeekTable:
+			if md.seekAt == 0 {
+				md.seekAt, md.seekPoints = body, length/seekPointSize
+			}
 		case blockVorbisComment:
 			if !md.maskFound && md.commentErr == nil {
 				md.maskValue, md.maskFound, md.commentErr = findTag(io.NewSectionReader(r, body, length), maskTag)

@@ -45,10 +45,12 @@ func restoreFixed(x []int32, order int) {
 // restoreLPC restores x[len(c):] in place from the residual it holds, with
 // the quantised linear predictor c and shift (RFC 9639, section 9.2.6):
 // sample i is its residual plus (Σ c[j]·x[i-1-j]) >> shift, the sum in 64
-// bits. Orders up to maxUnrolled run a loop written out for the order
-// (lpc_orders.go); restoreLPCPlain is the reference for all of them.
+// bits. On amd64 an assembly loop per order (lpc_amd64.s) runs every
+// order; elsewhere orders up to maxUnrolled run a loop written out for the
+// order in Go (lpc_orders.go). restoreLPCPlain is the reference for all of
+// them.
 func restoreLPC(x []int32, c []int32, shift uint) {
-	if !restoreLPCUnrolled(x, c, shift) {
+	if !lpcKernel(x, c, shift) {
 		restoreLPCPlain(x, c, shift)
 	}
 }

@@ -42,6 +42,42 @@ func TestLPCUnrolledMatchesPlain(t *testing.T) {
 	}
 }
 
+// TestLPCKernelMatchesGo holds the assembly LPC loops (amd64) to their Go
+// twins, the loops of lpc_orders.go and the plain loop above maxUnrolled,
+// at every order, with samples and coefficients at the extremes of their
+// widths so the 64-bit sums and the 32-bit wrap of the residual add are
+// exercised too.
+func TestLPCKernelMatchesGo(t *testing.T) {
+	if !hasLPCAsm {
+		t.Skip("no assembly LPC loop in this build")
+	}
+	for order := 1; order <= 32; order++ {
+		for _, width := range []uint{16, 24, 32} {
+			coefs := randomBlock(uint64(order+7), order, 15)
+			base := randomBlock(uint64(order*31)+uint64(width), 1000, width)
+			for _, shift := range []uint{0, 9, 15, 31} {
+				want := append([]int32(nil), base...)
+				if !restoreLPCUnrolled(want, coefs, shift) {
+					restoreLPCPlain(want, coefs, shift)
+				}
+				kernels := []func([]int32, []int32, uint){lpcAsmWide}
+				if order <= 8 {
+					kernels = append(kernels, lpcRegsWide)
+				}
+				for k, kernel := range kernels {
+					got := append([]int32(nil), base...)
+					kernel(got, coefs, shift)
+					for i := range want {
+						if got[i] != want[i] {
+							t.Fatalf("kernel %d, order %d, %d-bit, shift %d: sample %d = %d, Go loop %d", k, order, width, shift, i, got[i], want[i])
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
 // TestFixedMatchesLPC checks the fixed predictors against the same
 // polynomials run as LPC coefficients with shift 0 (RFC 9639, section
 // 9.2.5, gives both forms).
@@ -87,6 +123,17 @@ func TestLPCOrdersGenerated(t *testing.T) {
 	}
 	if !bytes.Equal(got, want) {
 		t.Error("lpc_orders.go is out of date: run go generate ./decode/flac")
+	}
+	wantAsm, err := os.ReadFile("lpc_amd64.s")
+	if err != nil {
+		t.Fatal(err)
+	}
+	gotAsm, err := os.ReadFile(dir + "/lpc_amd64.s")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(gotAsm, wantAsm) {
+		t.Error("lpc_amd64.s is out of date: run go generate ./decode/flac")
 	}
 }
 

@@ -130,36 +130,13 @@ func (r *Reader) Rice(dst []int32, k uint) bool {
 		}
 		return wide>>32 == 0
 	}
-	data := r.data
-	right := 63 - k
 	for i := 0; i < len(dst); {
-		// The fast loop makes no calls, so its state stays in registers;
-		// it stops for a code longer than the bits at hand and near the
-		// end of data, and the code there is read by riceSlow.
-		acc, n, pos := r.acc, r.n, r.pos
-		for ; i < len(dst); i++ {
-			if n < 32 {
-				if pos+8 > len(data) {
-					break
-				}
-				acc |= binary.BigEndian.Uint64(data[pos:pos+8:pos+8]) >> n
-				pos += int((63 - n) >> 3)
-				n |= 56
-			}
-			lz := uint(bits.LeadingZeros64(acc)) // 64 when acc is 0
-			total := lz + 1 + k
-			if total > n {
-				break
-			}
-			// acc<<lz starts with the terminating one bit; shifted down
-			// it is 2^k plus the k low bits, and (lz-1)<<k takes the
-			// 2^k off again.
-			v := (uint64(lz)-1)<<k + acc<<(lz&63)>>right
-			acc <<= total & 63
-			n -= total
-			dst[i] = int32(uint32(v>>1)) ^ -int32(uint32(v&1))
-		}
-		r.acc, r.n, r.pos = acc, n, pos
+		// riceRun takes every code whose quotient and low bits are in the
+		// accumulator (nearly all of them) and stops for a longer code or
+		// near the end of data; the code there is read by riceSlow.
+		var m int
+		m, r.acc, r.n, r.pos = riceRun(dst[i:], r.data, r.acc, r.n, r.pos, k)
+		i += m
 		if i == len(dst) {
 			break
 		}
