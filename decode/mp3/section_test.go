@@ -221,3 +221,30 @@ func FuzzSections(f *testing.F) {
 		}
 	})
 }
+
+// TestFrameIndexSparse: the index keeps every indexStride-th frame's
+// offset only, so a 2-hour 48 kHz stream (300 000 frames of 1 152 samples)
+// costs 8 bytes per 32 frames (80 KB in chunks), not 8 bytes a frame (2.4 MB):
+// memory stays flat in practice whatever the length.
+func TestFrameIndexSparse(t *testing.T) {
+	const frames = 2 * 3600 * 48000 / 1152
+	var x frameIndex
+	for i := int64(0); i < frames; i++ {
+		x.add(417 * i)
+	}
+	entries := 0
+	for _, c := range x.chunks {
+		entries += len(c)
+	}
+	if want := (frames + indexStride - 1) / indexStride; entries != want {
+		t.Errorf("%d entries for %d frames, want %d", entries, frames, want)
+	}
+	if bytes := 8 * cap(x.chunks[0]) * len(x.chunks); bytes > 90_000 {
+		t.Errorf("index of a 2-hour stream holds %d bytes", bytes)
+	}
+	for _, i := range []int64{0, indexStride, 1000 * indexStride, (frames - 1) / indexStride * indexStride} {
+		if got := x.at(i); got != 417*i {
+			t.Errorf("frame %d at %d, want %d", i, got, 417*i)
+		}
+	}
+}
