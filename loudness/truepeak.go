@@ -124,6 +124,12 @@ type TruePeak struct {
 	// buf holds the 11 previous input samples followed by room for up to
 	// chunkFrames new ones: the interpolator reads one linear window.
 	buf []float64
+	// w32 is buf's float32 copy for the float32 4× interpolator
+	// (truepeak32.go), made afresh for every chunk that needs it.
+	w32 []float32
+	// wide makes the 4× interpolator float64 on every kernel set: for the
+	// tests that bound the float32 one against it.
+	wide bool
 }
 
 // chunkFrames is how many frames the meter and TruePeak process at a time:
@@ -173,9 +179,13 @@ func (t *TruePeak) peakBuffered(n int, floor float64) float64 {
 	w := t.buf[:history+n]
 	switch t.factor {
 	case 4:
-		floor = peakRuns(w, floor, t.gain, peak4)
+		if t.narrow4() {
+			floor = peakRuns(w, floor, t.gain*skipSlack, peak4, peak4Narrow, t.scratch32())
+		} else {
+			floor = peakRuns(w, floor, t.gain, peak4, nil, nil)
+		}
 	case 2:
-		floor = peakRuns(w, floor, t.gain, peak2)
+		floor = peakRuns(w, floor, t.gain, peak2, nil, nil)
 	default:
 		for _, v := range w[history:] {
 			floor = max(floor, math.Abs(v))
@@ -196,6 +206,11 @@ func (t *TruePeak) Flush(floor float64) float64 {
 	var w [2 * history]float64
 	copy(w[:], t.buf[:history])
 	if t.factor == 4 {
+		if t.narrow4() && narrowable(maxAbs(w[:])) {
+			var w32 [2 * history]float32
+			narrowGo(w32[:], w[:])
+			return peak4Narrow(w32[:], floor)
+		}
 		return peak4(w[:], floor)
 	}
 	return peak2(w[:], floor)
@@ -214,7 +229,12 @@ const skipRun = 32
 // never higher than the floor a run-by-run pass would use, so nothing is
 // skipped that could matter, and the maximum does not depend on the order
 // the windows are visited in).
-func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor float64) float64) float64 {
+//
+// With kernel32 (and w32, room for len(w) float32 values) the chunk is
+// converted to float32 and kernel32 does the work instead, unless the
+// chunk's largest |x| is not narrowable; gain must then include skipSlack.
+func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor float64) float64,
+	kernel32 func(w []float32, floor float64) float64, w32 []float32) float64 {
 	n := len(w) - history
 	if n <= 0 {
 		return floor
@@ -231,7 +251,19 @@ func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor f
 	if best*gain <= floor {
 		return floor
 	}
+	if kernel32 != nil {
+		if narrowable(best) {
+			w32 = w32[:len(w)]
+			narrow(w32, w)
+		} else {
+			kernel32 = nil
+		}
+	}
 	span := func(from, to int) { // runs from … to−1
+		if kernel32 != nil {
+			floor = kernel32(w32[from*skipRun:min(to*skipRun, n)+history], floor)
+			return
+		}
 		floor = kernel(w[from*skipRun:min(to*skipRun, n)+history], floor)
 	}
 	if !(runMax[bestRun]*gain <= floor) {
