@@ -230,7 +230,7 @@ const skipRun = 32
 // skipped that could matter, and the maximum does not depend on the order
 // the windows are visited in).
 //
-// With kernel32 (and w32, room for len(w) float32 values) the chunk is
+// With kernel32 (and w32, room for len(w) float32 values) each stretch is
 // converted to float32 and kernel32 does the work instead, unless the
 // chunk's largest |x| is not narrowable; gain must then include skipSlack.
 func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor float64) float64,
@@ -251,20 +251,17 @@ func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor f
 	if best*gain <= floor {
 		return floor
 	}
-	if kernel32 != nil {
-		if narrowable(best) {
-			w32 = w32[:len(w)]
-			narrow(w32, w)
-		} else {
-			kernel32 = nil
-		}
+	if kernel32 != nil && !narrowable(best) {
+		kernel32 = nil
 	}
 	span := func(from, to int) { // runs from … to−1
+		lo, hi := from*skipRun, min(to*skipRun, n)+history
 		if kernel32 != nil {
-			floor = kernel32(w32[from*skipRun:min(to*skipRun, n)+history], floor)
+			narrow(w32[lo:hi], w[lo:hi]) // only what the kernel reads
+			floor = kernel32(w32[lo:hi], floor)
 			return
 		}
-		floor = kernel(w[from*skipRun:min(to*skipRun, n)+history], floor)
+		floor = kernel(w[lo:hi], floor)
 	}
 	if !(runMax[bestRun]*gain <= floor) {
 		span(bestRun, bestRun+1)
