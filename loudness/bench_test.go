@@ -150,7 +150,8 @@ func BenchmarkTruePeak(b *testing.B) {
 // BenchmarkTruePeakKernel is the interpolator alone (4× and 2×) on one
 // chunk of dense noise (every window computed, nothing skipped), on every
 // kernel set this machine runs: go is the reference loop, sse2 two lanes,
-// avx2 four. Compare the sets' x-realtime-cpu within one run.
+// avx2 four; and the float32 4× interpolator (4x-float32: avx2 eight
+// lanes). Compare the sets' x-realtime-cpu within one run.
 func BenchmarkTruePeakKernel(b *testing.B) {
 	w := denseFullScale(5, history+chunkFrames)
 	for _, k := range truePeakKernels {
@@ -171,5 +172,29 @@ func BenchmarkTruePeakKernel(b *testing.B) {
 				clock.Report(chunkFrames / 48000.0) // per channel, as at 48 kHz
 			})
 		}
+	}
+	// The float32 4× interpolator, conversion included, on the sets that
+	// run it (go and avx2): compare with 4x on the same set.
+	w32 := make([]float32, len(w))
+	for _, set := range availableKernels() {
+		if set == sse2Kernels {
+			continue
+		}
+		b.Run("4x-float32/"+set.String(), func(b *testing.B) {
+			restore, err := useKernels(set)
+			if err != nil {
+				b.Fatal(err)
+			}
+			defer restore()
+			b.SetBytes(chunkFrames * 8)
+			clock := audiotest.StartRealtimeThread(b)
+			var sink float64
+			for range b.N {
+				sink += peak4Narrow(w32, 0)
+				narrow(w32, w)
+			}
+			_ = sink
+			clock.Report(chunkFrames / 48000.0)
+		})
 	}
 }

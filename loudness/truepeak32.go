@@ -124,17 +124,19 @@ func peak4Max32Go(w []float32) float32 {
 		r += float32((h1t5 + h1t6) / 2 * s)
 		q += float32((h0t5 - h0t6) / 2 * d)
 		u += float32((h1t5 - h1t6) / 2 * d)
-		if v := abs32(p + q); v > m {
-			m = v
+		// v > m || -v > m is |v| > m without moving v to an integer
+		// register (rarely true, so well predicted); NaN fails both.
+		if v := p + q; v > m || -v > m {
+			m = abs32(v)
 		}
-		if v := abs32(p - q); v > m {
-			m = v
+		if v := p - q; v > m || -v > m {
+			m = abs32(v)
 		}
-		if v := abs32(r + u); v > m {
-			m = v
+		if v := r + u; v > m || -v > m {
+			m = abs32(v)
 		}
-		if v := abs32(r - u); v > m {
-			m = v
+		if v := r - u; v > m || -v > m {
+			m = abs32(v)
 		}
 	}
 	return m
