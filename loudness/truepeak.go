@@ -179,13 +179,17 @@ func (t *TruePeak) peakBuffered(n int, floor float64) float64 {
 	w := t.buf[:history+n]
 	switch t.factor {
 	case 4:
-		if t.narrow4() {
+		if t.narrow32() {
 			floor = peakRuns(w, floor, t.gain*skipSlack, peak4, peak4Narrow, t.scratch32())
 		} else {
 			floor = peakRuns(w, floor, t.gain, peak4, nil, nil)
 		}
 	case 2:
-		floor = peakRuns(w, floor, t.gain, peak2, nil, nil)
+		if t.narrow32() {
+			floor = peakRuns(w, floor, t.gain*skipSlack, peak2, peak2Narrow, t.scratch32())
+		} else {
+			floor = peakRuns(w, floor, t.gain, peak2, nil, nil)
+		}
 	default:
 		for _, v := range w[history:] {
 			floor = max(floor, math.Abs(v))
@@ -205,12 +209,15 @@ func (t *TruePeak) Flush(floor float64) float64 {
 	}
 	var w [2 * history]float64
 	copy(w[:], t.buf[:history])
-	if t.factor == 4 {
-		if t.narrow4() && narrowable(maxAbs(w[:])) {
-			var w32 [2 * history]float32
-			narrowGo(w32[:], w[:])
+	if t.narrow32() && narrowable(maxAbs(w[:])) {
+		var w32 [2 * history]float32
+		narrowGo(w32[:], w[:])
+		if t.factor == 4 {
 			return peak4Narrow(w32[:], floor)
 		}
+		return peak2Narrow(w32[:], floor)
+	}
+	if t.factor == 4 {
 		return peak4(w[:], floor)
 	}
 	return peak2(w[:], floor)

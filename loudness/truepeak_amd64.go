@@ -137,6 +137,25 @@ func peak4Max32(w []float32) float32 {
 	return max(peak4Max32AVX2(w), peak4Max32Go(w[done:]))
 }
 
+// peak2Max32 is peak2Max32Go, with AVX2 eight windows at a time
+// (peak2Max32AVX2), as peak4Max32.
+func peak2Max32(w []float32) float32 {
+	if kernels < avx2Kernels {
+		return peak2Max32Go(w)
+	}
+	done := (len(w) - history) &^ 7
+	if done <= 0 {
+		return peak2Max32Go(w)
+	}
+	return max(peak2Max32AVX2(w), peak2Max32Go(w[done:]))
+}
+
+// peak2Max32AVX2 is peak2Max32Go over the first 8·⌊(len(w)−11)/8⌋
+// windows of w (truepeak32_avx2_amd64.s).
+//
+//go:noescape
+func peak2Max32AVX2(w []float32) float32
+
 // narrow is narrowGo, with AVX2 eight elements at a time (narrowAVX2).
 func narrow(dst []float32, src []float64) {
 	if kernels < avx2Kernels {
