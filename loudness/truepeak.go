@@ -124,8 +124,8 @@ type TruePeak struct {
 	// buf holds the 11 previous input samples followed by room for up to
 	// chunkFrames new ones: the interpolator reads one linear window.
 	buf []float64
-	// w32 is buf's float32 copy for the float32 4× interpolator
-	// (truepeak32.go), made afresh for every chunk that needs it.
+	// w32 is buf's float32 copy for the float32 interpolators
+	// (truepeak32.go), converted afresh for every stretch that needs it.
 	w32 []float32
 	// wide makes the 4× interpolator float64 on every kernel set: for the
 	// tests that bound the float32 one against it.
@@ -143,7 +143,7 @@ func NewTruePeak(sampleRate int) (*TruePeak, error) {
 		return nil, err
 	}
 	f := OversamplingFactor(sampleRate)
-	return &TruePeak{factor: f, gain: peakGain(f), buf: make([]float64, history+chunkFrames)}, nil
+	return &TruePeak{factor: f, gain: peakGain(f), buf: make([]float64, history+chunkFrames), w32: make([]float32, history+chunkFrames)}, nil
 }
 
 // Factor returns the oversampling factor in use (4, 2 or 1).

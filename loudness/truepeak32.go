@@ -207,8 +207,8 @@ func peak4Narrow(w []float32, floor float64) float64 {
 	return max(floor, float64(peak4Max32(w)))
 }
 
-// scratch32 returns the detector's float32 copy of its window (made on
-// first use).
+// scratch32 returns the detector's float32 copy of its window (made by
+// the constructors; on first use for a detector made otherwise).
 func (t *TruePeak) scratch32() []float32 {
 	if t.w32 == nil {
 		t.w32 = make([]float32, history+chunkFrames)
