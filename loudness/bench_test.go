@@ -150,7 +150,8 @@ func BenchmarkTruePeak(b *testing.B) {
 // BenchmarkTruePeakKernel is the interpolator alone (4× and 2×) on one
 // chunk of dense noise (every window computed, nothing skipped), on every
 // kernel set this machine runs: go is the reference loop, sse2 two lanes,
-// avx2 four. Compare the sets' x-realtime-cpu within one run.
+// avx2 four; and the float32 interpolators (4x-float32, 2x-float32: avx2
+// eight lanes). Compare the sets' x-realtime-cpu within one run.
 func BenchmarkTruePeakKernel(b *testing.B) {
 	w := denseFullScale(5, history+chunkFrames)
 	for _, k := range truePeakKernels {
@@ -169,6 +170,35 @@ func BenchmarkTruePeakKernel(b *testing.B) {
 				}
 				_ = sink
 				clock.Report(chunkFrames / 48000.0) // per channel, as at 48 kHz
+			})
+		}
+	}
+	// The float32 interpolators, conversion included, on the sets that run
+	// them (go and avx2): compare 4x-float32 with 4x on the same set.
+	w32 := make([]float32, len(w))
+	for _, k := range []struct {
+		name   string
+		kernel func(w []float32, floor float64) float64
+	}{{"4x-float32", peak4Narrow}, {"2x-float32", peak2Narrow}} {
+		for _, set := range availableKernels() {
+			if set == sse2Kernels {
+				continue
+			}
+			b.Run(k.name+"/"+set.String(), func(b *testing.B) {
+				restore, err := useKernels(set)
+				if err != nil {
+					b.Fatal(err)
+				}
+				defer restore()
+				b.SetBytes(chunkFrames * 8)
+				clock := audiotest.StartRealtimeThread(b)
+				var sink float64
+				for range b.N {
+					narrow(w32, w)
+					sink += k.kernel(w32, 0)
+				}
+				_ = sink
+				clock.Report(chunkFrames / 48000.0)
 			})
 		}
 	}

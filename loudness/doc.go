@@ -87,7 +87,7 @@
 // all from 176.4 kHz by the 48-tap, 4-phase interpolator of BS.1770 Annex 2;
 // the true peak is the largest magnitude of the oversampled signal (the
 // Annex's −12.04 dB pre-attenuation only protects fixed-point arithmetic
-// and is not needed in float64). The 2× interpolator uses phases 0 and 2 of
+// and is not needed in floating point). The 2× interpolator uses phases 0 and 2 of
 // the same table: it reads the same interpolated waveform at half the
 // density. The interpolator lets through up to ≈0.2 dB of ripple and, at
 // 4× and 48 kHz, can miss up to 0.47 dB of a 20 kHz peak between its
@@ -102,6 +102,16 @@
 // sample goes first, and consecutive runs that cannot be skipped go to the
 // interpolator together). Plain reference implementations in the tests
 // check that neither changes a result.
+//
+// The interpolator adds in float32 (truepeak32.go): eight windows per AVX2
+// register instead of four. PCM samples of up to 24 bits and every
+// coefficient are exact in float32; the sums' rounding moves a peak by at
+// most 1.2·10⁻⁶ of the largest sample nearby (peak32Error: about 1e-5 dB,
+// asserted against the float64 interpolator within 1e-4 dB), and the skip
+// bound is widened by 1e-5 so that skipping stays exact for the float32
+// values. The running maximum and the result are float64. Chunks with a
+// sample above 2⁶⁰ or all below 2⁻⁶⁰ in magnitude use the float64
+// interpolator.
 //
 // # SIMD kernels
 //
@@ -123,7 +133,9 @@
 // those loops round every product before adding it (no fused
 // multiply-add), so the figures are the same to the last bit with or
 // without the kernels. Elsewhere, or with the build tag purego, the Go
-// loops run.
+// loops run. One exception: the SSE2 set keeps the float64 interpolator,
+// so its true peaks differ from the other sets' float32 ones, within
+// peak32Error.
 //
 // # Bad samples
 //

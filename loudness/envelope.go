@@ -19,7 +19,7 @@ func NewTruePeak4x(sampleRate int) (*TruePeak, error) {
 	if err := checkRate(sampleRate); err != nil {
 		return nil, err
 	}
-	return &TruePeak{factor: 4, gain: peakGain(4), buf: make([]float64, history+chunkFrames)}, nil
+	return &TruePeak{factor: 4, gain: peakGain(4), buf: make([]float64, history+chunkFrames), w32: make([]float32, history+chunkFrames)}, nil
 }
 
 // Envelope writes to dst[i] the largest magnitude among the interpolated

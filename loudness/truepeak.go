@@ -124,6 +124,12 @@ type TruePeak struct {
 	// buf holds the 11 previous input samples followed by room for up to
 	// chunkFrames new ones: the interpolator reads one linear window.
 	buf []float64
+	// w32 is buf's float32 copy for the float32 interpolators
+	// (truepeak32.go), converted afresh for every stretch that needs it.
+	w32 []float32
+	// wide makes the 4× interpolator float64 on every kernel set: for the
+	// tests that bound the float32 one against it.
+	wide bool
 }
 
 // chunkFrames is how many frames the meter and TruePeak process at a time:
@@ -137,7 +143,7 @@ func NewTruePeak(sampleRate int) (*TruePeak, error) {
 		return nil, err
 	}
 	f := OversamplingFactor(sampleRate)
-	return &TruePeak{factor: f, gain: peakGain(f), buf: make([]float64, history+chunkFrames)}, nil
+	return &TruePeak{factor: f, gain: peakGain(f), buf: make([]float64, history+chunkFrames), w32: make([]float32, history+chunkFrames)}, nil
 }
 
 // Factor returns the oversampling factor in use (4, 2 or 1).
@@ -173,9 +179,17 @@ func (t *TruePeak) peakBuffered(n int, floor float64) float64 {
 	w := t.buf[:history+n]
 	switch t.factor {
 	case 4:
-		floor = peakRuns(w, floor, t.gain, peak4)
+		if t.narrow32() {
+			floor = peakRuns(w, floor, t.gain*skipSlack, peak4, peak4Narrow, t.scratch32())
+		} else {
+			floor = peakRuns(w, floor, t.gain, peak4, nil, nil)
+		}
 	case 2:
-		floor = peakRuns(w, floor, t.gain, peak2)
+		if t.narrow32() {
+			floor = peakRuns(w, floor, t.gain*skipSlack, peak2, peak2Narrow, t.scratch32())
+		} else {
+			floor = peakRuns(w, floor, t.gain, peak2, nil, nil)
+		}
 	default:
 		for _, v := range w[history:] {
 			floor = max(floor, math.Abs(v))
@@ -195,6 +209,14 @@ func (t *TruePeak) Flush(floor float64) float64 {
 	}
 	var w [2 * history]float64
 	copy(w[:], t.buf[:history])
+	if t.narrow32() && narrowable(maxAbs(w[:])) {
+		var w32 [2 * history]float32
+		narrowGo(w32[:], w[:])
+		if t.factor == 4 {
+			return peak4Narrow(w32[:], floor)
+		}
+		return peak2Narrow(w32[:], floor)
+	}
 	if t.factor == 4 {
 		return peak4(w[:], floor)
 	}
@@ -214,7 +236,12 @@ const skipRun = 32
 // never higher than the floor a run-by-run pass would use, so nothing is
 // skipped that could matter, and the maximum does not depend on the order
 // the windows are visited in).
-func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor float64) float64) float64 {
+//
+// With kernel32 (and w32, room for len(w) float32 values) each stretch is
+// converted to float32 and kernel32 does the work instead, unless the
+// chunk's largest |x| is not narrowable; gain must then include skipSlack.
+func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor float64) float64,
+	kernel32 func(w []float32, floor float64) float64, w32 []float32) float64 {
 	n := len(w) - history
 	if n <= 0 {
 		return floor
@@ -231,8 +258,17 @@ func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor f
 	if best*gain <= floor {
 		return floor
 	}
+	if kernel32 != nil && !narrowable(best) {
+		kernel32 = nil
+	}
 	span := func(from, to int) { // runs from … to−1
-		floor = kernel(w[from*skipRun:min(to*skipRun, n)+history], floor)
+		lo, hi := from*skipRun, min(to*skipRun, n)+history
+		if kernel32 != nil {
+			narrow(w32[lo:hi], w[lo:hi]) // only what the kernel reads
+			floor = kernel32(w32[lo:hi], floor)
+			return
+		}
+		floor = kernel(w[lo:hi], floor)
 	}
 	if !(runMax[bestRun]*gain <= floor) {
 		span(bestRun, bestRun+1)

@@ -121,3 +121,62 @@ func peak2QuadsAVX2(w []float64, sq float64) float64
 //
 //go:noescape
 func maxAbsBitsAVX2(x []float64) uint64
+
+// peak4Max32 is peak4Max32Go, with AVX2 eight windows at a time
+// (peak4Max32AVX2, the same operations in every lane; the maximum does not
+// depend on the order the windows are visited in); the windows left over
+// go to the Go loop.
+func peak4Max32(w []float32) float32 {
+	if kernels < avx2Kernels {
+		return peak4Max32Go(w)
+	}
+	done := (len(w) - history) &^ 7
+	if done <= 0 {
+		return peak4Max32Go(w)
+	}
+	return max(peak4Max32AVX2(w), peak4Max32Go(w[done:]))
+}
+
+// peak2Max32 is peak2Max32Go, with AVX2 eight windows at a time
+// (peak2Max32AVX2), as peak4Max32.
+func peak2Max32(w []float32) float32 {
+	if kernels < avx2Kernels {
+		return peak2Max32Go(w)
+	}
+	done := (len(w) - history) &^ 7
+	if done <= 0 {
+		return peak2Max32Go(w)
+	}
+	return max(peak2Max32AVX2(w), peak2Max32Go(w[done:]))
+}
+
+// peak2Max32AVX2 is peak2Max32Go over the first 8·⌊(len(w)−11)/8⌋
+// windows of w (truepeak32_avx2_amd64.s).
+//
+//go:noescape
+func peak2Max32AVX2(w []float32) float32
+
+// narrow is narrowGo, with AVX2 eight elements at a time (narrowAVX2).
+func narrow(dst []float32, src []float64) {
+	if kernels < avx2Kernels {
+		narrowGo(dst, src)
+		return
+	}
+	dst = dst[:len(src)]
+	narrowAVX2(dst, src)
+	if k := len(src) &^ 7; k < len(src) {
+		narrowGo(dst[k:], src[k:])
+	}
+}
+
+// peak4Max32AVX2 is peak4Max32Go over the first 8·⌊(len(w)−11)/8⌋
+// windows of w (truepeak32_avx2_amd64.s).
+//
+//go:noescape
+func peak4Max32AVX2(w []float32) float32
+
+// narrowAVX2 is narrowGo over the first 8·⌊len(src)/8⌋ elements;
+// len(dst) ≥ len(src) (truepeak32_avx2_amd64.s).
+//
+//go:noescape
+func narrowAVX2(dst []float32, src []float64)

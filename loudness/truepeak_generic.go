@@ -19,3 +19,12 @@ func runMaxBits(w []float64, runMax []float64, runs int) {
 		runMax[r] = maxAbs(w[r*skipRun : min((r+1)*skipRun, n)+history])
 	}
 }
+
+// peak4Max32 is peak4Max32Go on platforms without a SIMD kernel.
+func peak4Max32(w []float32) float32 { return peak4Max32Go(w) }
+
+// narrow is narrowGo on platforms without a SIMD kernel.
+func narrow(dst []float32, src []float64) { narrowGo(dst, src) }
+
+// peak2Max32 is peak2Max32Go on platforms without a SIMD kernel.
+func peak2Max32(w []float32) float32 { return peak2Max32Go(w) }
