@@ -275,9 +275,8 @@ func (w *work) write(ctx context.Context) (*rules.Result, string, error) {
 		return nil, "", err
 	}
 	// Named after this process, so that a later run removes what a killed
-	// one left beside the same destination (package leftovers).
-	leftovers.Sweep(dir, "."+filepath.Base(w.dest)+".kweigh-", ".tmp")
-	tmp, err := os.CreateTemp(dir, leftovers.Pattern("."+filepath.Base(w.dest)+".kweigh-", ".tmp"))
+	// one left in this folder (package leftovers).
+	tmp, err := leftovers.CreateHidden(dir, filepath.Base(w.dest), ".tmp")
 	if err != nil {
 		return nil, "", err
 	}

@@ -29,8 +29,7 @@ func createPending(final string) (*pendingFile, error) {
 	}
 	// Named after this process, so that a later run removes what a killed
 	// one left (package leftovers).
-	leftovers.Sweep(dir, "."+base+".kweigh-", ".part")
-	f, err := os.CreateTemp(dir, leftovers.Pattern("."+base+".kweigh-", ".part"))
+	f, err := leftovers.CreateHidden(dir, base, ".part")
 	if err != nil {
 		return nil, err
 	}

@@ -14,6 +14,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"sync"
 )
 
 // Pattern is the os.CreateTemp / os.MkdirTemp pattern for a temporary of
@@ -63,4 +64,45 @@ func pidOf(name, prefix, suffix string) (int, bool) {
 		return 0, false
 	}
 	return pid, true
+}
+
+// hiddenMarker separates the file name from the PID in a hidden
+// temporary made by CreateHidden: ".NAME.kweigh-PID-RANDOM" + suffix.
+const hiddenMarker = ".kweigh-"
+
+// swept holds the folders (and suffixes) CreateHidden has swept in this
+// process: one sweep per folder, not one per file written into it (a run
+// writing a plot per file would otherwise read the folder once per plot).
+var swept sync.Map
+
+// CreateHidden creates the hidden temporary file of an output called base
+// in dir, ".BASE.kweigh-PID-RANDOM" + suffix, after removing (once per
+// folder and suffix in this process) the hidden temporaries of that shape
+// left there by processes that have ended, whatever output they were for.
+func CreateHidden(dir, base, suffix string) (*os.File, error) {
+	if _, done := swept.LoadOrStore(dir+"\x00"+suffix, true); !done {
+		sweepHidden(dir, suffix)
+	}
+	return os.CreateTemp(dir, Pattern("."+base+hiddenMarker, suffix))
+}
+
+// sweepHidden removes from dir the hidden files ".NAME.kweigh-PID-…" +
+// suffix whose process has ended.
+func sweepHidden(dir, suffix string) {
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return
+	}
+	for _, e := range entries {
+		name := e.Name()
+		at := strings.LastIndex(name, hiddenMarker)
+		if !strings.HasPrefix(name, ".") || at < 1 {
+			continue
+		}
+		pid, ok := pidOf(name[at:], hiddenMarker, suffix)
+		if !ok || pid == os.Getpid() || alive(pid) {
+			continue
+		}
+		os.Remove(filepath.Join(dir, name))
+	}
 }

@@ -87,3 +87,38 @@ func TestPatternRoundTrip(t *testing.T) {
 		t.Errorf("%s: pid %d %v", f.Name(), pid, ok)
 	}
 }
+
+// TestCreateHidden: making one output's hidden temporary removes the
+// hidden temporaries an ended process left in the folder for any output
+// (of the same suffix), and keeps a live process's and other names.
+func TestCreateHidden(t *testing.T) {
+	dir := t.TempDir()
+	dead := strconv.Itoa(deadPID(t))
+	gone := filepath.Join(dir, ".ep2.wav.kweigh-"+dead+"-41.tmp")
+	kept := []string{
+		filepath.Join(dir, ".ep3.wav.kweigh-"+strconv.Itoa(os.Getpid())+"-7.tmp"),
+		filepath.Join(dir, ".ep2.wav.kweigh-"+dead+"-41.part"),
+		filepath.Join(dir, "ep2.wav.kweigh-"+dead+"-41.tmp"),
+	}
+	for _, p := range append(kept, gone) {
+		if err := os.WriteFile(p, []byte("x"), 0o600); err != nil {
+			t.Fatal(err)
+		}
+	}
+	f, err := CreateHidden(dir, "ep1.wav", ".tmp")
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.Close()
+	if pid, ok := pidOf(filepath.Base(f.Name()), ".ep1.wav.kweigh-", ".tmp"); !ok || pid != os.Getpid() {
+		t.Errorf("made %s", f.Name())
+	}
+	if _, err := os.Stat(gone); !os.IsNotExist(err) {
+		t.Errorf("%s still there", gone)
+	}
+	for _, p := range kept {
+		if _, err := os.Stat(p); err != nil {
+			t.Errorf("%s removed: %v", p, err)
+		}
+	}
+}
