@@ -6,8 +6,10 @@ import (
 )
 
 // kernelSet names one family of inner loops: the portable Go loops (the
-// reference), the two-lane SSE2 kernels every amd64 CPU has, or the
-// four-lane AVX2 kernels of newer ones. Every kernel performs the very
+// reference), the two-lane SSE2 kernels every amd64 CPU has, the
+// four-lane AVX2 kernels of newer ones, or the AVX-512 set (the AVX2
+// kernels, with eight-lane ones where a kernel has them) of CPUs with
+// AVX-512 F, DQ, BW and VL. Every kernel performs the very
 // floating-point operations of its Go twin in the same order (no fused
 // multiply-adds), so all sets give the same bits; kernels_test.go checks
 // that on every set this machine can run.
@@ -17,6 +19,7 @@ const (
 	goKernels kernelSet = iota
 	sse2Kernels
 	avx2Kernels
+	avx512Kernels
 )
 
 func (k kernelSet) String() string {
@@ -25,12 +28,14 @@ func (k kernelSet) String() string {
 		return "sse2"
 	case avx2Kernels:
 		return "avx2"
+	case avx512Kernels:
+		return "avx512"
 	}
 	return "go"
 }
 
 // KernelEnv is the environment variable that caps the kernel set, for
-// testing every path on one machine: "go", "sse2" or "avx2". A set the CPU
+// testing every path on one machine: "go", "sse2", "avx2" or "avx512". A set the CPU
 // or the build (-tags purego) lacks is never chosen; unset means the best
 // available.
 const KernelEnv = "KWEIGH_KERNELS"
@@ -42,7 +47,7 @@ var kernels = chooseKernels(bestKernels(), os.Getenv(KernelEnv))
 // chooseKernels returns the best set not above best and not above the one
 // named by env ("" for no cap).
 func chooseKernels(best kernelSet, env string) kernelSet {
-	for _, k := range []kernelSet{goKernels, sse2Kernels, avx2Kernels} {
+	for _, k := range []kernelSet{goKernels, sse2Kernels, avx2Kernels, avx512Kernels} {
 		if env == k.String() {
 			return min(k, best)
 		}
@@ -51,9 +56,14 @@ func chooseKernels(best kernelSet, env string) kernelSet {
 }
 
 // Kernels says which family of inner loops the engine runs on this CPU
-// ("go", "sse2" or "avx2"): for benchmarks and diagnostics. The results are
+// ("go", "sse2", "avx2" or "avx512"): for benchmarks and diagnostics. The results are
 // the same on all of them.
 func Kernels() string { return kernels.String() }
+
+// KernelsAtLeastAVX2 reports whether the set in use includes the AVX2
+// kernels (avx2 or avx512): for packages with AVX2 kernels of their own,
+// which KernelEnv caps as it caps the engine's.
+func KernelsAtLeastAVX2() bool { return kernels >= avx2Kernels }
 
 // availableKernels lists the sets this build can run on this CPU, the
 // reference first.

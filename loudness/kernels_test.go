@@ -82,6 +82,9 @@ func TestKernelSetsAvailable(t *testing.T) {
 		{sse2Kernels, "avx2", sse2Kernels},
 		{goKernels, "avx2", goKernels},
 		{avx2Kernels, "bogus", avx2Kernels},
+		{avx512Kernels, "", avx512Kernels},
+		{avx512Kernels, "avx2", avx2Kernels},
+		{avx2Kernels, "avx512", avx2Kernels},
 	} {
 		if got := chooseKernels(c.best, c.env); got != c.want {
 			t.Errorf("best %v, %s=%q: chose %v, want %v", c.best, KernelEnv, c.env, got, c.want)
@@ -271,7 +274,7 @@ func TestSplitFastMatchesGo(t *testing.T) {
 					}
 				}
 				if !ok {
-					if kernels == avx2Kernels && n >= 4 && !rejected {
+					if kernels >= avx2Kernels && n >= 4 && !rejected {
 						t.Fatalf("%d frames, %v: refused a measurable chunk", n, bad)
 					}
 					continue

@@ -11,10 +11,10 @@ package loudness
 // narrower kernel, the last odd one to the Go loop; the maximum does not
 // depend on the order the windows are visited in.
 func peak4Squares(w []float64, sq float64) float64 {
-	switch kernels {
-	case goKernels:
+	switch {
+	case kernels == goKernels:
 		return peak4SquaresGo(w, sq)
-	case avx2Kernels:
+	case kernels >= avx2Kernels:
 		sq = peak4QuadsAVX2(w, sq)
 		done := (len(w) - history) &^ 3
 		if done <= 0 {
@@ -32,10 +32,10 @@ func peak4Squares(w []float64, sq float64) float64 {
 // peak2Squares is peak2SquaresGo in SIMD lanes, as peak4Squares is
 // peak4SquaresGo.
 func peak2Squares(w []float64, sq float64) float64 {
-	switch kernels {
-	case goKernels:
+	switch {
+	case kernels == goKernels:
 		return peak2SquaresGo(w, sq)
-	case avx2Kernels:
+	case kernels >= avx2Kernels:
 		sq = peak2QuadsAVX2(w, sq)
 		done := (len(w) - history) &^ 3
 		if done <= 0 {

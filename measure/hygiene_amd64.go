@@ -12,7 +12,7 @@ import (
 // CPU has AVX2 and the engine runs its AVX2 set, so KWEIGH_KERNELS
 // (loudness.KernelEnv) caps these kernels as it caps the engine's. Tests
 // switch it to run both paths.
-var hygieneAVX2 = cpu.X86.HasAVX2 && loudness.Kernels() == "avx2"
+var hygieneAVX2 = cpu.X86.HasAVX2 && loudness.KernelsAtLeastAVX2()
 
 // haveHygieneAVX2 says whether this build and CPU can run the kernels.
 var haveHygieneAVX2 = cpu.X86.HasAVX2
