@@ -10,9 +10,13 @@ import (
 // four-lane AVX2 kernels of newer ones, or the AVX-512 set (the AVX2
 // kernels, with eight-lane ones where a kernel has them) of CPUs with
 // AVX-512 F, DQ, BW and VL. Every kernel performs the very
-// floating-point operations of its Go twin in the same order (no fused
-// multiply-adds), so all sets give the same bits; kernels_test.go checks
-// that on every set this machine can run.
+// floating-point operations of its Go twin in the same order, so a kernel
+// gives its twin's bits; kernels_test.go checks that on every set this
+// machine can run. Two twins differ between sets, each within a stated
+// and tested bound: the K-weighting fuses its multiply-adds on the go,
+// avx2 and avx512 sets and not on the sse2 set (kweighting.go), and the
+// true-peak interpolator is float32 on go and avx2, float64 on sse2
+// (truepeak32.go).
 type kernelSet int
 
 const (
@@ -57,7 +61,7 @@ func chooseKernels(best kernelSet, env string) kernelSet {
 
 // Kernels says which family of inner loops the engine runs on this CPU
 // ("go", "sse2", "avx2" or "avx512"): for benchmarks and diagnostics. The results are
-// the same on all of them.
+// the same on all of them, or within the bounds stated for the sse2 set.
 func Kernels() string { return kernels.String() }
 
 // KernelsAtLeastAVX2 reports whether the set in use includes the AVX2

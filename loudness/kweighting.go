@@ -142,8 +142,11 @@ func (k KWeighting) Response(freq, sampleRate float64) complex128 {
 	return k.Shelf.Response(freq, sampleRate) * k.HighPass.Response(freq, sampleRate)
 }
 
-// Filter K-weights src into dst stage by stage (the plain reference for
-// Energy) and returns dst; dst may be src, nil allocates.
+// Filter K-weights src into dst stage by stage and returns dst; dst may
+// be src, nil allocates. It is the plain reference for Energy, written as
+// the textbook difference equation (Biquad.Filter) and sharing no
+// arrangement with it: Energy fuses its multiply-adds and Filter does not,
+// so the two agree within rounding (TestEnergyCrossCheck), not bit for bit.
 func (k *KWeighting) Filter(dst, src []float64) []float64 {
 	dst = k.Shelf.Filter(dst, src)
 	return k.HighPass.Filter(dst, dst)
@@ -152,6 +155,29 @@ func (k *KWeighting) Filter(dst, src []float64) []float64 {
 // Energy K-weights src and returns Σy² of the filtered samples without
 // storing them. It runs both stages in one pass (the meter's hot loop) and
 // leaves the state as Filter would.
+//
+// Every multiply-add is fused (math.FMA: one rounding, the same bits on
+// every platform). The recursion is what sets the pace: each output waits
+// on the one before, and with the feedback terms last and fused the
+// loop-carried chain is one fused multiply-add per stage (about 4 cycles)
+// where a rounded product and a subtraction took two operations (about
+// 8). Only the go set runs this loop itself: arm64 and GOAMD64=v3 builds
+// fuse inline, an amd64 build below v3 checks for FMA at every call
+// (slower than the unfused loop was), and a CPU without FMA computes it
+// in software (far slower). The feedforward terms come
+// first, innermost the oldest input (b2·x2, then b1·x1, then b0·x), so the
+// newest sample enters as late as the feedback allows:
+//
+//	u = fma(−a1, u1, fma(−a2, u2, fma(b0, x, fma(b1, x1, b2·x2))))
+//	v = fma(−c1, v1, fma(−c2, v2, u + fma(−2, u1, u2)))
+//	e = fma(v, v, e)
+//
+// The high-pass is the same form with the numerator [1, −2, 1]: 1·u2 = u2,
+// fma(1, u, s) = u + s, so the SIMD kernels that run both stages as one
+// biquad form (energyStagedAVX2) compute exactly these values. Every
+// kernel of the go, avx2 and avx512 sets performs these operations in this
+// order (kernels_test.go proves the bits); the sse2 set, which has no
+// fused multiply-add, keeps energyUnfused, within the bound stated below.
 func (k *KWeighting) Energy(src []float64) float64 {
 	s, h := &k.Shelf, &k.HighPass
 	b0, b1, b2, a1, a2 := s.B0, s.B1, s.B2, s.A1, s.A2
@@ -160,11 +186,84 @@ func (k *KWeighting) Energy(src []float64) float64 {
 	v1, v2 := h.y1, h.y2
 	var e float64
 	for _, x := range src {
-		// Terms that do not depend on the previous output first, so the
-		// loop-carried chain is one multiply and one subtract per stage.
-		// Each product is rounded before it is added (float64), which
-		// forbids fused multiply-adds: the same bits on every platform,
-		// and the same as energyPair's.
+		u := math.FMA(-a1, u1, math.FMA(-a2, u2, math.FMA(b0, x, math.FMA(b1, x1, float64(b2*x2)))))
+		v := math.FMA(-c1, v1, math.FMA(-c2, v2, u+math.FMA(-2, u1, u2)))
+		x2, x1 = x1, x
+		u2, u1 = u1, u
+		v2, v1 = v1, v
+		e = math.FMA(v, v, e)
+	}
+	s.x1, s.x2, s.y1, s.y2 = x1, x2, u1, u2
+	// The high-pass input history is the shelf output history.
+	h.x1, h.x2, h.y1, h.y2 = u1, u2, v1, v2
+	return e
+}
+
+// The bound between the two forms (fused, Energy; unfused, energyUnfused).
+//
+// Per sample. Each stage, in either form, computes its output as the exact
+// difference equation of the computed histories plus a local error δ[n]
+// with |δ[n]| ≤ γ₅·T[n] (γₖ = k·2⁻⁵³/(1 − k·2⁻⁵³), the standard bound of a
+// chain of at most five roundings, which both forms are: the unfused one
+// rounds each product and each of the four additions, the fused one the
+// first product and the four fused steps), T[n] the sum of the magnitudes
+// of the terms. A stage's recursion carries δ on through 1/A(z), whose
+// impulse response g is absolutely summable because the filter is stable:
+// the output error is at most ‖g‖₁·max|δ|, and does not grow with the
+// length of the stream. The shelf's error passes through the whole
+// high-pass (‖h_hp‖₁ ≈ 2.27 at every rate). With M the largest |x| so far,
+// |u| ≤ ‖h_shelf‖₁·M and |v| ≤ ‖h_shelf‖₁·‖h_hp‖₁·M, so T is a multiple of
+// M, and the difference of the two forms, each within its error of exact
+// arithmetic, is
+//
+//	|v_fused − v_unfused| ≤ β·M,
+//	β = 2·γ₅·(‖h_hp‖₁·‖g_shelf‖₁·T_shelf + ‖g_hp‖₁·T_hp)
+//
+// with T_shelf = Σ|b| + Σ|a|·‖h_shelf‖₁ and T_hp = 4·‖h_shelf‖₁ +
+// Σ|c|·‖h_shelf‖₁·‖h_hp‖₁ (fmaSampleBound in kweighting_fma_test.go
+// computes it). The high-pass's ‖g‖₁ dominates: its two poles near z = 1
+// (38 Hz) give about 1/(1 − r)², 4.0e4 at 48 kHz and 2.6e6 at 384 kHz, so
+// β is 1.1e-9 at 48 kHz, 4.3e-9 at 96 kHz and 7.0e-8 at 384 kHz.
+// TestFMASampleBound checks every output against β·M at every rate on
+// programme, full-scale noise, spikes, a full-scale 20 Hz sine, a square
+// wave, a DC offset and a signal that stops dead; the largest difference
+// seen is 0.4 % of β·M (the roundings do not all lean one way).
+//
+// Per block and per figure. A block's energy E = Σv² then differs by at
+// most 2·β·M·√(N·W·E) + N·W·(β·M)² + 2·γ₁₀₂₅·E (Cauchy–Schwarz over the N
+// samples of each channel, W the sum of the channel weights; the last term
+// the two forms' sums of at most 1024 squares a call), a relative
+// difference of about 2·β·(M/rms): the ratio of the largest sample to the
+// block's weighted RMS, which a derivation cannot cap (a block of decaying
+// tail after a loud one), so the figures' bound is a measured one with a
+// wide margin. fmaFigureTolerance, 1e-9 LU (the bound the file sections
+// state), holds integrated loudness, loudness range and the maximum
+// momentary and short-term loudness on stereo programme and full-scale
+// noise at every rate from 8 to 384 kHz, 5.1 programme and the EBU Tech
+// 3341/3342 signals; the largest difference seen is about 1e-13 LU
+// (TestFMAFigures, which also checks every block energy against the
+// bound above). It cannot grow with the length of a programme: the
+// per-sample difference is bounded as shown and does not accumulate, the
+// figures are means of gated blocks (above −70 LUFS and within 10 or 20 LU
+// of the programme's level) or maxima (the loudest windows), so M/rms
+// stays that of loud passages, and the roundings' signs vary, which is why
+// the measured difference sits four orders of magnitude below the
+// tolerance.
+
+// energyUnfused is Energy as it was before the fused multiply-adds, every
+// product rounded before it is added: the Go twin of energyPairSSE2 (SSE2
+// has no fused multiply-add), which the sse2 set runs for a lone channel
+// too, and the reference the fused form's bound is tested against
+// (kweighting_fma_test.go). The float64(…) conversions forbid the compiler to
+// fuse anything, so these are the same bits on every platform.
+func (k *KWeighting) energyUnfused(src []float64) float64 {
+	s, h := &k.Shelf, &k.HighPass
+	b0, b1, b2, a1, a2 := s.B0, s.B1, s.B2, s.A1, s.A2
+	c1, c2 := h.A1, h.A2
+	x1, x2, u1, u2 := s.x1, s.x2, s.y1, s.y2
+	v1, v2 := h.y1, h.y2
+	var e float64
+	for _, x := range src {
 		u := (float64(b0*x) + float64(b1*x1) + float64(b2*x2) - float64(a2*u2)) - float64(a1*u1)
 		v := (u - 2*u1 + u2 - float64(c2*v2)) - float64(c1*v1)
 		x2, x1 = x1, x

@@ -2,16 +2,21 @@
 
 package loudness
 
-// energyPair returns k.Energy(a), l.Energy(b), bit for bit, and leaves both
-// filters' state as Energy would. len(b) must equal len(a).
+import "math"
+
+// energyPair returns k.Energy(a), l.Energy(b), bit for bit, on the go,
+// avx2 and avx512 sets, and k.energyUnfused(a), l.energyUnfused(b), bit
+// for bit, on the sse2 set; it leaves both filters' state as those would.
+// len(b) must equal len(a).
 //
 // The K-weighting recursion is latency-bound: each output waits for the
-// previous one (a multiply and a subtract per stage), so one channel leaves
-// the floating-point units mostly idle. energyPairSSE2 runs channel k in
-// lane 0 and channel l in lane 1 of SSE2 registers (part of every amd64
-// CPU) and gets two channels for the time of one. Each lane performs the
-// operations of Energy in the same order, and packed IEEE arithmetic
-// rounds as scalar does, so the results are identical.
+// previous one, so one channel leaves the floating-point units mostly
+// idle. energyPairSSE2 runs channel k in lane 0 and channel l in lane 1 of
+// SSE2 registers (part of every amd64 CPU) and gets two channels for the
+// time of one. SSE2 has no fused multiply-add, so each lane performs the
+// operations of energyUnfused in the same order, and packed IEEE
+// arithmetic rounds as scalar does, so the results are identical to it;
+// they differ from Energy's within the bound stated beside energyUnfused.
 func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	b = b[:len(a)]
 	switch {
@@ -45,12 +50,16 @@ func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 }
 
 // energyOne returns k.Energy(a), bit for bit, leaving the state as Energy
-// would. With AVX2 the channel runs through energyPairStaged beside a
-// scratch copy of itself: half the lanes are wasted, but the two stages
-// then run side by side instead of one after the other.
+// would (on the sse2 set k.energyUnfused(a), the form of its pair kernel).
+// With AVX2 the channel runs through energyPairStaged beside a scratch
+// copy of itself: half the lanes are wasted, but the two stages then run
+// side by side instead of one after the other.
 func energyOne(k *KWeighting, a []float64) float64 {
-	if kernels < avx2Kernels {
+	switch kernels {
+	case goKernels:
 		return k.Energy(a)
+	case sse2Kernels:
+		return k.energyUnfused(a)
 	}
 	scratch := *k
 	e, _ := energyPairStaged(k, &scratch, a, a)
@@ -80,7 +89,7 @@ func energyPairStaged(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 		x1, x2, u1, u2 := sh.x1, sh.x2, sh.y1, sh.y2
 		var u [stagedLag]float64
 		for j, x := range in[i][:stagedLag] {
-			u[j] = (float64(sh.B0*x) + float64(sh.B1*x1) + float64(sh.B2*x2) - float64(sh.A2*u2)) - float64(sh.A1*u1)
+			u[j] = math.FMA(-sh.A1, u1, math.FMA(-sh.A2, u2, math.FMA(sh.B0, x, math.FMA(sh.B1, x1, float64(sh.B2*x2)))))
 			x2, x1 = x1, x
 			u2, u1 = u1, u[j]
 		}
@@ -99,8 +108,8 @@ func energyPairStaged(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 		u1, u2 := s.x1[i+2], s.x2[i+2]
 		v1, v2 := s.y1[i+2], s.y2[i+2]
 		for _, u := range [stagedLag]float64{s.d[i], s.y2[i], s.y1[i]} {
-			v := (u - 2*u1 + u2 - float64(hp.A2*v2)) - float64(hp.A1*v1)
-			e[i] += float64(v * v)
+			v := math.FMA(-hp.A1, v1, math.FMA(-hp.A2, v2, u+math.FMA(-2, u1, u2)))
+			e[i] = math.FMA(v, v, e[i])
 			u2, u1 = u1, u
 			v2, v1 = v1, v
 		}
@@ -117,7 +126,8 @@ const stagedLag = 3
 
 // kweightStaged holds a stereo pair's K-weighting for energyStagedAVX2:
 // lanes 0 and 1 the two shelves, lanes 2 and 3 the two high-passes, each
-// lane a biquad y = B0·x + B1·x1 + B2·x2 − A2·y2 − A1·y1 with its input
+// lane a biquad y = fma(−A1, y1, fma(−A2, y2, fma(B0, x, fma(B1, x1, B2·x2))))
+// (Energy's form) with its input
 // history x1, x2 and output history y1, y2; d holds, in lanes 0 and 1, the
 // shelf outputs of three samples back (the high-pass lanes' next input).
 type kweightStaged struct {
@@ -159,8 +169,9 @@ type kweightQuad struct {
 // quadEnergy reports whether energyQuad runs four channels at once here.
 func quadEnergy() bool { return kernels >= avx2Kernels }
 
-// energyQuad returns f[i].Energy(x[i]) for four filters, bit for bit, and
-// leaves their state as Energy would; every x[i] must be as long as x[0].
+// energyQuad returns f[i].Energy(x[i]) for four filters, bit for bit (on
+// the sse2 set energyUnfused, through energyPair), and leaves their state
+// as those would; every x[i] must be as long as x[0].
 // With AVX2 the four recursions run in the four lanes of one register
 // (energyQuadAVX2), each lane performing Energy's operations in order;
 // elsewhere two pairs.

@@ -3,19 +3,25 @@
 #include "textflag.h"
 #include "go_asm.h"
 
+// kweightMinusTwo is the middle coefficient of the high-pass numerator.
+DATA kweightMinusTwo<>+0(SB)/8, $-2.0
+GLOBL kweightMinusTwo<>(SB), RODATA|NOPTR, $8
+
 // func energyQuadAVX2(s *kweightQuad, a, b, c, d []float64) (ea, eb, ec, ed float64)
 //
-// energyPairSSE2 (kweighting_amd64.s) with four channels in the four lanes
-// of AVX2 registers, lane 0 from a … lane 3 from d, each computed exactly
-// as Energy computes it:
+// Four channels in the four lanes of AVX2 registers, lane 0 from a … lane
+// 3 from d, each computed exactly as Energy computes it, with fused
+// multiply-adds (one rounding each, as math.FMA; VFNMADD231PD computes
+// −(p·q) + r, which is fma(−p, q, r) bit for bit, the negation exact):
 //
-//	u = (b0·x + b1·x1 + b2·x2 − a2·u2) − a1·u1
-//	v = (u − 2·u1 + u2 − c2·v2) − c1·v1
-//	e += v·v
+//	u = fma(−a1, u1, fma(−a2, u2, fma(b0, x, fma(b1, x1, b2·x2))))
+//	v = fma(−c1, v1, fma(−c2, v2, u + fma(−2, u1, u2)))
+//	e = fma(v, v, e)
 //
-// Registers: Y0 a1, Y1 c1, Y2 b0, Y3 b1, Y4 b2 (a2 and c2 are read from s);
-// state Y5 x1, Y6 x2, Y7 u1, Y8 u2, Y9 v1, Y10 v2; Y11 e; Y12–Y14 scratch.
-// SI, DI, R8, R9 the inputs, DX s, BX index, CX length.
+// Registers: Y0 a1, Y1 c1, Y2 b0, Y3 b1, Y4 b2 (a2 and c2 are read from s),
+// Y15 −2; state Y5 x1, Y6 x2, Y7 u1, Y8 u2, Y9 v1, Y10 v2; Y11 e;
+// Y12–Y14 scratch. SI, DI, R8, R9 the inputs, DX s, BX index, CX length.
+// The CPU must have FMA (bestKernels checks).
 TEXT ·energyQuadAVX2(SB), NOSPLIT, $0-136
 	MOVQ s+0(FP), DX
 	MOVQ a_base+8(FP), SI
@@ -36,6 +42,7 @@ TEXT ·energyQuadAVX2(SB), NOSPLIT, $0-136
 	VMOVUPD kweightQuad_v1(DX), Y9
 	VMOVUPD kweightQuad_v2(DX), Y10
 	VXORPD  Y11, Y11, Y11
+	VBROADCASTSD kweightMinusTwo<>(SB), Y15
 
 	XORQ BX, BX
 	CMPQ BX, CX
@@ -48,34 +55,26 @@ loop:
 	VMOVHPD     (R9)(BX*8), X13, X13
 	VINSERTF128 $1, X13, Y12, Y12 // Y12 = x
 
-	// Shelf: Y13 = ((b0·x + b1·x1) + b2·x2 − a2·u2) − a1·u1.
-	VMULPD  Y2, Y12, Y13
-	VMULPD  Y3, Y5, Y14
-	VADDPD  Y14, Y13, Y13
-	VMULPD  Y4, Y6, Y6    // x2 is not needed after this
-	VADDPD  Y6, Y13, Y13
-	VMOVAPD Y5, Y6        // x2 = x1
-	VMOVAPD Y12, Y5       // x1 = x
-	VMULPD  kweightQuad_a2(DX), Y8, Y14
-	VSUBPD  Y14, Y13, Y13
-	VMULPD  Y0, Y7, Y14
-	VSUBPD  Y14, Y13, Y13 // Y13 = u
+	// Shelf: Y13 = fma(−a1, u1, fma(−a2, u2, fma(b0, x, fma(b1, x1, b2·x2)))).
+	VMULPD       Y4, Y6, Y13
+	VFMADD231PD  Y3, Y5, Y13
+	VFMADD231PD  Y2, Y12, Y13
+	VFNMADD231PD kweightQuad_a2(DX), Y8, Y13
+	VFNMADD231PD Y0, Y7, Y13 // Y13 = u
+	VMOVAPD      Y5, Y6      // x2 = x1
+	VMOVAPD      Y12, Y5     // x1 = x
 
-	// High-pass: Y12 = (((u − 2·u1) + u2) − c2·v2) − c1·v1.
-	VADDPD  Y7, Y7, Y14   // 2·u1, exact
-	VSUBPD  Y14, Y13, Y12
-	VADDPD  Y8, Y12, Y12
-	VMOVAPD Y7, Y8        // u2 = u1
-	VMOVAPD Y13, Y7       // u1 = u
-	VMULPD  kweightQuad_c2(DX), Y10, Y14
-	VSUBPD  Y14, Y12, Y12
-	VMULPD  Y1, Y9, Y14
-	VSUBPD  Y14, Y12, Y12 // Y12 = v
-	VMOVAPD Y9, Y10       // v2 = v1
-	VMOVAPD Y12, Y9       // v1 = v
+	// High-pass: Y12 = fma(−c1, v1, fma(−c2, v2, u + fma(−2, u1, u2))).
+	VFMADD231PD  Y15, Y7, Y8 // u2 is not needed after this
+	VADDPD       Y8, Y13, Y12
+	VMOVAPD      Y7, Y8      // u2 = u1
+	VMOVAPD      Y13, Y7     // u1 = u
+	VFNMADD231PD kweightQuad_c2(DX), Y10, Y12
+	VFNMADD231PD Y1, Y9, Y12 // Y12 = v
+	VMOVAPD      Y9, Y10     // v2 = v1
+	VMOVAPD      Y12, Y9     // v1 = v
 
-	VMULPD Y12, Y12, Y12
-	VADDPD Y12, Y11, Y11  // e += v·v
+	VFMADD231PD Y12, Y12, Y11 // e = fma(v, v, e)
 
 	INCQ BX
 	CMPQ BX, CX
@@ -103,14 +102,23 @@ done:
 // high-pass of the same channels on sample i−3, whose input is the shelf
 // output of lanes 0 and 1 three iterations earlier (kept in Y13). Three
 // samples apart, the path from a shelf output through the high-pass
-// lanes' additions back into the register spans three iterations and no
-// longer sets the pace. Both stages are the same biquad form, the
-// high-pass with the numerator [1, −2, 1], whose products are exact
-// (1·u = u, −2·u₁ = −(2·u₁), and u + (−2·u₁) is u − 2·u₁ in IEEE
-// arithmetic), so every lane computes exactly what Energy computes:
+// lanes' operations back into the register spans three iterations and
+// sets the pace less. Both stages are the same biquad form with fused
+// multiply-adds (VFNMADD231PD computes −(p·q) + r, fma(−p, q, r) bit for
+// bit), the high-pass with the numerator [1, −2, 1], for which the form
+// is Energy's high-pass exactly (1·u2 = u2, so fma(−2, u1, 1·u2) is
+// fma(−2, u1, u2), and fma(1, u, s) = u + s), so every lane computes
+// exactly what Energy computes:
 //
-//	y = (((B0·x + B1·x1) + B2·x2) − A2·y2) − A1·y1
-//	e += y·y
+//	y = fma(−A1, y1, fma(−A2, y2, fma(B0, x, fma(B1, x1, B2·x2))))
+//	e = fma(y, y, e)
+//
+// The loop-carried chain is then the two fused feedback steps (4 cycles a
+// step on the project's CPU) and, from the shelf outputs that the
+// high-pass lanes take in three iterations later, the insert, the
+// fma(B0, x, …) and the two feedback steps: about 15 cycles over three
+// iterations, the pace of this loop (the unfused form took 8 cycles an
+// iteration). The CPU must have FMA (bestKernels checks).
 //
 // The caller runs the shelf of samples 0…2 before and the high-pass of the
 // last three samples after (energyPairStaged), so the loop covers samples
@@ -119,7 +127,7 @@ done:
 //
 // Registers: Y0 B0, Y1 B1, Y2 B2, Y3 A1, Y4 A2; state Y5 x1, Y6 x2,
 // Y7 y1, Y8 y2, Y13 the shelf outputs of three samples ago; Y9 e;
-// Y10–Y12 (and Y14 in loop12) scratch. SI, DI the inputs, DX s, BX index,
+// Y10, Y11 (and Y14 in loop12) scratch. SI, DI the inputs, DX s, BX index,
 // CX length.
 TEXT ·energyStagedAVX2(SB), NOSPLIT, $0-72
 	MOVQ s+0(FP), DX
@@ -153,171 +161,111 @@ loop12:
 	VMOVSD      0(SI)(BX*8), X10
 	VMOVHPD     0(DI)(BX*8), X10, X10
 	VINSERTF128 $1, X13, Y10, Y10
-	VMULPD      Y0, Y10, Y11
-	VMULPD      Y1, Y5, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y6, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y8, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y7, Y12
-	VSUBPD      Y12, Y11, Y14
-	VMULPD      Y14, Y14, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y6, Y14
+	VFMADD231PD  Y1, Y5, Y14
+	VFMADD231PD  Y0, Y10, Y14
+	VFNMADD231PD Y4, Y8, Y14
+	VFNMADD231PD Y3, Y7, Y14
+	VFMADD231PD  Y14, Y14, Y9
 	VMOVSD      8(SI)(BX*8), X6
 	VMOVHPD     8(DI)(BX*8), X6, X6
 	VINSERTF128 $1, X8, Y6, Y6
-	VMULPD      Y0, Y6, Y11
-	VMULPD      Y1, Y10, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y5, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y7, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y14, Y12
-	VSUBPD      Y12, Y11, Y13
-	VMULPD      Y13, Y13, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y5, Y13
+	VFMADD231PD  Y1, Y10, Y13
+	VFMADD231PD  Y0, Y6, Y13
+	VFNMADD231PD Y4, Y7, Y13
+	VFNMADD231PD Y3, Y14, Y13
+	VFMADD231PD  Y13, Y13, Y9
 	VMOVSD      16(SI)(BX*8), X5
 	VMOVHPD     16(DI)(BX*8), X5, X5
 	VINSERTF128 $1, X7, Y5, Y5
-	VMULPD      Y0, Y5, Y11
-	VMULPD      Y1, Y6, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y10, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y14, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y13, Y12
-	VSUBPD      Y12, Y11, Y8
-	VMULPD      Y8, Y8, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y10, Y8
+	VFMADD231PD  Y1, Y6, Y8
+	VFMADD231PD  Y0, Y5, Y8
+	VFNMADD231PD Y4, Y14, Y8
+	VFNMADD231PD Y3, Y13, Y8
+	VFMADD231PD  Y8, Y8, Y9
 	VMOVSD      24(SI)(BX*8), X10
 	VMOVHPD     24(DI)(BX*8), X10, X10
 	VINSERTF128 $1, X14, Y10, Y10
-	VMULPD      Y0, Y10, Y11
-	VMULPD      Y1, Y5, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y6, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y13, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y8, Y12
-	VSUBPD      Y12, Y11, Y7
-	VMULPD      Y7, Y7, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y6, Y7
+	VFMADD231PD  Y1, Y5, Y7
+	VFMADD231PD  Y0, Y10, Y7
+	VFNMADD231PD Y4, Y13, Y7
+	VFNMADD231PD Y3, Y8, Y7
+	VFMADD231PD  Y7, Y7, Y9
 	VMOVSD      32(SI)(BX*8), X6
 	VMOVHPD     32(DI)(BX*8), X6, X6
 	VINSERTF128 $1, X13, Y6, Y6
-	VMULPD      Y0, Y6, Y11
-	VMULPD      Y1, Y10, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y5, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y8, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y7, Y12
-	VSUBPD      Y12, Y11, Y14
-	VMULPD      Y14, Y14, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y5, Y14
+	VFMADD231PD  Y1, Y10, Y14
+	VFMADD231PD  Y0, Y6, Y14
+	VFNMADD231PD Y4, Y8, Y14
+	VFNMADD231PD Y3, Y7, Y14
+	VFMADD231PD  Y14, Y14, Y9
 	VMOVSD      40(SI)(BX*8), X5
 	VMOVHPD     40(DI)(BX*8), X5, X5
 	VINSERTF128 $1, X8, Y5, Y5
-	VMULPD      Y0, Y5, Y11
-	VMULPD      Y1, Y6, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y10, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y7, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y14, Y12
-	VSUBPD      Y12, Y11, Y13
-	VMULPD      Y13, Y13, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y10, Y13
+	VFMADD231PD  Y1, Y6, Y13
+	VFMADD231PD  Y0, Y5, Y13
+	VFNMADD231PD Y4, Y7, Y13
+	VFNMADD231PD Y3, Y14, Y13
+	VFMADD231PD  Y13, Y13, Y9
 	VMOVSD      48(SI)(BX*8), X10
 	VMOVHPD     48(DI)(BX*8), X10, X10
 	VINSERTF128 $1, X7, Y10, Y10
-	VMULPD      Y0, Y10, Y11
-	VMULPD      Y1, Y5, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y6, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y14, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y13, Y12
-	VSUBPD      Y12, Y11, Y8
-	VMULPD      Y8, Y8, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y6, Y8
+	VFMADD231PD  Y1, Y5, Y8
+	VFMADD231PD  Y0, Y10, Y8
+	VFNMADD231PD Y4, Y14, Y8
+	VFNMADD231PD Y3, Y13, Y8
+	VFMADD231PD  Y8, Y8, Y9
 	VMOVSD      56(SI)(BX*8), X6
 	VMOVHPD     56(DI)(BX*8), X6, X6
 	VINSERTF128 $1, X14, Y6, Y6
-	VMULPD      Y0, Y6, Y11
-	VMULPD      Y1, Y10, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y5, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y13, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y8, Y12
-	VSUBPD      Y12, Y11, Y7
-	VMULPD      Y7, Y7, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y5, Y7
+	VFMADD231PD  Y1, Y10, Y7
+	VFMADD231PD  Y0, Y6, Y7
+	VFNMADD231PD Y4, Y13, Y7
+	VFNMADD231PD Y3, Y8, Y7
+	VFMADD231PD  Y7, Y7, Y9
 	VMOVSD      64(SI)(BX*8), X5
 	VMOVHPD     64(DI)(BX*8), X5, X5
 	VINSERTF128 $1, X13, Y5, Y5
-	VMULPD      Y0, Y5, Y11
-	VMULPD      Y1, Y6, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y10, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y8, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y7, Y12
-	VSUBPD      Y12, Y11, Y14
-	VMULPD      Y14, Y14, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y10, Y14
+	VFMADD231PD  Y1, Y6, Y14
+	VFMADD231PD  Y0, Y5, Y14
+	VFNMADD231PD Y4, Y8, Y14
+	VFNMADD231PD Y3, Y7, Y14
+	VFMADD231PD  Y14, Y14, Y9
 	VMOVSD      72(SI)(BX*8), X10
 	VMOVHPD     72(DI)(BX*8), X10, X10
 	VINSERTF128 $1, X8, Y10, Y10
-	VMULPD      Y0, Y10, Y11
-	VMULPD      Y1, Y5, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y6, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y7, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y14, Y12
-	VSUBPD      Y12, Y11, Y13
-	VMULPD      Y13, Y13, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y6, Y13
+	VFMADD231PD  Y1, Y5, Y13
+	VFMADD231PD  Y0, Y10, Y13
+	VFNMADD231PD Y4, Y7, Y13
+	VFNMADD231PD Y3, Y14, Y13
+	VFMADD231PD  Y13, Y13, Y9
 	VMOVSD      80(SI)(BX*8), X6
 	VMOVHPD     80(DI)(BX*8), X6, X6
 	VINSERTF128 $1, X7, Y6, Y6
-	VMULPD      Y0, Y6, Y11
-	VMULPD      Y1, Y10, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y5, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y14, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y13, Y12
-	VSUBPD      Y12, Y11, Y8
-	VMULPD      Y8, Y8, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y5, Y8
+	VFMADD231PD  Y1, Y10, Y8
+	VFMADD231PD  Y0, Y6, Y8
+	VFNMADD231PD Y4, Y14, Y8
+	VFNMADD231PD Y3, Y13, Y8
+	VFMADD231PD  Y8, Y8, Y9
 	VMOVSD      88(SI)(BX*8), X5
 	VMOVHPD     88(DI)(BX*8), X5, X5
 	VINSERTF128 $1, X14, Y5, Y5
-	VMULPD      Y0, Y5, Y11
-	VMULPD      Y1, Y6, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y2, Y10, Y12
-	VADDPD      Y12, Y11, Y11
-	VMULPD      Y4, Y13, Y12
-	VSUBPD      Y12, Y11, Y11
-	VMULPD      Y3, Y8, Y12
-	VSUBPD      Y12, Y11, Y7
-	VMULPD      Y7, Y7, Y12
-	VADDPD      Y12, Y9, Y9
+	VMULPD       Y2, Y10, Y7
+	VFMADD231PD  Y1, Y6, Y7
+	VFMADD231PD  Y0, Y5, Y7
+	VFNMADD231PD Y4, Y13, Y7
+	VFNMADD231PD Y3, Y8, Y7
+	VFMADD231PD  Y7, Y7, Y9
 	ADDQ $12, BX
 	JMP  loop12
 
@@ -330,23 +278,18 @@ loop:
 	VMOVHPD     (DI)(BX*8), X10, X10
 	VINSERTF128 $1, X13, Y10, Y10 // x: the new samples, then the shelf outputs of sample i−3
 
-	VMULPD  Y0, Y10, Y11
-	VMULPD  Y1, Y5, Y12
-	VADDPD  Y12, Y11, Y11
-	VMULPD  Y2, Y6, Y12
-	VADDPD  Y12, Y11, Y11
-	VMULPD  Y4, Y8, Y12
-	VSUBPD  Y12, Y11, Y11
-	VMULPD  Y3, Y7, Y12
-	VSUBPD  Y12, Y11, Y11 // Y11 = y
-	VMOVAPD Y5, Y6        // x2 = x1
-	VMOVAPD Y10, Y5       // x1 = x
-	VMOVAPD Y8, Y13       // three samples ago = y2
-	VMOVAPD Y7, Y8        // y2 = y1
-	VMOVAPD Y11, Y7       // y1 = y
+	VMULPD       Y2, Y6, Y11
+	VFMADD231PD  Y1, Y5, Y11
+	VFMADD231PD  Y0, Y10, Y11
+	VFNMADD231PD Y4, Y8, Y11
+	VFNMADD231PD Y3, Y7, Y11 // Y11 = y
+	VMOVAPD      Y5, Y6      // x2 = x1
+	VMOVAPD      Y10, Y5     // x1 = x
+	VMOVAPD      Y8, Y13     // three samples ago = y2
+	VMOVAPD      Y7, Y8      // y2 = y1
+	VMOVAPD      Y11, Y7     // y1 = y
 
-	VMULPD Y11, Y11, Y12
-	VADDPD Y12, Y9, Y9 // e += y·y
+	VFMADD231PD Y11, Y11, Y9 // e = fma(y, y, e)
 
 	INCQ BX
 	CMPQ BX, CX
