@@ -68,14 +68,14 @@ func energyOne(k *KWeighting, a []float64) float64 {
 
 // energyPairStaged is energyPair with AVX2 (energyStagedAVX2): the shelf
 // of both channels in lanes 0 and 1 and their high-pass in lanes 2 and 3,
-// three samples behind, so one register carries all four recursions of a
+// stagedLag samples behind, so one register carries all four recursions of a
 // stereo pair. The K-weighting loop is bound by the instructions it issues
 // as much as by its recursion's latency, and this does one channel-sample
 // of both stages per lane where energyPairSSE2 needs twice the
-// instructions. The shelf of the first three samples is computed here
-// before the kernel, the high-pass of the last three after it, with
+// instructions. The shelf of the first stagedLag samples is computed here
+// before the kernel, the high-pass of the last stagedLag after it, with
 // Energy's very operations; the kernel's lanes are Energy's stages bit for
-// bit (see kweighting_avx2_amd64.s). Fewer than 3 samples go to Energy.
+// bit (see kweighting_avx2_amd64.s). Fewer samples go to Energy.
 func energyPairStaged(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	n := len(a)
 	if n < stagedLag {
@@ -94,7 +94,10 @@ func energyPairStaged(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 			u2, u1 = u1, u[j]
 		}
 		s.b0[i], s.b1[i], s.b2[i], s.a1[i], s.a2[i] = sh.B0, sh.B1, sh.B2, sh.A1, sh.A2
-		s.x1[i], s.x2[i], s.y1[i], s.y2[i], s.d[i] = x1, x2, u[2], u[1], u[0]
+		s.x1[i], s.x2[i], s.y1[i], s.y2[i] = x1, x2, u[stagedLag-1], u[stagedLag-2]
+		for j := range s.d {
+			s.d[j][i] = u[stagedLag-3-j]
+		}
 		// The high-pass: numerator [1, −2, 1] as Energy applies it, input
 		// history the shelf's output history before sample 0.
 		s.b0[i+2], s.b1[i+2], s.b2[i+2], s.a1[i+2], s.a2[i+2] = 1, -2, 1, hp.A1, hp.A2
@@ -103,11 +106,16 @@ func energyPairStaged(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	var e [2]float64
 	e[0], e[1] = energyStagedAVX2(&s, a, b)
 	for i, k := range f {
-		// The high-pass of the last three samples.
+		// The high-pass of the last stagedLag samples, oldest first.
 		hp := &k.HighPass
 		u1, u2 := s.x1[i+2], s.x2[i+2]
 		v1, v2 := s.y1[i+2], s.y2[i+2]
-		for _, u := range [stagedLag]float64{s.d[i], s.y2[i], s.y1[i]} {
+		var pending [stagedLag]float64
+		for j := range s.d {
+			pending[stagedLag-3-j] = s.d[j][i]
+		}
+		pending[stagedLag-2], pending[stagedLag-1] = s.y2[i], s.y1[i]
+		for _, u := range pending {
 			v := math.FMA(-hp.A1, v1, math.FMA(-hp.A2, v2, u+math.FMA(-2, u1, u2)))
 			e[i] = math.FMA(v, v, e[i])
 			u2, u1 = u1, u
@@ -121,22 +129,27 @@ func energyPairStaged(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 }
 
 // stagedLag is how many samples energyStagedAVX2's high-pass lanes run
-// behind its shelf lanes.
-const stagedLag = 3
+// behind its shelf lanes: far enough that the path from a shelf output
+// through the high-pass lanes' operations back into the register (about
+// 15 cycles, see kweighting_avx2_amd64.s) no longer sets the pace of four
+// cycles an iteration (three left it at five).
+const stagedLag = 4
 
 // kweightStaged holds a stereo pair's K-weighting for energyStagedAVX2:
 // lanes 0 and 1 the two shelves, lanes 2 and 3 the two high-passes, each
 // lane a biquad y = fma(−A1, y1, fma(−A2, y2, fma(B0, x, fma(B1, x1, B2·x2))))
 // (Energy's form) with its input
-// history x1, x2 and output history y1, y2; d holds, in lanes 0 and 1, the
-// shelf outputs of three samples back (the high-pass lanes' next input).
+// history x1, x2 and output history y1, y2; d[j] holds, in lanes 0 and
+// 1, the shelf outputs of 3 + j samples back, the last the high-pass
+// lanes' next input.
 type kweightStaged struct {
 	b0, b1, b2, a1, a2 [4]float64
-	x1, x2, y1, y2, d  [4]float64
+	x1, x2, y1, y2     [4]float64
+	d                  [stagedLag - 2][4]float64
 }
 
-// energyStagedAVX2 runs samples 3 … len(a)−1 of the shelves and samples
-// 0 … len(a)−4 of the high-passes of s over a and b (len(b) ≥ len(a)),
+// energyStagedAVX2 runs samples 4 … len(a)−1 of the shelves and samples
+// 0 … len(a)−5 of the high-passes of s over a and b (len(b) ≥ len(a)),
 // updates s and returns Σ y² of the two high-passes
 // (kweighting_avx2_amd64.s).
 //

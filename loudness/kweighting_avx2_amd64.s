@@ -99,36 +99,38 @@ done:
 //
 // Two channels, both stages, in the four lanes of one AVX2 register: lanes
 // 0 and 1 run the shelf of channels a and b on sample i, lanes 2 and 3 the
-// high-pass of the same channels on sample i−3, whose input is the shelf
-// output of lanes 0 and 1 three iterations earlier (kept in Y13). Three
-// samples apart, the path from a shelf output through the high-pass
-// lanes' operations back into the register spans three iterations and
-// sets the pace less. Both stages are the same biquad form with fused
-// multiply-adds (VFNMADD231PD computes −(p·q) + r, fma(−p, q, r) bit for
-// bit), the high-pass with the numerator [1, −2, 1], for which the form
-// is Energy's high-pass exactly (1·u2 = u2, so fma(−2, u1, 1·u2) is
-// fma(−2, u1, u2), and fma(1, u, s) = u + s), so every lane computes
-// exactly what Energy computes:
+// high-pass of the same channels on sample i−4, whose input is the shelf
+// output of lanes 0 and 1 four iterations earlier. Both stages are the
+// same biquad form with fused multiply-adds (VFNMADD231PD computes
+// −(p·q) + r, fma(−p, q, r) bit for bit), the high-pass with the
+// numerator [1, −2, 1], for which the form is Energy's high-pass exactly
+// (1·u2 = u2, so fma(−2, u1, 1·u2) is fma(−2, u1, u2), and
+// fma(1, u, s) = u + s), so every lane computes exactly what Energy
+// computes:
 //
 //	y = fma(−A1, y1, fma(−A2, y2, fma(B0, x, fma(B1, x1, B2·x2))))
 //	e = fma(y, y, e)
 //
-// The loop-carried chain is then the two fused feedback steps (4 cycles a
-// step on the project's CPU) and, from the shelf outputs that the
-// high-pass lanes take in three iterations later, the insert, the
-// fma(B0, x, …) and the two feedback steps: about 15 cycles over three
-// iterations, the pace of this loop (the unfused form took 8 cycles an
-// iteration). The CPU must have FMA (bestKernels checks).
+// Why four samples apart: the loop-carried chains are the feedback steps,
+// one fused multiply-add (4 cycles on the project's CPU) an iteration
+// through y1 and two every two iterations through y2, and the path from a
+// shelf output through the high-pass lanes, which are in the same
+// register: the insert (3 cycles), fma(B0, x, …) and the two feedback
+// steps, 15 cycles, plus one or two steps more through x1 and x2 (19 and
+// 23 cycles, one and two iterations longer). Spread over four, five and
+// six iterations these stay under 4 cycles an iteration; over three (the
+// lag of the unfused kernel, whose iteration took 8 cycles) they made 5.
+// The CPU must have FMA (bestKernels checks).
 //
-// The caller runs the shelf of samples 0…2 before and the high-pass of the
-// last three samples after (energyPairStaged), so the loop covers samples
-// 3 … len(a)−1 of the shelf; it returns Σ y² of lanes 2 and 3 (the
-// high-pass outputs of samples 0 … len(a)−4), added in sample order from 0.
+// The caller runs the shelf of samples 0…3 before and the high-pass of the
+// last four samples after (energyPairStaged), so the loop covers samples
+// 4 … len(a)−1 of the shelf; it returns Σ y² of lanes 2 and 3 (the
+// high-pass outputs of samples 0 … len(a)−5), added in sample order from 0.
 //
 // Registers: Y0 B0, Y1 B1, Y2 B2, Y3 A1, Y4 A2; state Y5 x1, Y6 x2,
-// Y7 y1, Y8 y2, Y13 the shelf outputs of three samples ago; Y9 e;
-// Y10, Y11 (and Y14 in loop12) scratch. SI, DI the inputs, DX s, BX index,
-// CX length.
+// Y7 y1, Y8 y2, Y13 and Y14 the shelf outputs of three and four samples
+// ago (s.d[0], s.d[1]); Y9 e; Y10, Y11 scratch. SI, DI the inputs, DX s,
+// BX index, CX length.
 TEXT ·energyStagedAVX2(SB), NOSPLIT, $0-72
 	MOVQ s+0(FP), DX
 	MOVQ a_base+8(FP), SI
@@ -145,121 +147,125 @@ TEXT ·energyStagedAVX2(SB), NOSPLIT, $0-72
 	VMOVUPD kweightStaged_y1(DX), Y7
 	VMOVUPD kweightStaged_y2(DX), Y8
 	VMOVUPD kweightStaged_d(DX), Y13
+	VMOVUPD kweightStaged_d+32(DX), Y14
 	VXORPD  Y9, Y9, Y9
 
-	MOVQ $3, BX
+	MOVQ $4, BX
 
 	// Twelve samples per iteration while twelve are left (loop12): the
 	// histories rotate through registers instead of being moved (x, x1,
-	// x2 through Y10, Y6, Y5; y, y1, y2 and the shelf outputs of three
-	// samples ago through Y14, Y13, Y8, Y7), and after twelve samples every
-	// value is back in the register loop expects it in.
+	// x2 through Y10, Y5, Y6, the new sample loaded into the register of
+	// the x2 no longer needed; y1, y2 and the shelf outputs of three and
+	// four samples ago through Y7, Y8, Y13, Y14, each new y written into
+	// the register whose four-samples-ago value the insert has just
+	// taken), and after twelve samples every value is back in the register
+	// loop expects it in.
 loop12:
 	LEAQ 12(BX), AX
 	CMPQ AX, CX
 	JGT  tail
-	VMOVSD      0(SI)(BX*8), X10
-	VMOVHPD     0(DI)(BX*8), X10, X10
-	VINSERTF128 $1, X13, Y10, Y10
+	VMOVSD       0(SI)(BX*8), X10
+	VMOVHPD      0(DI)(BX*8), X10, X10
+	VINSERTF128  $1, X14, Y10, Y10
 	VMULPD       Y2, Y6, Y14
 	VFMADD231PD  Y1, Y5, Y14
 	VFMADD231PD  Y0, Y10, Y14
 	VFNMADD231PD Y4, Y8, Y14
 	VFNMADD231PD Y3, Y7, Y14
 	VFMADD231PD  Y14, Y14, Y9
-	VMOVSD      8(SI)(BX*8), X6
-	VMOVHPD     8(DI)(BX*8), X6, X6
-	VINSERTF128 $1, X8, Y6, Y6
+	VMOVSD       8(SI)(BX*8), X6
+	VMOVHPD      8(DI)(BX*8), X6, X6
+	VINSERTF128  $1, X13, Y6, Y6
 	VMULPD       Y2, Y5, Y13
 	VFMADD231PD  Y1, Y10, Y13
 	VFMADD231PD  Y0, Y6, Y13
 	VFNMADD231PD Y4, Y7, Y13
 	VFNMADD231PD Y3, Y14, Y13
 	VFMADD231PD  Y13, Y13, Y9
-	VMOVSD      16(SI)(BX*8), X5
-	VMOVHPD     16(DI)(BX*8), X5, X5
-	VINSERTF128 $1, X7, Y5, Y5
+	VMOVSD       16(SI)(BX*8), X5
+	VMOVHPD      16(DI)(BX*8), X5, X5
+	VINSERTF128  $1, X8, Y5, Y5
 	VMULPD       Y2, Y10, Y8
 	VFMADD231PD  Y1, Y6, Y8
 	VFMADD231PD  Y0, Y5, Y8
 	VFNMADD231PD Y4, Y14, Y8
 	VFNMADD231PD Y3, Y13, Y8
 	VFMADD231PD  Y8, Y8, Y9
-	VMOVSD      24(SI)(BX*8), X10
-	VMOVHPD     24(DI)(BX*8), X10, X10
-	VINSERTF128 $1, X14, Y10, Y10
+	VMOVSD       24(SI)(BX*8), X10
+	VMOVHPD      24(DI)(BX*8), X10, X10
+	VINSERTF128  $1, X7, Y10, Y10
 	VMULPD       Y2, Y6, Y7
 	VFMADD231PD  Y1, Y5, Y7
 	VFMADD231PD  Y0, Y10, Y7
 	VFNMADD231PD Y4, Y13, Y7
 	VFNMADD231PD Y3, Y8, Y7
 	VFMADD231PD  Y7, Y7, Y9
-	VMOVSD      32(SI)(BX*8), X6
-	VMOVHPD     32(DI)(BX*8), X6, X6
-	VINSERTF128 $1, X13, Y6, Y6
+	VMOVSD       32(SI)(BX*8), X6
+	VMOVHPD      32(DI)(BX*8), X6, X6
+	VINSERTF128  $1, X14, Y6, Y6
 	VMULPD       Y2, Y5, Y14
 	VFMADD231PD  Y1, Y10, Y14
 	VFMADD231PD  Y0, Y6, Y14
 	VFNMADD231PD Y4, Y8, Y14
 	VFNMADD231PD Y3, Y7, Y14
 	VFMADD231PD  Y14, Y14, Y9
-	VMOVSD      40(SI)(BX*8), X5
-	VMOVHPD     40(DI)(BX*8), X5, X5
-	VINSERTF128 $1, X8, Y5, Y5
+	VMOVSD       40(SI)(BX*8), X5
+	VMOVHPD      40(DI)(BX*8), X5, X5
+	VINSERTF128  $1, X13, Y5, Y5
 	VMULPD       Y2, Y10, Y13
 	VFMADD231PD  Y1, Y6, Y13
 	VFMADD231PD  Y0, Y5, Y13
 	VFNMADD231PD Y4, Y7, Y13
 	VFNMADD231PD Y3, Y14, Y13
 	VFMADD231PD  Y13, Y13, Y9
-	VMOVSD      48(SI)(BX*8), X10
-	VMOVHPD     48(DI)(BX*8), X10, X10
-	VINSERTF128 $1, X7, Y10, Y10
+	VMOVSD       48(SI)(BX*8), X10
+	VMOVHPD      48(DI)(BX*8), X10, X10
+	VINSERTF128  $1, X8, Y10, Y10
 	VMULPD       Y2, Y6, Y8
 	VFMADD231PD  Y1, Y5, Y8
 	VFMADD231PD  Y0, Y10, Y8
 	VFNMADD231PD Y4, Y14, Y8
 	VFNMADD231PD Y3, Y13, Y8
 	VFMADD231PD  Y8, Y8, Y9
-	VMOVSD      56(SI)(BX*8), X6
-	VMOVHPD     56(DI)(BX*8), X6, X6
-	VINSERTF128 $1, X14, Y6, Y6
+	VMOVSD       56(SI)(BX*8), X6
+	VMOVHPD      56(DI)(BX*8), X6, X6
+	VINSERTF128  $1, X7, Y6, Y6
 	VMULPD       Y2, Y5, Y7
 	VFMADD231PD  Y1, Y10, Y7
 	VFMADD231PD  Y0, Y6, Y7
 	VFNMADD231PD Y4, Y13, Y7
 	VFNMADD231PD Y3, Y8, Y7
 	VFMADD231PD  Y7, Y7, Y9
-	VMOVSD      64(SI)(BX*8), X5
-	VMOVHPD     64(DI)(BX*8), X5, X5
-	VINSERTF128 $1, X13, Y5, Y5
+	VMOVSD       64(SI)(BX*8), X5
+	VMOVHPD      64(DI)(BX*8), X5, X5
+	VINSERTF128  $1, X14, Y5, Y5
 	VMULPD       Y2, Y10, Y14
 	VFMADD231PD  Y1, Y6, Y14
 	VFMADD231PD  Y0, Y5, Y14
 	VFNMADD231PD Y4, Y8, Y14
 	VFNMADD231PD Y3, Y7, Y14
 	VFMADD231PD  Y14, Y14, Y9
-	VMOVSD      72(SI)(BX*8), X10
-	VMOVHPD     72(DI)(BX*8), X10, X10
-	VINSERTF128 $1, X8, Y10, Y10
+	VMOVSD       72(SI)(BX*8), X10
+	VMOVHPD      72(DI)(BX*8), X10, X10
+	VINSERTF128  $1, X13, Y10, Y10
 	VMULPD       Y2, Y6, Y13
 	VFMADD231PD  Y1, Y5, Y13
 	VFMADD231PD  Y0, Y10, Y13
 	VFNMADD231PD Y4, Y7, Y13
 	VFNMADD231PD Y3, Y14, Y13
 	VFMADD231PD  Y13, Y13, Y9
-	VMOVSD      80(SI)(BX*8), X6
-	VMOVHPD     80(DI)(BX*8), X6, X6
-	VINSERTF128 $1, X7, Y6, Y6
+	VMOVSD       80(SI)(BX*8), X6
+	VMOVHPD      80(DI)(BX*8), X6, X6
+	VINSERTF128  $1, X8, Y6, Y6
 	VMULPD       Y2, Y5, Y8
 	VFMADD231PD  Y1, Y10, Y8
 	VFMADD231PD  Y0, Y6, Y8
 	VFNMADD231PD Y4, Y14, Y8
 	VFNMADD231PD Y3, Y13, Y8
 	VFMADD231PD  Y8, Y8, Y9
-	VMOVSD      88(SI)(BX*8), X5
-	VMOVHPD     88(DI)(BX*8), X5, X5
-	VINSERTF128 $1, X14, Y5, Y5
+	VMOVSD       88(SI)(BX*8), X5
+	VMOVHPD      88(DI)(BX*8), X5, X5
+	VINSERTF128  $1, X7, Y5, Y5
 	VMULPD       Y2, Y10, Y7
 	VFMADD231PD  Y1, Y6, Y7
 	VFMADD231PD  Y0, Y5, Y7
@@ -276,7 +282,7 @@ tail:
 loop:
 	VMOVSD      (SI)(BX*8), X10
 	VMOVHPD     (DI)(BX*8), X10, X10
-	VINSERTF128 $1, X13, Y10, Y10 // x: the new samples, then the shelf outputs of sample i−3
+	VINSERTF128 $1, X14, Y10, Y10 // x: the new samples, then the shelf outputs of sample i−4
 
 	VMULPD       Y2, Y6, Y11
 	VFMADD231PD  Y1, Y5, Y11
@@ -285,6 +291,7 @@ loop:
 	VFNMADD231PD Y3, Y7, Y11 // Y11 = y
 	VMOVAPD      Y5, Y6      // x2 = x1
 	VMOVAPD      Y10, Y5     // x1 = x
+	VMOVAPD      Y13, Y14    // four samples ago = three samples ago
 	VMOVAPD      Y8, Y13     // three samples ago = y2
 	VMOVAPD      Y7, Y8      // y2 = y1
 	VMOVAPD      Y11, Y7     // y1 = y
@@ -301,6 +308,7 @@ done:
 	VMOVUPD      Y7, kweightStaged_y1(DX)
 	VMOVUPD      Y8, kweightStaged_y2(DX)
 	VMOVUPD      Y13, kweightStaged_d(DX)
+	VMOVUPD      Y14, kweightStaged_d+32(DX)
 	VEXTRACTF128 $1, Y9, X10
 	VMOVSD       X10, e0+56(FP)
 	VMOVHPD      X10, e1+64(FP)
