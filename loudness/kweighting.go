@@ -276,3 +276,46 @@ func (k *KWeighting) energyUnfused(src []float64) float64 {
 	h.x1, h.x2, h.y1, h.y2 = u1, u2, v1, v2
 	return e
 }
+
+// energyGroups returns f[i].Energy(x[i]) (or what the kernel set's
+// energyQuad, energyPair and energyOne return) into e[:len(f)] for 1 to 8
+// filters, four at a time while four are left, then two, then one: what
+// energyOct does where there is no eight-lane kernel. Every x[i] must be
+// as long as x[0].
+func energyGroups(f []*KWeighting, x [][]float64) (e [8]float64) {
+	n := len(x[0])
+	i := 0
+	for ; i+4 <= len(f); i += 4 {
+		q := energyQuad([4]*KWeighting{f[i], f[i+1], f[i+2], f[i+3]}, [4][]float64{x[i], x[i+1], x[i+2], x[i+3]})
+		copy(e[i:], q[:])
+	}
+	for ; i+2 <= len(f); i += 2 {
+		e[i], e[i+1] = energyPair(f[i], f[i+1], x[i], x[i+1][:n])
+	}
+	if i < len(f) {
+		e[i] = energyOne(f[i], x[i][:n])
+	}
+	return e
+}
+
+// addChannelEnergy adds to m.energy the weighted K-filtered energy of the n
+// samples waiting in the inputs of channels ch (1 to 8, in channel order),
+// in that order: five or more in one eight-lane call where the kernel set
+// has one (energyOct), else four, two and one at a time (energyGroups).
+// It is Meter.addEnergy's step, kept here beside the kernels it chooses.
+func (m *Meter) addChannelEnergy(ch []int, n int) {
+	var f [8]*KWeighting
+	var x [8][]float64
+	for i, c := range ch {
+		f[i], x[i] = &m.filters[c], m.peaks[c].input(n)
+	}
+	var e [8]float64
+	if len(ch) >= 5 && octEnergy() {
+		e = energyOct(f[:len(ch)], x[:len(ch)])
+	} else {
+		e = energyGroups(f[:len(ch)], x[:len(ch)])
+	}
+	for i, c := range ch {
+		m.energy += m.weights[c] * e[i]
+	}
+}

@@ -220,3 +220,62 @@ func energyQuad(f [4]*KWeighting, x [4][]float64) (e [4]float64) {
 //
 //go:noescape
 func energyQuadAVX2(s *kweightQuad, a, b, c, d []float64) (ea, eb, ec, ed float64)
+
+// kweightOct is kweightQuad for eight filters (energyOctAVX512), with the
+// eight energies the kernel returns.
+type kweightOct struct {
+	b0, b1, b2, a1, a2, c1, c2 [8]float64
+	x1, x2, u1, u2, v1, v2     [8]float64
+	e                          [8]float64
+}
+
+// octEnergy reports whether energyOct runs five to eight channels at once
+// here: on the avx512 set.
+func octEnergy() bool { return kernels >= avx512Kernels }
+
+// energyOct returns f[i].Energy(x[i]) for len(f) filters, 1 to 8, bit for
+// bit, into e[:len(f)], and leaves their state as Energy would; every x[i]
+// must be as long as x[0]. With AVX-512 all of them run in the eight
+// lanes of one register (energyOctAVX512), each lane performing Energy's
+// operations in order; lanes beyond len(f) filter a scratch copy of the
+// first channel, whose results are dropped. Where there is no eight-lane
+// kernel, energyQuad and energyPair take the channels in order.
+func energyOct(f []*KWeighting, x [][]float64) (e [8]float64) {
+	if !octEnergy() {
+		return energyGroups(f, x)
+	}
+	n := len(x[0])
+	var s kweightOct
+	var in [8]*float64
+	scratch := *f[0]
+	for i := range 8 {
+		k, xi := &scratch, x[0]
+		if i < len(f) {
+			k, xi = f[i], x[i][:n]
+		}
+		if n > 0 {
+			in[i] = &xi[0]
+		}
+		s.b0[i], s.b1[i], s.b2[i], s.a1[i], s.a2[i] = k.Shelf.B0, k.Shelf.B1, k.Shelf.B2, k.Shelf.A1, k.Shelf.A2
+		s.c1[i], s.c2[i] = k.HighPass.A1, k.HighPass.A2
+		s.x1[i], s.x2[i], s.u1[i], s.u2[i] = k.Shelf.x1, k.Shelf.x2, k.Shelf.y1, k.Shelf.y2
+		s.v1[i], s.v2[i] = k.HighPass.y1, k.HighPass.y2
+	}
+	if n > 0 {
+		energyOctAVX512(&s, &in, n)
+	}
+	for i, k := range f {
+		k.Shelf.x1, k.Shelf.x2, k.Shelf.y1, k.Shelf.y2 = s.x1[i], s.x2[i], s.u1[i], s.u2[i]
+		// The high-pass input history is the shelf output history.
+		k.HighPass.x1, k.HighPass.x2, k.HighPass.y1, k.HighPass.y2 = s.u1[i], s.u2[i], s.v1[i], s.v2[i]
+		e[i] = s.e[i]
+	}
+	return e
+}
+
+// energyOctAVX512 filters in[i][0…n−1] (n ≥ 1) through the eight filters
+// of s, updates their state and stores Σy² of each in s.e
+// (kweighting_avx512_amd64.s). The CPU must have AVX-512 F and DQ and FMA.
+//
+//go:noescape
+func energyOctAVX512(s *kweightOct, in *[8]*float64, n int)

@@ -5,6 +5,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // Tests of the fused K-weighting (Energy) against the form it replaced
@@ -393,5 +395,101 @@ func TestEnergyFusedDiffersFromUnfused(t *testing.T) {
 	}
 	if !sameBits(ef, e) {
 		t.Errorf("Energy %.17g, the fused loop written out %.17g", ef, e)
+	}
+}
+
+// TestEnergyOctMatchesEnergy checks the eight-lane K-weighting path
+// (energyOct: energyOctAVX512 on the avx512 set, groups of four, two and
+// one elsewhere) against the Go twin (kweightingTwin) for every channel
+// count from 1 to 8, with a different rate in every lane, on programme,
+// full-scale, spiky, non-finite and edge signals, at lengths around its
+// three-sample loop and in writes of several sizes: every energy and the
+// filter state after every call bit for bit, on every kernel set.
+func TestEnergyOctMatchesEnergy(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		twin := kweightingTwin()
+		rates := [8]int{48000, 44100, 96000, 8000, 384000, 22050, 192000, 32000}
+		for _, n := range []int{0, 1, 2, 3, 4, 5, 7, 31, 1024, 4801} {
+			sigs := kernelSignals(n)
+			for k, v := range kweightingEdgeSignals(n) {
+				sigs[k] = v
+			}
+			names := []string{"programme", "dense-full-scale", "spikes", "non-finite", "denormal", "square", "max", "signed-zeros", "nan-inf", "to-denormal"}
+			for channels := 1; channels <= 8; channels++ {
+				for _, step := range []int{1, 3, 1024} {
+					f := make([]KWeighting, channels)
+					ref := make([]KWeighting, channels)
+					fp := make([]*KWeighting, channels)
+					for c := range f {
+						f[c] = NewKWeighting(rates[c])
+						ref[c] = f[c]
+						fp[c] = &f[c]
+					}
+					for lo := 0; lo < n; lo += step {
+						hi := min(lo+step, n)
+						x := make([][]float64, channels)
+						for c := range x {
+							x[c] = sigs[names[(c+channels)%len(names)]][lo:hi]
+						}
+						e := energyOct(fp, x)
+						for c := range channels {
+							if w := twin(&ref[c], x[c]); !sameBits(e[c], w) {
+								t.Fatalf("%d channels, %d samples in writes of %d, samples %d–%d, lane %d: kernel %.17g, twin %.17g", channels, n, step, lo, hi, c, e[c], w)
+							}
+							if !sameState(&f[c], &ref[c]) {
+								t.Fatalf("%d channels, %d samples in writes of %d, lane %d: filter state differs from the twin's", channels, n, step, c)
+							}
+						}
+					}
+				}
+			}
+		}
+	})
+}
+
+// BenchmarkKWeighting48k5ch is the K-weighting energy of the five weighted
+// channels of 5.1 (L R C Ls Rs) as the meter runs them: in one eight-lane
+// call where the set has it ("eight-lane", energyOct), and four plus one
+// (energyQuad, energyOne: "four-plus-one") in the same run. Reported per
+// five channels.
+func BenchmarkKWeighting48k5ch(b *testing.B) {
+	const rate = 48000
+	x := make([][]float64, 5)
+	for c := range x {
+		x[c] = musicLike(uint64(c)+1, benchSeconds*rate, rate)
+	}
+	for _, mode := range []string{"eight-lane", "four-plus-one"} {
+		b.Run(mode, func(b *testing.B) {
+			if mode == "eight-lane" && !octEnergy() {
+				b.Skip("no eight-lane kernel on this set")
+			}
+			f := make([]KWeighting, 5)
+			fp := make([]*KWeighting, 5)
+			for c := range f {
+				f[c] = NewKWeighting(rate)
+				fp[c] = &f[c]
+			}
+			b.SetBytes(int64(5 * len(x[0]) * 8))
+			clock := audiotest.StartRealtimeThread(b)
+			var sink float64
+			in := make([][]float64, 5)
+			for range b.N {
+				for i := 0; i < len(x[0]); i += chunkFrames {
+					j := min(i+chunkFrames, len(x[0]))
+					for c := range in {
+						in[c] = x[c][i:j]
+					}
+					var e [8]float64
+					if mode == "eight-lane" {
+						e = energyOct(fp, in)
+					} else {
+						e = energyGroups(fp, in)
+					}
+					sink += e[0] + e[4]
+				}
+			}
+			_ = sink
+			clock.Report(benchSeconds)
+		})
 	}
 }

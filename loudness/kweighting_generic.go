@@ -22,3 +22,9 @@ func energyQuad(f [4]*KWeighting, x [4][]float64) (e [4]float64) {
 
 // energyOne is k.Energy(a) on platforms without a SIMD kernel.
 func energyOne(k *KWeighting, a []float64) float64 { return k.Energy(a) }
+
+// octEnergy reports false: no eight-lane kernel here.
+func octEnergy() bool { return false }
+
+// energyOct is energyGroups on platforms without an eight-lane kernel.
+func energyOct(f []*KWeighting, x [][]float64) (e [8]float64) { return energyGroups(f, x) }

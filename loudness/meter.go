@@ -330,45 +330,31 @@ func (m *Meter) split6(frames []float64, n int) bool {
 
 // addEnergy adds the weighted K-filtered energy of the n samples waiting in
 // each channel's input. The filter is latency-bound, so channels go through
-// it several at a time: four (energyQuad) where AVX2 runs them in one
-// register, then two (energyPair); an odd one out goes alone (energyOne). Channels of
-// weight 0 are skipped, and the sum is taken in channel order either way.
+// it several at a time (addChannelEnergy): up to eight in one register
+// (energyOct) with AVX-512, four (energyQuad) where AVX2 runs them in one
+// register, then two (energyPair); an odd one out goes alone (energyOne).
+// Channels of weight 0 are skipped, and the sum is taken in channel order
+// either way.
 func (m *Meter) addEnergy(n int) {
-	var wait [4]int // weighted channels not yet filtered
+	var wait [8]int // weighted channels not yet filtered
 	k := 0
-	quad := quadEnergy()
+	group := 4
+	if octEnergy() {
+		group = 8
+	}
 	for c, w := range m.weights {
 		if !(w > 0) {
 			continue
 		}
 		wait[k] = c
 		k++
-		if k == 4 {
-			f := [4]*KWeighting{&m.filters[wait[0]], &m.filters[wait[1]], &m.filters[wait[2]], &m.filters[wait[3]]}
-			x := [4][]float64{m.peaks[wait[0]].input(n), m.peaks[wait[1]].input(n), m.peaks[wait[2]].input(n), m.peaks[wait[3]].input(n)}
-			e := energyQuad(f, x)
-			for i, ch := range wait {
-				m.energy += m.weights[ch] * e[i]
-			}
-			k = 0
-		}
-		if k == 2 && !quad {
-			ea, eb := energyPair(&m.filters[wait[0]], &m.filters[wait[1]], m.peaks[wait[0]].input(n), m.peaks[wait[1]].input(n))
-			m.energy += m.weights[wait[0]] * ea
-			m.energy += m.weights[wait[1]] * eb
+		if k == group {
+			m.addChannelEnergy(wait[:k], n)
 			k = 0
 		}
 	}
-	i := 0
-	for ; i+1 < k; i += 2 {
-		a, b := wait[i], wait[i+1]
-		ea, eb := energyPair(&m.filters[a], &m.filters[b], m.peaks[a].input(n), m.peaks[b].input(n))
-		m.energy += m.weights[a] * ea
-		m.energy += m.weights[b] * eb
-	}
-	if i < k {
-		c := wait[i]
-		m.energy += m.weights[c] * energyOne(&m.filters[c], m.peaks[c].input(n))
+	if k > 0 {
+		m.addChannelEnergy(wait[:k], n)
 	}
 }
 
