@@ -17,20 +17,28 @@ GLOBL kweightOctMinusTwo<>(SB), RODATA|NOPTR, $8
 //	v = fma(−c1, v1, fma(−c2, v2, u + fma(−2, u1, u2)))
 //	e = fma(v, v, e)
 //
-// One gather loads sample j of all eight channels (the addresses are the
-// eight base pointers plus the byte offset in R10). Three samples per
-// iteration while three are left (loop3), the histories rotating through
-// three registers each (x through Z5, Z6, Z17; u through Z7, Z8, Z18; v
-// through Z9, Z10, Z19; the new value written into the register of the
-// value two samples back, which fma(−2, u1, u2) and the feedback have
-// just used for the last time), so no register is moved; after three
-// samples every value is back where it started. The rest one at a time.
+// Twenty-four samples per iteration while 24 are left (loop24): three
+// times eight samples of each channel loaded as eight rows and transposed
+// (unpacks, then two rounds of 128-bit shuffles: three shuffles a
+// sample) into eight registers of one sample each, which the sample's
+// operations read as x directly. The u and v histories rotate through
+// three registers each (u through Z7, Z8, Z18; v through Z9, Z10, Z19;
+// the new value written into the register of the value two samples back,
+// which fma(−2, u1, u2) and the feedback have just used for the last
+// time), so no register is moved, and after 24 samples (a multiple of
+// three) every value is back where it started; x1 and x2 are copied to Z5
+// and Z6 after each eight. Then three samples per iteration while three
+// are left (loop3) and the rest one at a time, where one gather loads
+// sample j of all eight channels (the addresses are the eight base
+// pointers plus the byte offset in R10; x rotates through Z5, Z6, Z17).
 // The loop-carried chains are one fused multiply-add a sample per stage
 // and the energy's.
 //
 // Registers: Z0 a1, Z1 c1, Z2 b0, Z3 b1, Z4 b2, Z12 a2, Z13 c2, Z14 −2;
-// Z11 e; Z16 the eight base pointers; the histories as above. R10 the byte
-// offset of the sample, CX the samples left, DX s.
+// Z11 e; Z16 the eight base pointers (SI, DI, R8, R9, R11, R12, R13, BX
+// the same for the row loads); Z20–Z31 the rows and their transposition;
+// the histories as above. R10 the byte offset of the sample, CX the
+// samples left, DX s.
 TEXT ·energyOctAVX512(SB), NOSPLIT, $0-24
 	MOVQ s+0(FP), DX
 	MOVQ in+8(FP), AX
@@ -53,6 +61,366 @@ TEXT ·energyOctAVX512(SB), NOSPLIT, $0-24
 	VMOVDQU64    (AX), Z16
 	VPXORQ       Z11, Z11, Z11
 	XORQ         R10, R10
+	MOVQ         0(AX), SI
+	MOVQ         8(AX), DI
+	MOVQ         16(AX), R8
+	MOVQ         24(AX), R9
+	MOVQ         32(AX), R11
+	MOVQ         40(AX), R12
+	MOVQ         48(AX), R13
+	MOVQ         56(AX), BX
+
+loop24:
+	CMPQ CX, $24
+	JLT  loop3
+	// Samples 0…7: one row of eight samples from each channel, transposed.
+	VMOVUPD      0(SI)(R10*1), Z20
+	VMOVUPD      0(DI)(R10*1), Z21
+	VMOVUPD      0(R8)(R10*1), Z22
+	VMOVUPD      0(R9)(R10*1), Z23
+	VMOVUPD      0(R11)(R10*1), Z24
+	VMOVUPD      0(R12)(R10*1), Z25
+	VMOVUPD      0(R13)(R10*1), Z26
+	VMOVUPD      0(BX)(R10*1), Z27
+	VUNPCKLPD    Z21, Z20, Z28
+	VUNPCKHPD    Z21, Z20, Z29
+	VUNPCKLPD    Z23, Z22, Z30
+	VUNPCKHPD    Z23, Z22, Z31
+	VUNPCKLPD    Z25, Z24, Z20
+	VUNPCKHPD    Z25, Z24, Z21
+	VUNPCKLPD    Z27, Z26, Z22
+	VUNPCKHPD    Z27, Z26, Z23
+	VSHUFF64X2   $0x88, Z30, Z28, Z24
+	VSHUFF64X2   $0xDD, Z30, Z28, Z25
+	VSHUFF64X2   $0x88, Z22, Z20, Z26
+	VSHUFF64X2   $0xDD, Z22, Z20, Z27
+	VSHUFF64X2   $0x88, Z31, Z29, Z28
+	VSHUFF64X2   $0xDD, Z31, Z29, Z30
+	VSHUFF64X2   $0x88, Z23, Z21, Z20
+	VSHUFF64X2   $0xDD, Z23, Z21, Z22
+	VSHUFF64X2   $0x88, Z26, Z24, Z29
+	VSHUFF64X2   $0xDD, Z26, Z24, Z31
+	VSHUFF64X2   $0x88, Z27, Z25, Z21
+	VSHUFF64X2   $0xDD, Z27, Z25, Z23
+	VSHUFF64X2   $0x88, Z20, Z28, Z24
+	VSHUFF64X2   $0xDD, Z20, Z28, Z25
+	VSHUFF64X2   $0x88, Z22, Z30, Z26
+	VSHUFF64X2   $0xDD, Z22, Z30, Z27
+	VMULPD       Z4, Z6, Z18
+	VFMADD231PD  Z3, Z5, Z18
+	VFMADD231PD  Z2, Z29, Z18
+	VFNMADD231PD Z12, Z8, Z18
+	VFNMADD231PD Z0, Z7, Z18 // u
+	VFMADD231PD  Z14, Z7, Z8 // fma(−2, u1, u2)
+	VADDPD       Z8, Z18, Z19
+	VFNMADD231PD Z13, Z10, Z19
+	VFNMADD231PD Z1, Z9, Z19 // v
+	VFMADD231PD  Z19, Z19, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z5, Z8
+	VFMADD231PD  Z3, Z29, Z8
+	VFMADD231PD  Z2, Z24, Z8
+	VFNMADD231PD Z12, Z7, Z8
+	VFNMADD231PD Z0, Z18, Z8 // u
+	VFMADD231PD  Z14, Z18, Z7 // fma(−2, u1, u2)
+	VADDPD       Z7, Z8, Z10
+	VFNMADD231PD Z13, Z9, Z10
+	VFNMADD231PD Z1, Z19, Z10 // v
+	VFMADD231PD  Z10, Z10, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z29, Z7
+	VFMADD231PD  Z3, Z24, Z7
+	VFMADD231PD  Z2, Z21, Z7
+	VFNMADD231PD Z12, Z18, Z7
+	VFNMADD231PD Z0, Z8, Z7 // u
+	VFMADD231PD  Z14, Z8, Z18 // fma(−2, u1, u2)
+	VADDPD       Z18, Z7, Z9
+	VFNMADD231PD Z13, Z19, Z9
+	VFNMADD231PD Z1, Z10, Z9 // v
+	VFMADD231PD  Z9, Z9, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z24, Z18
+	VFMADD231PD  Z3, Z21, Z18
+	VFMADD231PD  Z2, Z26, Z18
+	VFNMADD231PD Z12, Z8, Z18
+	VFNMADD231PD Z0, Z7, Z18 // u
+	VFMADD231PD  Z14, Z7, Z8 // fma(−2, u1, u2)
+	VADDPD       Z8, Z18, Z19
+	VFNMADD231PD Z13, Z10, Z19
+	VFNMADD231PD Z1, Z9, Z19 // v
+	VFMADD231PD  Z19, Z19, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z21, Z8
+	VFMADD231PD  Z3, Z26, Z8
+	VFMADD231PD  Z2, Z31, Z8
+	VFNMADD231PD Z12, Z7, Z8
+	VFNMADD231PD Z0, Z18, Z8 // u
+	VFMADD231PD  Z14, Z18, Z7 // fma(−2, u1, u2)
+	VADDPD       Z7, Z8, Z10
+	VFNMADD231PD Z13, Z9, Z10
+	VFNMADD231PD Z1, Z19, Z10 // v
+	VFMADD231PD  Z10, Z10, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z26, Z7
+	VFMADD231PD  Z3, Z31, Z7
+	VFMADD231PD  Z2, Z25, Z7
+	VFNMADD231PD Z12, Z18, Z7
+	VFNMADD231PD Z0, Z8, Z7 // u
+	VFMADD231PD  Z14, Z8, Z18 // fma(−2, u1, u2)
+	VADDPD       Z18, Z7, Z9
+	VFNMADD231PD Z13, Z19, Z9
+	VFNMADD231PD Z1, Z10, Z9 // v
+	VFMADD231PD  Z9, Z9, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z31, Z18
+	VFMADD231PD  Z3, Z25, Z18
+	VFMADD231PD  Z2, Z23, Z18
+	VFNMADD231PD Z12, Z8, Z18
+	VFNMADD231PD Z0, Z7, Z18 // u
+	VFMADD231PD  Z14, Z7, Z8 // fma(−2, u1, u2)
+	VADDPD       Z8, Z18, Z19
+	VFNMADD231PD Z13, Z10, Z19
+	VFNMADD231PD Z1, Z9, Z19 // v
+	VFMADD231PD  Z19, Z19, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z25, Z8
+	VFMADD231PD  Z3, Z23, Z8
+	VFMADD231PD  Z2, Z27, Z8
+	VFNMADD231PD Z12, Z7, Z8
+	VFNMADD231PD Z0, Z18, Z8 // u
+	VFMADD231PD  Z14, Z18, Z7 // fma(−2, u1, u2)
+	VADDPD       Z7, Z8, Z10
+	VFNMADD231PD Z13, Z9, Z10
+	VFNMADD231PD Z1, Z19, Z10 // v
+	VFMADD231PD  Z10, Z10, Z11 // e = fma(v, v, e)
+	VMOVAPD      Z27, Z5 // x1
+	VMOVAPD      Z23, Z6 // x2
+	// Samples 8…15: one row of eight samples from each channel, transposed.
+	VMOVUPD      64(SI)(R10*1), Z20
+	VMOVUPD      64(DI)(R10*1), Z21
+	VMOVUPD      64(R8)(R10*1), Z22
+	VMOVUPD      64(R9)(R10*1), Z23
+	VMOVUPD      64(R11)(R10*1), Z24
+	VMOVUPD      64(R12)(R10*1), Z25
+	VMOVUPD      64(R13)(R10*1), Z26
+	VMOVUPD      64(BX)(R10*1), Z27
+	VUNPCKLPD    Z21, Z20, Z28
+	VUNPCKHPD    Z21, Z20, Z29
+	VUNPCKLPD    Z23, Z22, Z30
+	VUNPCKHPD    Z23, Z22, Z31
+	VUNPCKLPD    Z25, Z24, Z20
+	VUNPCKHPD    Z25, Z24, Z21
+	VUNPCKLPD    Z27, Z26, Z22
+	VUNPCKHPD    Z27, Z26, Z23
+	VSHUFF64X2   $0x88, Z30, Z28, Z24
+	VSHUFF64X2   $0xDD, Z30, Z28, Z25
+	VSHUFF64X2   $0x88, Z22, Z20, Z26
+	VSHUFF64X2   $0xDD, Z22, Z20, Z27
+	VSHUFF64X2   $0x88, Z31, Z29, Z28
+	VSHUFF64X2   $0xDD, Z31, Z29, Z30
+	VSHUFF64X2   $0x88, Z23, Z21, Z20
+	VSHUFF64X2   $0xDD, Z23, Z21, Z22
+	VSHUFF64X2   $0x88, Z26, Z24, Z29
+	VSHUFF64X2   $0xDD, Z26, Z24, Z31
+	VSHUFF64X2   $0x88, Z27, Z25, Z21
+	VSHUFF64X2   $0xDD, Z27, Z25, Z23
+	VSHUFF64X2   $0x88, Z20, Z28, Z24
+	VSHUFF64X2   $0xDD, Z20, Z28, Z25
+	VSHUFF64X2   $0x88, Z22, Z30, Z26
+	VSHUFF64X2   $0xDD, Z22, Z30, Z27
+	VMULPD       Z4, Z6, Z7
+	VFMADD231PD  Z3, Z5, Z7
+	VFMADD231PD  Z2, Z29, Z7
+	VFNMADD231PD Z12, Z18, Z7
+	VFNMADD231PD Z0, Z8, Z7 // u
+	VFMADD231PD  Z14, Z8, Z18 // fma(−2, u1, u2)
+	VADDPD       Z18, Z7, Z9
+	VFNMADD231PD Z13, Z19, Z9
+	VFNMADD231PD Z1, Z10, Z9 // v
+	VFMADD231PD  Z9, Z9, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z5, Z18
+	VFMADD231PD  Z3, Z29, Z18
+	VFMADD231PD  Z2, Z24, Z18
+	VFNMADD231PD Z12, Z8, Z18
+	VFNMADD231PD Z0, Z7, Z18 // u
+	VFMADD231PD  Z14, Z7, Z8 // fma(−2, u1, u2)
+	VADDPD       Z8, Z18, Z19
+	VFNMADD231PD Z13, Z10, Z19
+	VFNMADD231PD Z1, Z9, Z19 // v
+	VFMADD231PD  Z19, Z19, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z29, Z8
+	VFMADD231PD  Z3, Z24, Z8
+	VFMADD231PD  Z2, Z21, Z8
+	VFNMADD231PD Z12, Z7, Z8
+	VFNMADD231PD Z0, Z18, Z8 // u
+	VFMADD231PD  Z14, Z18, Z7 // fma(−2, u1, u2)
+	VADDPD       Z7, Z8, Z10
+	VFNMADD231PD Z13, Z9, Z10
+	VFNMADD231PD Z1, Z19, Z10 // v
+	VFMADD231PD  Z10, Z10, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z24, Z7
+	VFMADD231PD  Z3, Z21, Z7
+	VFMADD231PD  Z2, Z26, Z7
+	VFNMADD231PD Z12, Z18, Z7
+	VFNMADD231PD Z0, Z8, Z7 // u
+	VFMADD231PD  Z14, Z8, Z18 // fma(−2, u1, u2)
+	VADDPD       Z18, Z7, Z9
+	VFNMADD231PD Z13, Z19, Z9
+	VFNMADD231PD Z1, Z10, Z9 // v
+	VFMADD231PD  Z9, Z9, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z21, Z18
+	VFMADD231PD  Z3, Z26, Z18
+	VFMADD231PD  Z2, Z31, Z18
+	VFNMADD231PD Z12, Z8, Z18
+	VFNMADD231PD Z0, Z7, Z18 // u
+	VFMADD231PD  Z14, Z7, Z8 // fma(−2, u1, u2)
+	VADDPD       Z8, Z18, Z19
+	VFNMADD231PD Z13, Z10, Z19
+	VFNMADD231PD Z1, Z9, Z19 // v
+	VFMADD231PD  Z19, Z19, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z26, Z8
+	VFMADD231PD  Z3, Z31, Z8
+	VFMADD231PD  Z2, Z25, Z8
+	VFNMADD231PD Z12, Z7, Z8
+	VFNMADD231PD Z0, Z18, Z8 // u
+	VFMADD231PD  Z14, Z18, Z7 // fma(−2, u1, u2)
+	VADDPD       Z7, Z8, Z10
+	VFNMADD231PD Z13, Z9, Z10
+	VFNMADD231PD Z1, Z19, Z10 // v
+	VFMADD231PD  Z10, Z10, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z31, Z7
+	VFMADD231PD  Z3, Z25, Z7
+	VFMADD231PD  Z2, Z23, Z7
+	VFNMADD231PD Z12, Z18, Z7
+	VFNMADD231PD Z0, Z8, Z7 // u
+	VFMADD231PD  Z14, Z8, Z18 // fma(−2, u1, u2)
+	VADDPD       Z18, Z7, Z9
+	VFNMADD231PD Z13, Z19, Z9
+	VFNMADD231PD Z1, Z10, Z9 // v
+	VFMADD231PD  Z9, Z9, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z25, Z18
+	VFMADD231PD  Z3, Z23, Z18
+	VFMADD231PD  Z2, Z27, Z18
+	VFNMADD231PD Z12, Z8, Z18
+	VFNMADD231PD Z0, Z7, Z18 // u
+	VFMADD231PD  Z14, Z7, Z8 // fma(−2, u1, u2)
+	VADDPD       Z8, Z18, Z19
+	VFNMADD231PD Z13, Z10, Z19
+	VFNMADD231PD Z1, Z9, Z19 // v
+	VFMADD231PD  Z19, Z19, Z11 // e = fma(v, v, e)
+	VMOVAPD      Z27, Z5 // x1
+	VMOVAPD      Z23, Z6 // x2
+	// Samples 16…23: one row of eight samples from each channel, transposed.
+	VMOVUPD      128(SI)(R10*1), Z20
+	VMOVUPD      128(DI)(R10*1), Z21
+	VMOVUPD      128(R8)(R10*1), Z22
+	VMOVUPD      128(R9)(R10*1), Z23
+	VMOVUPD      128(R11)(R10*1), Z24
+	VMOVUPD      128(R12)(R10*1), Z25
+	VMOVUPD      128(R13)(R10*1), Z26
+	VMOVUPD      128(BX)(R10*1), Z27
+	VUNPCKLPD    Z21, Z20, Z28
+	VUNPCKHPD    Z21, Z20, Z29
+	VUNPCKLPD    Z23, Z22, Z30
+	VUNPCKHPD    Z23, Z22, Z31
+	VUNPCKLPD    Z25, Z24, Z20
+	VUNPCKHPD    Z25, Z24, Z21
+	VUNPCKLPD    Z27, Z26, Z22
+	VUNPCKHPD    Z27, Z26, Z23
+	VSHUFF64X2   $0x88, Z30, Z28, Z24
+	VSHUFF64X2   $0xDD, Z30, Z28, Z25
+	VSHUFF64X2   $0x88, Z22, Z20, Z26
+	VSHUFF64X2   $0xDD, Z22, Z20, Z27
+	VSHUFF64X2   $0x88, Z31, Z29, Z28
+	VSHUFF64X2   $0xDD, Z31, Z29, Z30
+	VSHUFF64X2   $0x88, Z23, Z21, Z20
+	VSHUFF64X2   $0xDD, Z23, Z21, Z22
+	VSHUFF64X2   $0x88, Z26, Z24, Z29
+	VSHUFF64X2   $0xDD, Z26, Z24, Z31
+	VSHUFF64X2   $0x88, Z27, Z25, Z21
+	VSHUFF64X2   $0xDD, Z27, Z25, Z23
+	VSHUFF64X2   $0x88, Z20, Z28, Z24
+	VSHUFF64X2   $0xDD, Z20, Z28, Z25
+	VSHUFF64X2   $0x88, Z22, Z30, Z26
+	VSHUFF64X2   $0xDD, Z22, Z30, Z27
+	VMULPD       Z4, Z6, Z8
+	VFMADD231PD  Z3, Z5, Z8
+	VFMADD231PD  Z2, Z29, Z8
+	VFNMADD231PD Z12, Z7, Z8
+	VFNMADD231PD Z0, Z18, Z8 // u
+	VFMADD231PD  Z14, Z18, Z7 // fma(−2, u1, u2)
+	VADDPD       Z7, Z8, Z10
+	VFNMADD231PD Z13, Z9, Z10
+	VFNMADD231PD Z1, Z19, Z10 // v
+	VFMADD231PD  Z10, Z10, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z5, Z7
+	VFMADD231PD  Z3, Z29, Z7
+	VFMADD231PD  Z2, Z24, Z7
+	VFNMADD231PD Z12, Z18, Z7
+	VFNMADD231PD Z0, Z8, Z7 // u
+	VFMADD231PD  Z14, Z8, Z18 // fma(−2, u1, u2)
+	VADDPD       Z18, Z7, Z9
+	VFNMADD231PD Z13, Z19, Z9
+	VFNMADD231PD Z1, Z10, Z9 // v
+	VFMADD231PD  Z9, Z9, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z29, Z18
+	VFMADD231PD  Z3, Z24, Z18
+	VFMADD231PD  Z2, Z21, Z18
+	VFNMADD231PD Z12, Z8, Z18
+	VFNMADD231PD Z0, Z7, Z18 // u
+	VFMADD231PD  Z14, Z7, Z8 // fma(−2, u1, u2)
+	VADDPD       Z8, Z18, Z19
+	VFNMADD231PD Z13, Z10, Z19
+	VFNMADD231PD Z1, Z9, Z19 // v
+	VFMADD231PD  Z19, Z19, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z24, Z8
+	VFMADD231PD  Z3, Z21, Z8
+	VFMADD231PD  Z2, Z26, Z8
+	VFNMADD231PD Z12, Z7, Z8
+	VFNMADD231PD Z0, Z18, Z8 // u
+	VFMADD231PD  Z14, Z18, Z7 // fma(−2, u1, u2)
+	VADDPD       Z7, Z8, Z10
+	VFNMADD231PD Z13, Z9, Z10
+	VFNMADD231PD Z1, Z19, Z10 // v
+	VFMADD231PD  Z10, Z10, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z21, Z7
+	VFMADD231PD  Z3, Z26, Z7
+	VFMADD231PD  Z2, Z31, Z7
+	VFNMADD231PD Z12, Z18, Z7
+	VFNMADD231PD Z0, Z8, Z7 // u
+	VFMADD231PD  Z14, Z8, Z18 // fma(−2, u1, u2)
+	VADDPD       Z18, Z7, Z9
+	VFNMADD231PD Z13, Z19, Z9
+	VFNMADD231PD Z1, Z10, Z9 // v
+	VFMADD231PD  Z9, Z9, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z26, Z18
+	VFMADD231PD  Z3, Z31, Z18
+	VFMADD231PD  Z2, Z25, Z18
+	VFNMADD231PD Z12, Z8, Z18
+	VFNMADD231PD Z0, Z7, Z18 // u
+	VFMADD231PD  Z14, Z7, Z8 // fma(−2, u1, u2)
+	VADDPD       Z8, Z18, Z19
+	VFNMADD231PD Z13, Z10, Z19
+	VFNMADD231PD Z1, Z9, Z19 // v
+	VFMADD231PD  Z19, Z19, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z31, Z8
+	VFMADD231PD  Z3, Z25, Z8
+	VFMADD231PD  Z2, Z23, Z8
+	VFNMADD231PD Z12, Z7, Z8
+	VFNMADD231PD Z0, Z18, Z8 // u
+	VFMADD231PD  Z14, Z18, Z7 // fma(−2, u1, u2)
+	VADDPD       Z7, Z8, Z10
+	VFNMADD231PD Z13, Z9, Z10
+	VFNMADD231PD Z1, Z19, Z10 // v
+	VFMADD231PD  Z10, Z10, Z11 // e = fma(v, v, e)
+	VMULPD       Z4, Z25, Z7
+	VFMADD231PD  Z3, Z23, Z7
+	VFMADD231PD  Z2, Z27, Z7
+	VFNMADD231PD Z12, Z18, Z7
+	VFNMADD231PD Z0, Z8, Z7 // u
+	VFMADD231PD  Z14, Z8, Z18 // fma(−2, u1, u2)
+	VADDPD       Z18, Z7, Z9
+	VFNMADD231PD Z13, Z19, Z9
+	VFNMADD231PD Z1, Z10, Z9 // v
+	VFMADD231PD  Z9, Z9, Z11 // e = fma(v, v, e)
+	VMOVAPD      Z27, Z5 // x1
+	VMOVAPD      Z23, Z6 // x2
+	ADDQ $192, R10
+	SUBQ $24, CX
+	JMP  loop24
 
 loop3:
 	CMPQ CX, $3

@@ -216,7 +216,8 @@ func fmaFigureCases() []fmaCase {
 
 // TestFMAFigures measures every case on the sse2 set (the unfused form,
 // energyPairSSE2 and energyUnfused) and on every other set (the fused
-// form) and demands the integrated loudness, the loudness range and the
+// form), demands the fused sets' block energies and figures bit for bit
+// those of the go set, and demands the integrated loudness, the loudness range and the
 // maximum momentary and short-term loudness within fmaFigureTolerance,
 // and every block energy within the bound that follows from the
 // per-sample one (kweighting.go): |ΔE| ≤ 2β·M·√(N·W·E) + N·W·(β·M)² +
@@ -247,8 +248,24 @@ func TestFMAFigures(t *testing.T) {
 			w += max(x, 0)
 		}
 		nch := len(c.weights)
+		goResult, goBlocks := run(goKernels)
 		for _, set := range append([]kernelSet{goKernels}, sets[2:]...) {
-			got, gotBlocks := run(set)
+			got, gotBlocks := goResult, goBlocks
+			if set != goKernels {
+				got, gotBlocks = run(set)
+			}
+			// The fused sets are twins: the same block energies and
+			// figures to the bit.
+			for b := range gotBlocks {
+				if b >= len(goBlocks) || !sameBits(gotBlocks[b], goBlocks[b]) {
+					t.Fatalf("%s, %v set, block %d: energy differs from the go set's", c.name, set, b)
+				}
+			}
+			for _, v := range [][2]Reading{{got.Integrated, goResult.Integrated}, {got.LoudnessRange, goResult.LoudnessRange}, {got.MaxMomentary, goResult.MaxMomentary}, {got.MaxShortTerm, goResult.MaxShortTerm}} {
+				if v[0].Defined != v[1].Defined || !sameBits(v[0].Value, v[1].Value) {
+					t.Fatalf("%s, %v set: figure %+v, go set %+v", c.name, set, v[0], v[1])
+				}
+			}
 			for _, f := range []struct {
 				name      string
 				got, want Reading
@@ -409,7 +426,7 @@ func TestEnergyOctMatchesEnergy(t *testing.T) {
 	forEachKernelSet(t, func(t *testing.T) {
 		twin := kweightingTwin()
 		rates := [8]int{48000, 44100, 96000, 8000, 384000, 22050, 192000, 32000}
-		for _, n := range []int{0, 1, 2, 3, 4, 5, 7, 31, 1024, 4801} {
+		for _, n := range []int{0, 1, 2, 3, 4, 5, 7, 23, 24, 25, 31, 47, 48, 49, 1024, 4801} {
 			sigs := kernelSignals(n)
 			for k, v := range kweightingEdgeSignals(n) {
 				sigs[k] = v
