@@ -68,8 +68,8 @@ func energyOne(k *KWeighting, a []float64) float64 {
 
 // energyPairStaged is energyPair with AVX2 (energyStagedAVX2): the shelf
 // of both channels in lanes 0 and 1 and their high-pass in lanes 2 and 3,
-// stagedLag samples behind, so one register carries all four recursions of a
-// stereo pair. The K-weighting loop is bound by the instructions it issues
+// stagedLag samples behind, so one register carries all four recursions
+// of a stereo pair. The K-weighting loop is bound by the instructions it issues
 // as much as by its recursion's latency, and this does one channel-sample
 // of both stages per lane where energyPairSSE2 needs twice the
 // instructions. The shelf of the first stagedLag samples is computed here
@@ -137,11 +137,13 @@ const stagedLag = 4
 
 // kweightStaged holds a stereo pair's K-weighting for energyStagedAVX2:
 // lanes 0 and 1 the two shelves, lanes 2 and 3 the two high-passes, each
-// lane a biquad y = fma(−A1, y1, fma(−A2, y2, fma(B0, x, fma(B1, x1, B2·x2))))
-// (Energy's form) with its input
-// history x1, x2 and output history y1, y2; d[j] holds, in lanes 0 and
-// 1, the shelf outputs of 3 + j samples back, the last the high-pass
-// lanes' next input.
+// lane a biquad in Energy's form,
+//
+//	y = fma(−A1, y1, fma(−A2, y2, fma(B0, x, fma(B1, x1, B2·x2)))),
+//
+// with its input history x1, x2 and output history y1, y2; d[j] holds, in
+// lanes 0 and 1, the shelf outputs of 3 + j samples back, the last the
+// high-pass lanes' next input.
 type kweightStaged struct {
 	b0, b1, b2, a1, a2 [4]float64
 	x1, x2, y1, y2     [4]float64
