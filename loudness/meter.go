@@ -341,8 +341,12 @@ func (m *Meter) split6(frames []float64, n int) bool {
 func (m *Meter) split6Go(frames []float64, from, to int) (p [6]uint64) {
 	var dst [6][]float64
 	var dst32 [6][]float32
+	narrow := m.peaks[0].narrow32() // else, as fillGo, no float32 copy
 	for c, tp := range m.peaks[:6] {
-		dst[c], dst32[c] = tp.input(to), tp.input32(to)
+		dst[c] = tp.input(to)
+		if narrow {
+			dst32[c] = tp.input32(to)
+		}
 	}
 	for lo := from; lo < to; lo += skipRun {
 		hi := min(lo+skipRun, to)
@@ -361,12 +365,22 @@ func (m *Meter) split6Go(frames []float64, from, to int) (p [6]uint64) {
 
 // split6Range de-interleaves six-channel frames [lo, hi) into dst and
 // dst32 and raises peaks[c] to the largest bit pattern of |x| of channel c.
+// With dst32 nil (no float32 copy wanted) it leaves dst32 alone.
 func split6Range(frames []float64, dst *[6][]float64, dst32 *[6][]float32, lo, hi int, peaks *[6]uint64) {
 	for i := lo; i < hi; i++ {
 		f := (*[6]float64)(frames[6*i:])
 		for c, v := range f {
-			dst[c][i], dst32[c][i] = v, float32(v)
+			dst[c][i] = v
 			peaks[c] = max(peaks[c], math.Float64bits(v)&^signBit)
+		}
+	}
+	if dst32[0] == nil {
+		return
+	}
+	for i := lo; i < hi; i++ {
+		f := (*[6]float64)(frames[6*i:])
+		for c, v := range f {
+			dst32[c][i] = float32(v)
 		}
 	}
 }

@@ -197,29 +197,54 @@ func (t *TruePeak) input32(n int) []float32 { return t.w32[history : history+n] 
 // of skipRun, to ≤ chunkFrames), and returns the largest bit pattern of |x|
 // over those samples: the reference for the AVX2 fill and split kernels,
 // and the tail they leave. It copies whatever it is given (NaN included);
-// the meter rejects samples before or after, as splitChannel does.
+// the meter rejects samples before or after, as splitChannel does. Where
+// the interpolator is float64 (narrow32 false: the sse2 set) nothing reads
+// the float32 copy, and fillGo does not make it.
 func (t *TruePeak) fillGo(src []float64, stride, from, to int) uint64 {
+	if from >= to {
+		return 0
+	}
+	_ = src[(to-1)*stride]
 	in, in32 := t.buf[history:history+to], t.w32[history:history+to]
+	if !t.narrow32() {
+		in32 = nil
+	}
 	var peak uint64
 	for lo := from; lo < to; lo += skipRun {
 		hi := min(lo+skipRun, to)
 		mid := min(lo+skipRun-tailLen, hi) // the block's tail: mid … hi−1
-		var head, tail uint64
-		for i := lo; i < mid; i++ {
-			v := src[i*stride]
-			in[i], in32[i] = v, float32(v)
-			head = max(head, math.Float64bits(v)&^signBit)
-		}
-		for i := mid; i < hi; i++ {
-			v := src[i*stride]
-			in[i], in32[i] = v, float32(v)
-			tail = max(tail, math.Float64bits(v)&^signBit)
-		}
+		head := fillRange(in[lo:mid], in32, lo, src[min(lo*stride, len(src)):], stride)
+		tail := fillRange(in[mid:hi], in32, mid, src[min(mid*stride, len(src)):], stride)
 		top := max(head, tail)
 		t.blocks[lo/skipRun] = [2]uint64{top, tail}
 		peak = max(peak, top)
 	}
 	return peak
+}
+
+// fillRange sets dst[i] = src[i·stride] and, unless dst32 is nil,
+// dst32[at+i] to its float32 value, and returns the largest bit pattern of
+// |x| over them.
+func fillRange(dst []float64, dst32 []float32, at int, src []float64, stride int) uint64 {
+	var m uint64
+	j := 0
+	if dst32 == nil {
+		for i := range dst {
+			v := src[j]
+			j += stride
+			dst[i] = v
+			m = max(m, math.Float64bits(v)&^signBit)
+		}
+		return m
+	}
+	dst32 = dst32[at : at+len(dst)]
+	for i := range dst {
+		v := src[j]
+		j += stride
+		dst[i], dst32[i] = v, float32(v)
+		m = max(m, math.Float64bits(v)&^signBit)
+	}
+	return m
 }
 
 // peakBuffered runs the interpolator over the n samples already placed by
