@@ -69,6 +69,55 @@
 // {max bits of |x| over block k, over its last 12}. Registers: SI source,
 // AX stride, R11 3·stride, DI dst, DX dst32, BX out, CX blocks left; Y15
 // the mask of all but the sign bit; Y8 the block's maxima, Y3 its tail's.
+#define FILLBODY \
+	LEAQ         (AX)(AX*2), R11 \
+	MOVQ         $0x7fffffffffffffff, R9 \
+	MOVQ         R9, X15 \
+	VPBROADCASTQ X15, Y15 \
+	TESTQ        CX, CX \
+	JZ           donefill \
+	CMPQ         AX, $8 \
+	JNE          strided \
+unit: \
+	VPXOR Y8, Y8, Y8 \
+	UNIT4(0, 0) \
+	UNIT4(32, 16) \
+	UNIT4(64, 32) \
+	UNIT4(96, 48) \
+	UNIT4(128, 64) \
+	UNIT4(160, 80) \
+	UNIT4(192, 96) \
+	UNIT4(224, 112) \
+	ADDQ  $256, SI \
+	ADDQ  $256, DI \
+	ADDQ  $128, DX \
+	TAILOF(DI, Y15, Y3, Y4, Y2) \
+	BLOCKOUT(Y8, Y3, Y4, X4, Y5, (BX)) \
+	ADDQ  $16, BX \
+	DECQ  CX \
+	JNZ   unit \
+	JMP   donefill \
+strided: \
+	VPXOR Y8, Y8, Y8 \
+	STRIDED4(0, 0) \
+	STRIDED4(32, 16) \
+	STRIDED4(64, 32) \
+	STRIDED4(96, 48) \
+	STRIDED4(128, 64) \
+	STRIDED4(160, 80) \
+	STRIDED4(192, 96) \
+	STRIDED4(224, 112) \
+	ADDQ  $256, DI \
+	ADDQ  $128, DX \
+	TAILOF(DI, Y15, Y3, Y4, Y2) \
+	BLOCKOUT(Y8, Y3, Y4, X4, Y5, (BX)) \
+	ADDQ  $16, BX \
+	DECQ  CX \
+	JNZ   strided \
+donefill: \
+	VZEROUPPER \
+	RET
+
 TEXT ·fillAVX2(SB), NOSPLIT, $0-48
 	MOVQ         src+0(FP), SI
 	MOVQ         stride+8(FP), AX
@@ -76,56 +125,7 @@ TEXT ·fillAVX2(SB), NOSPLIT, $0-48
 	MOVQ         dst+24(FP), DI
 	MOVQ         dst32+32(FP), DX
 	MOVQ         out+40(FP), BX
-	LEAQ         (AX)(AX*2), R11
-	MOVQ         $0x7fffffffffffffff, R9
-	MOVQ         R9, X15
-	VPBROADCASTQ X15, Y15
-	TESTQ        CX, CX
-	JZ           donefill
-	CMPQ         AX, $8
-	JNE          strided
-
-unit:
-	VPXOR Y8, Y8, Y8
-	UNIT4(0, 0)
-	UNIT4(32, 16)
-	UNIT4(64, 32)
-	UNIT4(96, 48)
-	UNIT4(128, 64)
-	UNIT4(160, 80)
-	UNIT4(192, 96)
-	UNIT4(224, 112)
-	ADDQ  $256, SI
-	ADDQ  $256, DI
-	ADDQ  $128, DX
-	TAILOF(DI, Y15, Y3, Y4, Y2)
-	BLOCKOUT(Y8, Y3, Y4, X4, Y5, (BX))
-	ADDQ  $16, BX
-	DECQ  CX
-	JNZ   unit
-	JMP   donefill
-
-strided:
-	VPXOR Y8, Y8, Y8
-	STRIDED4(0, 0)
-	STRIDED4(32, 16)
-	STRIDED4(64, 32)
-	STRIDED4(96, 48)
-	STRIDED4(128, 64)
-	STRIDED4(160, 80)
-	STRIDED4(192, 96)
-	STRIDED4(224, 112)
-	ADDQ  $256, DI
-	ADDQ  $128, DX
-	TAILOF(DI, Y15, Y3, Y4, Y2)
-	BLOCKOUT(Y8, Y3, Y4, X4, Y5, (BX))
-	ADDQ  $16, BX
-	DECQ  CX
-	JNZ   strided
-
-donefill:
-	VZEROUPPER
-	RET
+	FILLBODY
 
 // STEREO4 de-interleaves four stereo frames at f(SI) (f2 = f+32) into
 // o64(DI), o64(DX) and as float32 into o32(R8), o32(R9), and raises the
@@ -156,6 +156,40 @@ donefill:
 // frames: the left channel is stride 2 from frames[0], the right from
 // frames[1]). Registers: SI frames, DI l, DX r, R8 l32, R9 r32, BX lb, R10
 // rb, CX blocks left; Y15 the sign mask; Y8, Y9 the block maxima.
+#define STEREOBODY \
+	MOVQ         $0x7fffffffffffffff, AX \
+	MOVQ         AX, X15 \
+	VPBROADCASTQ X15, Y15 \
+	TESTQ        CX, CX \
+	JZ           donestereo \
+stereo: \
+	VPXOR   Y8, Y8, Y8 \
+	VPXOR   Y9, Y9, Y9 \
+	STEREO4(0, 32, 0, 0) \
+	STEREO4(64, 96, 32, 16) \
+	STEREO4(128, 160, 64, 32) \
+	STEREO4(192, 224, 96, 48) \
+	STEREO4(256, 288, 128, 64) \
+	STEREO4(320, 352, 160, 80) \
+	STEREO4(384, 416, 192, 96) \
+	STEREO4(448, 480, 224, 112) \
+	ADDQ    $512, SI \
+	ADDQ    $256, DI \
+	ADDQ    $256, DX \
+	ADDQ    $128, R8 \
+	ADDQ    $128, R9 \
+	TAILOF(DI, Y15, Y3, Y4, Y2) \
+	BLOCKOUT(Y8, Y3, Y4, X4, Y5, (BX)) \
+	TAILOF(DX, Y15, Y3, Y4, Y2) \
+	BLOCKOUT(Y9, Y3, Y4, X4, Y5, (R10)) \
+	ADDQ    $16, BX \
+	ADDQ    $16, R10 \
+	DECQ    CX \
+	JNZ     stereo \
+donestereo: \
+	VZEROUPPER \
+	RET
+
 TEXT ·splitStereoAVX2(SB), NOSPLIT, $0-64
 	MOVQ         frames+0(FP), SI
 	MOVQ         blocks+8(FP), CX
@@ -165,40 +199,7 @@ TEXT ·splitStereoAVX2(SB), NOSPLIT, $0-64
 	MOVQ         r32+40(FP), R9
 	MOVQ         lb+48(FP), BX
 	MOVQ         rb+56(FP), R10
-	MOVQ         $0x7fffffffffffffff, AX
-	MOVQ         AX, X15
-	VPBROADCASTQ X15, Y15
-	TESTQ        CX, CX
-	JZ           donestereo
-
-stereo:
-	VPXOR   Y8, Y8, Y8
-	VPXOR   Y9, Y9, Y9
-	STEREO4(0, 32, 0, 0)
-	STEREO4(64, 96, 32, 16)
-	STEREO4(128, 160, 64, 32)
-	STEREO4(192, 224, 96, 48)
-	STEREO4(256, 288, 128, 64)
-	STEREO4(320, 352, 160, 80)
-	STEREO4(384, 416, 192, 96)
-	STEREO4(448, 480, 224, 112)
-	ADDQ    $512, SI
-	ADDQ    $256, DI
-	ADDQ    $256, DX
-	ADDQ    $128, R8
-	ADDQ    $128, R9
-	TAILOF(DI, Y15, Y3, Y4, Y2)
-	BLOCKOUT(Y8, Y3, Y4, X4, Y5, (BX))
-	TAILOF(DX, Y15, Y3, Y4, Y2)
-	BLOCKOUT(Y9, Y3, Y4, X4, Y5, (R10))
-	ADDQ    $16, BX
-	ADDQ    $16, R10
-	DECQ    CX
-	JNZ     stereo
-
-donestereo:
-	VZEROUPPER
-	RET
+	STEREOBODY
 
 // PAIR6 stores two de-interleaved channels (lo, hi: the four frames'
 // values of each; xhi is hi's X name) at (d0) and (d1), their float32
@@ -216,11 +217,9 @@ donestereo:
 	VCVTPD2PSY lo, xhi \
 	VMOVUPS    xhi, (AX)(BX*4) \
 	VPAND      Y9, Y8, Y8 \
-	VPCMPGTQ   m0, Y8, hi \
-	VPBLENDVB  hi, Y8, m0, m0 \
+	MAXBITS(Y8, m0, hi) \
 	VPAND      Y9, lo, lo \
-	VPCMPGTQ   m1, lo, hi \
-	VPBLENDVB  hi, lo, m1, m1
+	MAXBITS(lo, m1, hi)
 
 // OUT6 stores channel c's block and tail maxima (block maxima in m, the
 // channel's float64 output at d) at its out pointer o(R13) plus DX, the
@@ -247,67 +246,100 @@ donestereo:
 // the blocks end; DI, R8…R12 the six float64 outputs; R13 dst (the float32
 // outputs at 48 + 8c, the block maxima at 96 + 8c); AX, DX scratch; Y9 the
 // mask of all but the sign bit; Y10…Y15 the block maxima.
+#define SPLIT6BODY \
+	MOVQ         0(R13), DI \
+	MOVQ         8(R13), R8 \
+	MOVQ         16(R13), R9 \
+	MOVQ         24(R13), R10 \
+	MOVQ         32(R13), R11 \
+	MOVQ         40(R13), R12 \
+	SHLQ         $5, CX \
+	MOVQ         $0x7fffffffffffffff, AX \
+	MOVQ         AX, X9 \
+	VPBROADCASTQ X9, Y9 \
+	XORQ         BX, BX \
+	CMPQ         BX, CX \
+	JGE          done6 \
+block6: \
+	VPXOR Y10, Y10, Y10 \
+	VPXOR Y11, Y11, Y11 \
+	VPXOR Y12, Y12, Y12 \
+	VPXOR Y13, Y13, Y13 \
+	VPXOR Y14, Y14, Y14 \
+	VPXOR Y15, Y15, Y15 \
+loop6: \
+	VMOVUPD    (SI), Y0 \
+	VMOVUPD    32(SI), Y1 \
+	VMOVUPD    64(SI), Y2 \
+	VMOVUPD    96(SI), Y3 \
+	VMOVUPD    128(SI), Y4 \
+	VMOVUPD    160(SI), Y5 \
+	VPERM2F128 $0x20, Y3, Y0, Y6 \
+	VPERM2F128 $0x31, Y4, Y1, Y7 \
+	PAIR6(Y6, Y7, X7, DI, R8, 48, 56, Y10, Y11) \
+	VPERM2F128 $0x31, Y3, Y0, Y6 \
+	VPERM2F128 $0x20, Y5, Y2, Y7 \
+	PAIR6(Y6, Y7, X7, R9, R10, 64, 72, Y12, Y13) \
+	VPERM2F128 $0x20, Y4, Y1, Y6 \
+	VPERM2F128 $0x31, Y5, Y2, Y7 \
+	PAIR6(Y6, Y7, X7, R11, R12, 80, 88, Y14, Y15) \
+	ADDQ       $192, SI \
+	ADDQ       $4, BX \
+	TESTQ      $31, BX \
+	JNZ        loop6 \
+	MOVQ BX, DX \
+	SHRQ $1, DX \
+	SUBQ $16, DX \
+	OUT6(Y10, DI, 96) \
+	OUT6(Y11, R8, 104) \
+	OUT6(Y12, R9, 112) \
+	OUT6(Y13, R10, 120) \
+	OUT6(Y14, R11, 128) \
+	OUT6(Y15, R12, 136) \
+	CMPQ BX, CX \
+	JLT  block6 \
+done6: \
+	VZEROUPPER \
+	RET
+
 TEXT ·split6AVX2(SB), NOSPLIT, $0-24
 	MOVQ         frames+0(FP), SI
 	MOVQ         blocks+8(FP), CX
 	MOVQ         dst+16(FP), R13
-	MOVQ         0(R13), DI
-	MOVQ         8(R13), R8
-	MOVQ         16(R13), R9
-	MOVQ         24(R13), R10
-	MOVQ         32(R13), R11
-	MOVQ         40(R13), R12
-	SHLQ         $5, CX
-	MOVQ         $0x7fffffffffffffff, AX
-	MOVQ         AX, X9
-	VPBROADCASTQ X9, Y9
-	XORQ         BX, BX
-	CMPQ         BX, CX
-	JGE          done6
+	SPLIT6BODY
 
-block6:
-	VPXOR Y10, Y10, Y10
-	VPXOR Y11, Y11, Y11
-	VPXOR Y12, Y12, Y12
-	VPXOR Y13, Y13, Y13
-	VPXOR Y14, Y14, Y14
-	VPXOR Y15, Y15, Y15
+// The same kernels for the avx512 set: the lane-wise maxima by VPMAXUQ
+// (AVX-512 F and VL, on Y registers), one instruction where AVX2 needs a
+// comparison and a blend. The bit patterns have their sign bit cleared, so
+// unsigned and signed order agree: the same maxima, bit for bit.
+#undef MAXBITS
+#define MAXBITS(v, acc, tmp) VPMAXUQ v, acc, acc
 
-loop6:
-	VMOVUPD    (SI), Y0
-	VMOVUPD    32(SI), Y1
-	VMOVUPD    64(SI), Y2
-	VMOVUPD    96(SI), Y3
-	VMOVUPD    128(SI), Y4
-	VMOVUPD    160(SI), Y5
-	VPERM2F128 $0x20, Y3, Y0, Y6 // A.lo D.lo
-	VPERM2F128 $0x31, Y4, Y1, Y7 // B.hi E.hi
-	PAIR6(Y6, Y7, X7, DI, R8, 48, 56, Y10, Y11)
-	VPERM2F128 $0x31, Y3, Y0, Y6 // A.hi D.hi
-	VPERM2F128 $0x20, Y5, Y2, Y7 // C.lo F.lo
-	PAIR6(Y6, Y7, X7, R9, R10, 64, 72, Y12, Y13)
-	VPERM2F128 $0x20, Y4, Y1, Y6 // B.lo E.lo
-	VPERM2F128 $0x31, Y5, Y2, Y7 // C.hi F.hi
-	PAIR6(Y6, Y7, X7, R11, R12, 80, 88, Y14, Y15)
-	ADDQ       $192, SI
-	ADDQ       $4, BX
-	TESTQ      $31, BX
-	JNZ        loop6
+// func fillAVX512(src *float64, stride, blocks int, dst *float64, dst32 *float32, out *[2]uint64)
+TEXT ·fillAVX512(SB), NOSPLIT, $0-48
+	MOVQ         src+0(FP), SI
+	MOVQ         stride+8(FP), AX
+	MOVQ         blocks+16(FP), CX
+	MOVQ         dst+24(FP), DI
+	MOVQ         dst32+32(FP), DX
+	MOVQ         out+40(FP), BX
+	FILLBODY
 
-	// The block that ends at frame BX is done: its maxima go to byte
-	// offset 16·(BX/32 − 1) of each channel's out.
-	MOVQ BX, DX
-	SHRQ $1, DX
-	SUBQ $16, DX
-	OUT6(Y10, DI, 96)
-	OUT6(Y11, R8, 104)
-	OUT6(Y12, R9, 112)
-	OUT6(Y13, R10, 120)
-	OUT6(Y14, R11, 128)
-	OUT6(Y15, R12, 136)
-	CMPQ BX, CX
-	JLT  block6
+// func splitStereoAVX512(frames *float64, blocks int, l, r *float64, l32, r32 *float32, lb, rb *[2]uint64)
+TEXT ·splitStereoAVX512(SB), NOSPLIT, $0-64
+	MOVQ         frames+0(FP), SI
+	MOVQ         blocks+8(FP), CX
+	MOVQ         l+16(FP), DI
+	MOVQ         r+24(FP), DX
+	MOVQ         l32+32(FP), R8
+	MOVQ         r32+40(FP), R9
+	MOVQ         lb+48(FP), BX
+	MOVQ         rb+56(FP), R10
+	STEREOBODY
 
-done6:
-	VZEROUPPER
-	RET
+// func split6AVX512(frames *float64, blocks int, dst *split6Dst)
+TEXT ·split6AVX512(SB), NOSPLIT, $0-24
+	MOVQ         frames+0(FP), SI
+	MOVQ         blocks+8(FP), CX
+	MOVQ         dst+16(FP), R13
+	SPLIT6BODY

@@ -67,9 +67,9 @@ func maxAbs(x []float64) float64 {
 // fill sets the detector's input sample i to src[i·stride] for i < n ≤
 // chunkFrames, its float32 copy and the blocks' maxima, as fillGo does,
 // and returns the largest bit pattern of |x| over the n samples: with AVX2
-// the whole skipRun-sample blocks in one pass (fillAVX2; copies, exact
-// conversions and integer maxima, so fillGo's result bit for bit), the rest
-// in Go. len(src) must be at least (n−1)·stride+1.
+// the whole skipRun-sample blocks in one pass (fillAVX2, or fillAVX512 on
+// the avx512 set; copies, exact conversions and integer maxima, so
+// fillGo's result bit for bit), the rest in Go. len(src) must be at least (n−1)·stride+1.
 func (t *TruePeak) fill(src []float64, stride, n int) uint64 {
 	if n <= 0 {
 		return 0
@@ -81,7 +81,11 @@ func (t *TruePeak) fill(src []float64, stride, n int) uint64 {
 	}
 	var peak uint64
 	if blocks > 0 {
-		fillAVX2(&src[0], stride*8, blocks, &t.buf[history], &t.w32[history], &t.blocks[0])
+		fillKernel := fillAVX2
+		if kernels >= avx512Kernels {
+			fillKernel = fillAVX512
+		}
+		fillKernel(&src[0], stride*8, blocks, &t.buf[history], &t.w32[history], &t.blocks[0])
 		for _, b := range t.blocks[:blocks] {
 			peak = max(peak, b[0])
 		}
@@ -98,6 +102,12 @@ func (t *TruePeak) fill(src []float64, stride, n int) uint64 {
 //
 //go:noescape
 func fillAVX2(src *float64, stride, blocks int, dst *float64, dst32 *float32, out *[2]uint64)
+
+// fillAVX512 is fillAVX2 with the maxima by AVX-512 VL's VPMAXUQ
+// (split_avx2_amd64.s).
+//
+//go:noescape
+func fillAVX512(src *float64, stride, blocks int, dst *float64, dst32 *float32, out *[2]uint64)
 
 // peak4PairsSSE2 is peak4SquaresGo over the first 2·⌊(len(w)−11)/2⌋
 // windows of w (truepeak_amd64.s).
