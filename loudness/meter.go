@@ -365,23 +365,33 @@ func (m *Meter) split6Go(frames []float64, from, to int) (p [6]uint64) {
 
 // split6Range de-interleaves six-channel frames [lo, hi) into dst and
 // dst32 and raises peaks[c] to the largest bit pattern of |x| of channel c.
-// With dst32 nil (no float32 copy wanted) it leaves dst32 alone.
+// With dst32 nil (no float32 copy wanted) it leaves dst32 alone. Each
+// channel is a slice of its own so that the loop carries no bounds checks.
 func split6Range(frames []float64, dst *[6][]float64, dst32 *[6][]float32, lo, hi int, peaks *[6]uint64) {
-	for i := lo; i < hi; i++ {
-		f := (*[6]float64)(frames[6*i:])
-		for c, v := range f {
-			dst[c][i] = v
-			peaks[c] = max(peaks[c], math.Float64bits(v)&^signBit)
-		}
+	if hi <= lo {
+		return
 	}
+	f := frames[6*lo : 6*hi]
+	c0, c1, c2, c3, c4, c5 := dst[0][lo:hi], dst[1][lo:hi], dst[2][lo:hi], dst[3][lo:hi], dst[4][lo:hi], dst[5][lo:hi]
+	p0, p1, p2, p3, p4, p5 := peaks[0], peaks[1], peaks[2], peaks[3], peaks[4], peaks[5]
+	for i := range c0 {
+		x := (*[6]float64)(f[6*i:])
+		c0[i], c1[i], c2[i], c3[i], c4[i], c5[i] = x[0], x[1], x[2], x[3], x[4], x[5]
+		p0 = max(p0, math.Float64bits(x[0])&^signBit)
+		p1 = max(p1, math.Float64bits(x[1])&^signBit)
+		p2 = max(p2, math.Float64bits(x[2])&^signBit)
+		p3 = max(p3, math.Float64bits(x[3])&^signBit)
+		p4 = max(p4, math.Float64bits(x[4])&^signBit)
+		p5 = max(p5, math.Float64bits(x[5])&^signBit)
+	}
+	*peaks = [6]uint64{p0, p1, p2, p3, p4, p5}
 	if dst32[0] == nil {
 		return
 	}
-	for i := lo; i < hi; i++ {
-		f := (*[6]float64)(frames[6*i:])
-		for c, v := range f {
-			dst32[c][i] = float32(v)
-		}
+	d0, d1, d2, d3, d4, d5 := dst32[0][lo:hi], dst32[1][lo:hi], dst32[2][lo:hi], dst32[3][lo:hi], dst32[4][lo:hi], dst32[5][lo:hi]
+	for i := range d0 {
+		x := (*[6]float64)(f[6*i:])
+		d0[i], d1[i], d2[i], d3[i], d4[i], d5[i] = float32(x[0]), float32(x[1]), float32(x[2]), float32(x[3]), float32(x[4]), float32(x[5])
 	}
 }
 
