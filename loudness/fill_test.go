@@ -79,7 +79,8 @@ func spoil(tp *TruePeak) {
 // TestFillMatchesDefinition checks TruePeak.fill (fillAVX2 for whole
 // blocks with fillGo for the rest, or fillGo alone) against its definition
 // on every kernel set: every length remainder, strides 1 (Peak, mono) to 8
-// (the meter's any-channel path), programme, dense full scale, and the
+// (the meter's any-channel path), start offsets within 32 bytes,
+// programme, dense full scale, and the
 // edge samples placed in every position of a block in turn; and the
 // maximum it returns.
 func TestFillMatchesDefinition(t *testing.T) {
@@ -92,7 +93,8 @@ func TestFillMatchesDefinition(t *testing.T) {
 					"dense":     denseFullScale(uint64(n)+71, n*stride),
 				} {
 					for at := 0; at < max(1, n); at += 1 + n/9 {
-						src := append([]float64(nil), x...)
+						offset := at % 4 // the kernels' loads are unaligned
+						src := append(make([]float64, offset), x...)[offset:]
 						if n > 0 {
 							for i, v := range edgeSamples {
 								src[((at+i*5)%n)*stride] = v
