@@ -345,35 +345,6 @@ func TestEnergyQuadMatchesEnergy(t *testing.T) {
 	})
 }
 
-// TestRunMaxBitsCoversRuns checks the true-peak skip pre-scan (runMaxBits)
-// against maxAbsGo on every kernel set, for chunk lengths around the run
-// length and with NaN, ±Inf and a large spike in every run: each run's
-// maximum is that of its own 43 samples, or (where the AVX2 pass reads
-// 44) of the 44 from its start, never less, so the skip test stays exact.
-func TestRunMaxBitsCoversRuns(t *testing.T) {
-	forEachKernelSet(t, func(t *testing.T) {
-		for _, n := range []int{1, 2, 31, 32, 33, 63, 64, 65, 1023, 1024} {
-			for name, x := range kernelSignals(n + history) {
-				for spike := 0; spike < n+history; spike += 13 {
-					w := append([]float64(nil), x...)
-					w[spike] = []float64{-7, math.NaN(), math.Inf(1)}[spike%3]
-					runs := (n + skipRun - 1) / skipRun
-					var got [chunkFrames/skipRun + 1]float64
-					runMaxBits(w, got[:], runs)
-					for r := range runs {
-						lo := r * skipRun
-						exact := maxAbsGo(w[lo : min(lo+skipRun, n)+history])
-						wide := maxAbsGo(w[lo:min(lo+44, len(w))])
-						if !sameBits(got[r], exact) && !sameBits(got[r], wide) {
-							t.Fatalf("%s, %d samples, spike at %d, run %d: %v, want %v (or %v over 44 samples)", name, n, spike, r, got[r], exact, wide)
-						}
-					}
-				}
-			}
-		}
-	})
-}
-
 // TestEnergyOneMatchesEnergy checks the single-channel path the meter
 // takes for an odd weighted channel against its Go twin (kweightingTwin):
 // energy and state bit for bit, every signal and write size, on every

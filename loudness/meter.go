@@ -251,7 +251,9 @@ func (m *Meter) Write(frames []float64) {
 
 // process measures n ≤ chunkFrames frames that lie inside one 100 ms
 // block: it copies each channel into its true-peak detector's input (where
-// the K-weighting reads it too), then weighs and peaks every channel.
+// the K-weighting reads it too), with the float32 copy and the per-run
+// maxima the detector's skip test needs made in the same pass, then weighs
+// and peaks every channel.
 func (m *Meter) process(frames []float64, n int) {
 	if !m.splitFast(frames, n) && !m.split6(frames, n) {
 		for c := range m.channels {
@@ -264,31 +266,38 @@ func (m *Meter) process(frames []float64, n int) {
 	}
 }
 
+// raisePeak raises channel c's sample peak of the block to the magnitude
+// whose bits are a.
+func (m *Meter) raisePeak(c int, a uint64) {
+	m.blockPeak[c] = max(m.blockPeak[c], math.Float64frombits(a))
+}
+
 // splitChannel copies channel c of the n frames into its true-peak
-// detector's input and raises the block's sample peak: the reference the
-// faster de-interleaving paths (splitFast, split6) are tested against, and
-// the one path that counts and zeroes samples the meter cannot measure.
+// detector's input (TruePeak.fill: with the float32 copy and block maxima)
+// and raises the block's sample peak: the path for every channel count
+// without a faster one (splitFast, split6), the reference those are tested
+// against, and the one path that counts and zeroes samples the meter cannot
+// measure. The bits of |v| order like |v|, and NaN and ±Inf order above
+// every finite value: one integer comparison of the channel's maximum
+// finds all three, and only then does a second pass zero them (and fill
+// the copies again from the zeroed input).
 func (m *Meter) splitChannel(frames []float64, n, c int) {
-	nch := m.channels
-	in := m.peaks[c].input(n)
-	var peak uint64 // bits of max|v|: see maxAbs
-	j := c
-	for i := range in {
-		v := frames[j]
-		j += nch
-		// The bits of |v| order like |v|, and NaN and ±Inf order above
-		// every finite value: one integer comparison rejects all three.
-		a := math.Float64bits(v) &^ signBit
-		if a > maxMagnitudeBits {
-			v, a = 0, 0
-			m.rejected++
-		}
-		in[i] = v
-		if a > peak {
-			peak = a
-		}
+	if n <= 0 {
+		return
 	}
-	m.blockPeak[c] = max(m.blockPeak[c], math.Float64frombits(peak))
+	tp := m.peaks[c]
+	peak := tp.fill(frames[c:], m.channels, n)
+	if peak > maxMagnitudeBits {
+		in := tp.input(n)
+		for i, v := range in {
+			if math.Float64bits(v)&^signBit > maxMagnitudeBits {
+				in[i] = 0
+				m.rejected++
+			}
+		}
+		peak = tp.fill(in, 1, n)
+	}
+	m.raisePeak(c, peak)
 }
 
 // split6 is splitChannel for all six channels of 5.1 in one pass over the
@@ -297,25 +306,23 @@ func (m *Meter) splitChannel(frames []float64, n, c int) {
 // sample the meter cannot measure (its magnitude bits exceed
 // maxMagnitudeBits) makes it report false, having changed nothing that
 // splitChannel does not overwrite; it also reports false for other channel
-// counts. Copies and integer maxima: splitChannel's result bit for bit.
-// With AVX2 split6AVX2 does four frames at a time (split6Fast).
+// counts. Copies, exact conversions and integer maxima: splitChannel's
+// result bit for bit. With AVX2 split6AVX2 does the whole 32-frame blocks
+// (split6Fast), split6Go the rest.
 func (m *Meter) split6(frames []float64, n int) bool {
 	if m.channels != 6 {
 		return false
 	}
-	c0, c1, c2 := m.peaks[0].input(n), m.peaks[1].input(n), m.peaks[2].input(n)
-	c3, c4, c5 := m.peaks[3].input(n), m.peaks[4].input(n), m.peaks[5].input(n)
 	frames = frames[:6*n]
-	p, done := m.split6Fast(frames, n)
-	for i := done; i < n; i++ {
-		f := (*[6]float64)(frames[6*i:])
-		c0[i], c1[i], c2[i], c3[i], c4[i], c5[i] = f[0], f[1], f[2], f[3], f[4], f[5]
-		p[0] = max(p[0], math.Float64bits(f[0])&^signBit)
-		p[1] = max(p[1], math.Float64bits(f[1])&^signBit)
-		p[2] = max(p[2], math.Float64bits(f[2])&^signBit)
-		p[3] = max(p[3], math.Float64bits(f[3])&^signBit)
-		p[4] = max(p[4], math.Float64bits(f[4])&^signBit)
-		p[5] = max(p[5], math.Float64bits(f[5])&^signBit)
+	done := m.split6Fast(frames, n)
+	var p [6]uint64
+	if done < n {
+		p = m.split6Go(frames, done, n)
+	}
+	for c, tp := range m.peaks {
+		for _, b := range tp.blocks[:done/skipRun] {
+			p[c] = max(p[c], b[0])
+		}
 	}
 	for _, a := range p {
 		if a > maxMagnitudeBits {
@@ -323,9 +330,69 @@ func (m *Meter) split6(frames []float64, n int) bool {
 		}
 	}
 	for c, a := range p {
-		m.blockPeak[c] = max(m.blockPeak[c], math.Float64frombits(a))
+		m.raisePeak(c, a)
 	}
 	return true
+}
+
+// split6Go is TruePeak.fillGo for the six channels of frames [from, to)
+// (from a multiple of skipRun) in one pass over them, and returns each
+// channel's largest bit pattern of |x|: the Go twin of split6AVX2.
+func (m *Meter) split6Go(frames []float64, from, to int) (p [6]uint64) {
+	var dst [6][]float64
+	var dst32 [6][]float32
+	narrow := m.peaks[0].narrow32() // else, as fillGo, no float32 copy
+	for c, tp := range m.peaks[:6] {
+		dst[c] = tp.input(to)
+		if narrow {
+			dst32[c] = tp.input32(to)
+		}
+	}
+	for lo := from; lo < to; lo += skipRun {
+		hi := min(lo+skipRun, to)
+		mid := min(lo+skipRun-tailLen, hi) // the block's tail: mid … hi−1
+		var head, tail [6]uint64
+		split6Range(frames, &dst, &dst32, lo, mid, &head)
+		split6Range(frames, &dst, &dst32, mid, hi, &tail)
+		for c, tp := range m.peaks[:6] {
+			top := max(head[c], tail[c])
+			tp.blocks[lo/skipRun] = [2]uint64{top, tail[c]}
+			p[c] = max(p[c], top)
+		}
+	}
+	return p
+}
+
+// split6Range de-interleaves six-channel frames [lo, hi) into dst and
+// dst32 and raises peaks[c] to the largest bit pattern of |x| of channel c.
+// With dst32 nil (no float32 copy wanted) it leaves dst32 alone. Each
+// channel is a slice of its own so that the loop carries no bounds checks.
+func split6Range(frames []float64, dst *[6][]float64, dst32 *[6][]float32, lo, hi int, peaks *[6]uint64) {
+	if hi <= lo {
+		return
+	}
+	f := frames[6*lo : 6*hi]
+	c0, c1, c2, c3, c4, c5 := dst[0][lo:hi], dst[1][lo:hi], dst[2][lo:hi], dst[3][lo:hi], dst[4][lo:hi], dst[5][lo:hi]
+	p0, p1, p2, p3, p4, p5 := peaks[0], peaks[1], peaks[2], peaks[3], peaks[4], peaks[5]
+	for i := range c0 {
+		x := (*[6]float64)(f[6*i:])
+		c0[i], c1[i], c2[i], c3[i], c4[i], c5[i] = x[0], x[1], x[2], x[3], x[4], x[5]
+		p0 = max(p0, math.Float64bits(x[0])&^signBit)
+		p1 = max(p1, math.Float64bits(x[1])&^signBit)
+		p2 = max(p2, math.Float64bits(x[2])&^signBit)
+		p3 = max(p3, math.Float64bits(x[3])&^signBit)
+		p4 = max(p4, math.Float64bits(x[4])&^signBit)
+		p5 = max(p5, math.Float64bits(x[5])&^signBit)
+	}
+	*peaks = [6]uint64{p0, p1, p2, p3, p4, p5}
+	if dst32[0] == nil {
+		return
+	}
+	d0, d1, d2, d3, d4, d5 := dst32[0][lo:hi], dst32[1][lo:hi], dst32[2][lo:hi], dst32[3][lo:hi], dst32[4][lo:hi], dst32[5][lo:hi]
+	for i := range d0 {
+		x := (*[6]float64)(f[6*i:])
+		d0[i], d1[i], d2[i], d3[i], d4[i], d5[i] = float32(x[0]), float32(x[1]), float32(x[2]), float32(x[3]), float32(x[4]), float32(x[5])
+	}
 }
 
 // addEnergy adds the weighted K-filtered energy of the n samples waiting in

@@ -125,12 +125,27 @@ type TruePeak struct {
 	// chunkFrames new ones: the interpolator reads one linear window.
 	buf []float64
 	// w32 is buf's float32 copy for the float32 interpolators
-	// (truepeak32.go), converted afresh for every stretch that needs it.
+	// (truepeak32.go): the new samples' part is written by whoever fills
+	// the input (fill, the meter's split passes), the history's part by
+	// peakRuns when it runs a float32 kernel.
 	w32 []float32
+	// blocks holds, for each skipRun-sample block k of the new samples
+	// (buf[history+32k:]), the largest bit pattern of |x| over the block
+	// ([0]) and over its last tailLen samples ([1]; for a block cut short
+	// by the chunk's end, over whatever of them it has). They are written
+	// in the same pass that fills the input, so that peakRuns's skip test
+	// needs no second pass over the samples: run r's maximum is that of
+	// block r and of block r−1's tail (the history's for run 0).
+	blocks [chunkFrames / skipRun][2]uint64
 	// wide makes the 4× interpolator float64 on every kernel set: for the
 	// tests that bound the float32 one against it.
 	wide bool
 }
+
+// tailLen is how many samples of a block the next run reads besides its own
+// block: history, rounded up to a whole four-sample AVX2 register (a sample
+// more only makes the skip test more cautious).
+const tailLen = 12
 
 // chunkFrames is how many frames the meter and TruePeak process at a time:
 // small enough that a channel's block stays in L1 cache.
@@ -162,38 +177,87 @@ func (t *TruePeak) Reset() { clear(t.buf[:history]) }
 func (t *TruePeak) Peak(x []float64, floor float64) float64 {
 	for len(x) > 0 {
 		n := min(len(x), chunkFrames)
-		copy(t.buf[history:], x[:n])
+		t.fill(x, 1, n)
 		floor = t.peakBuffered(n, floor)
 		x = x[n:]
 	}
 	return floor
 }
 
-// input returns the slot for the next n ≤ chunkFrames samples; fill it and
-// call peakBuffered(n, …).
+// input returns the slot for the next n ≤ chunkFrames samples. Whoever
+// fills it also fills input32 and the blocks' maxima, as fill does (the
+// meter's split passes), then calls peakBuffered(n, …).
 func (t *TruePeak) input(n int) []float64 { return t.buf[history : history+n] }
 
+// input32 returns the float32 slot beside input(n).
+func (t *TruePeak) input32(n int) []float32 { return t.w32[history : history+n] }
+
+// fillGo sets input sample i to src[i·stride], input32 sample i to its
+// float32 value and the blocks' maxima for i in [from, to) (from a multiple
+// of skipRun, to ≤ chunkFrames), and returns the largest bit pattern of |x|
+// over those samples: the reference for the AVX2 fill and split kernels,
+// and the tail they leave. It copies whatever it is given (NaN included);
+// the meter rejects samples before or after, as splitChannel does. Where
+// the interpolator is float64 (narrow32 false: the sse2 set) nothing reads
+// the float32 copy, and fillGo does not make it.
+func (t *TruePeak) fillGo(src []float64, stride, from, to int) uint64 {
+	if from >= to {
+		return 0
+	}
+	_ = src[(to-1)*stride]
+	in, in32 := t.buf[history:history+to], t.w32[history:history+to]
+	if !t.narrow32() {
+		in32 = nil
+	}
+	var peak uint64
+	for lo := from; lo < to; lo += skipRun {
+		hi := min(lo+skipRun, to)
+		mid := min(lo+skipRun-tailLen, hi) // the block's tail: mid … hi−1
+		head := fillRange(in[lo:mid], in32, lo, src[min(lo*stride, len(src)):], stride)
+		tail := fillRange(in[mid:hi], in32, mid, src[min(mid*stride, len(src)):], stride)
+		top := max(head, tail)
+		t.blocks[lo/skipRun] = [2]uint64{top, tail}
+		peak = max(peak, top)
+	}
+	return peak
+}
+
+// fillRange sets dst[i] = src[i·stride] and, unless dst32 is nil,
+// dst32[at+i] to its float32 value, and returns the largest bit pattern of
+// |x| over them.
+func fillRange(dst []float64, dst32 []float32, at int, src []float64, stride int) uint64 {
+	var m uint64
+	j := 0
+	if dst32 == nil {
+		for i := range dst {
+			v := src[j]
+			j += stride
+			dst[i] = v
+			m = max(m, math.Float64bits(v)&^signBit)
+		}
+		return m
+	}
+	dst32 = dst32[at : at+len(dst)]
+	for i := range dst {
+		v := src[j]
+		j += stride
+		dst[i], dst32[i] = v, float32(v)
+		m = max(m, math.Float64bits(v)&^signBit)
+	}
+	return m
+}
+
 // peakBuffered runs the interpolator over the n samples already placed by
-// input and keeps the last 11 as history.
+// input (with input32 and the blocks' maxima) and keeps the last 11 as
+// history.
 func (t *TruePeak) peakBuffered(n int, floor float64) float64 {
 	w := t.buf[:history+n]
-	switch t.factor {
-	case 4:
-		if t.narrow32() {
-			floor = peakRuns(w, floor, t.gain*skipSlack, peak4, peak4Narrow, t.scratch32())
-		} else {
-			floor = peakRuns(w, floor, t.gain, peak4, nil, nil)
-		}
-	case 2:
-		if t.narrow32() {
-			floor = peakRuns(w, floor, t.gain*skipSlack, peak2, peak2Narrow, t.scratch32())
-		} else {
-			floor = peakRuns(w, floor, t.gain, peak2, nil, nil)
-		}
-	default:
+	if t.factor == 1 {
 		for _, v := range w[history:] {
 			floor = max(floor, math.Abs(v))
 		}
+	} else {
+		floor = t.peakRuns(n, floor)
 	}
 	copy(t.buf[:history], w[n:])
 	return floor
@@ -226,45 +290,53 @@ func (t *TruePeak) Flush(floor float64) float64 {
 // skipRun is the run length over which peakRuns decides to skip.
 const skipRun = 32
 
-// peakRuns applies kernel to w (history samples, then new ones) run by run,
-// skipping a run when gain × max|x| over the run and its 11 predecessors
-// (runMaxBits; a few samples more do no harm) is at most floor: no interpolated value in it can then exceed floor, so the
-// result is exactly what the unskipped kernel would give. The run holding
-// the largest sample goes first so that floor rises early; then each
-// stretch of consecutive runs that cannot be skipped goes to the kernel in
-// one call (its runs are judged by the floor before the stretch, which is
-// never higher than the floor a run-by-run pass would use, so nothing is
-// skipped that could matter, and the maximum does not depend on the order
-// the windows are visited in).
+// peakRuns runs the interpolator (4× or 2×) over the n new samples of the
+// window buf[:history+n] run by run, skipping a run when gain × max|x| over
+// the run and its 11 predecessors (at most 12 more samples: the maximum of
+// block r and of the tail of block r−1, or of the history for run 0, from
+// t.blocks) is at most floor: no interpolated value in it can then exceed
+// floor, so the result is exactly what the unskipped kernel would give.
+// The run holding the largest sample goes first so that floor rises early;
+// then each stretch of consecutive runs that cannot be skipped goes to the
+// kernel in one call (its runs are judged by the floor before the stretch,
+// which is never higher than the floor a run-by-run pass would use, so
+// nothing is skipped that could matter, and the maximum does not depend on
+// the order the windows are visited in).
 //
-// With kernel32 (and w32, room for len(w) float32 values) each stretch is
-// converted to float32 and kernel32 does the work instead, unless the
-// chunk's largest |x| is not narrowable; gain must then include skipSlack.
-func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor float64) float64,
-	kernel32 func(w []float32, floor float64) float64, w32 []float32) float64 {
-	n := len(w) - history
+// The maxima are compared as bit patterns of |x|, which order like the
+// magnitudes and put NaN and ±Inf above every finite value: a run holding
+// one is never skipped, and its chunk goes to the float64 kernel.
+//
+// With the float32 interpolators (narrow32) each stretch runs on the
+// float32 copy w32, whose new samples fill wrote, unless the chunk's
+// largest |x| is not narrowable; the skip bound then includes skipSlack.
+func (t *TruePeak) peakRuns(n int, floor float64) float64 {
 	if n <= 0 {
 		return floor
 	}
-	var runMax [chunkFrames/skipRun + 1]float64
 	runs := (n + skipRun - 1) / skipRun
-	runMaxBits(w, runMax[:], runs)
-	best, bestRun := -1.0, 0
-	for r, m := range runMax[:runs] {
-		if m > best {
-			best, bestRun = m, r
-		}
+	var runMax [chunkFrames / skipRun]float64
+	best, bestRun := t.runMaxima(runs, &runMax)
+	top := math.Float64frombits(best)
+	narrow := t.narrow32() && narrowable(top)
+	gain := t.gain
+	if t.narrow32() {
+		gain *= skipSlack
 	}
-	if best*gain <= floor {
+	if top*gain <= floor {
 		return floor
 	}
-	if kernel32 != nil && !narrowable(best) {
-		kernel32 = nil
+	w, w32 := t.buf[:history+n], t.w32[:history+n]
+	kernel, kernel32 := peak4, peak4Narrow
+	if t.factor == 2 {
+		kernel, kernel32 = peak2, peak2Narrow
+	}
+	if narrow {
+		narrowGo(w32[:history], w[:history])
 	}
 	span := func(from, to int) { // runs from … to−1
 		lo, hi := from*skipRun, min(to*skipRun, n)+history
-		if kernel32 != nil {
-			narrow(w32[lo:hi], w[lo:hi]) // only what the kernel reads
+		if narrow {
 			floor = kernel32(w32[lo:hi], floor)
 			return
 		}
@@ -290,6 +362,25 @@ func peakRuns(w []float64, floor, gain float64, kernel func(w []float64, floor f
 		span(start, runs)
 	}
 	return floor
+}
+
+// runMaxima sets runMax[r] for r < runs to max|x| over run r's window
+// w[32r : 32r+43] and the sample before it (for r ≥ 1: the maximum of block
+// r and of the tail of block r−1; for run 0, exactly its window: the
+// history's maximum and block 0's), and returns the largest of them as
+// bits (NaN and ±Inf above every finite value) and the first run that
+// holds it.
+func (t *TruePeak) runMaxima(runs int, runMax *[chunkFrames / skipRun]float64) (best uint64, bestRun int) {
+	prev := maxAbsBitsGo(t.buf[:history])
+	for r, b := range t.blocks[:runs] {
+		m := max(prev, b[0])
+		prev = b[1]
+		runMax[r] = math.Float64frombits(m)
+		if m > best {
+			best, bestRun = m, r
+		}
+	}
+	return best, bestRun
 }
 
 // maxAbsGo returns max|x| (0 for an empty slice): the reference for the

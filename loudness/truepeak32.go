@@ -91,8 +91,8 @@ const skipSlack = 1 + 1e-5
 // underflow (NaN is not).
 func narrowable(m float64) bool { return m >= 0x1p-60 && m <= 0x1p60 }
 
-// narrowGo sets dst[i] = float32(src[i]) (round to nearest even): the
-// reference for narrowAVX2.
+// narrowGo sets dst[i] = float32(src[i]) (round to nearest even, as every
+// conversion the fill and split kernels make).
 func narrowGo(dst []float32, src []float64) {
 	dst = dst[:len(src)]
 	for i, v := range src {
@@ -205,15 +205,6 @@ func peak2Narrow(w []float32, floor float64) float64 {
 // the largest float32 |y|) in float64.
 func peak4Narrow(w []float32, floor float64) float64 {
 	return max(floor, float64(peak4Max32(w)))
-}
-
-// scratch32 returns the detector's float32 copy of its window (made by
-// the constructors; on first use for a detector made otherwise).
-func (t *TruePeak) scratch32() []float32 {
-	if t.w32 == nil {
-		t.w32 = make([]float32, history+chunkFrames)
-	}
-	return t.w32
 }
 
 // narrow32 reports whether the detector's interpolator (4× or 2×) runs in

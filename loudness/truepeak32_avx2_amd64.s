@@ -195,31 +195,6 @@ done16:
 	MOVSS        X0, ret+24(FP)
 	RET
 
-// func narrowAVX2(dst []float32, src []float64)
-//
-// dst[i] = float32(src[i]) (round to nearest even, as Go's conversion) for
-// the first 8·⌊len(src)/8⌋ elements; len(dst) ≥ len(src).
-TEXT ·narrowAVX2(SB), NOSPLIT, $0-48
-	MOVQ dst_base+0(FP), DI
-	MOVQ src_base+24(FP), SI
-	MOVQ src_len+32(FP), CX
-	SHRQ $3, CX
-	JZ   donenarrow
-
-loopnarrow:
-	VCVTPD2PSY (SI), X0
-	VCVTPD2PSY 32(SI), X1
-	VMOVUPS    X0, (DI)
-	VMOVUPS    X1, 16(DI)
-	ADDQ       $64, SI
-	ADDQ       $32, DI
-	DECQ       CX
-	JNZ        loopnarrow
-
-donenarrow:
-	VZEROUPPER
-	RET
-
 // peak2Coeffs32 holds the 2× interpolator of peak2Max32Go as float32
 // (multiples of 2⁻¹³ below 1, exact): for t = 0…11 h0[t] and h1[t] at
 // offset 8·t, broadcast to eight lanes on use.

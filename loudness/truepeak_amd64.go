@@ -64,33 +64,50 @@ func maxAbs(x []float64) float64 {
 	return float64frombits(m)
 }
 
-// runMaxBits sets runMax[r] to max|x| over w[32r : 32r+43] (and a few
-// samples more where w has them) for r < runs, as peakRuns's pre-scan
-// needs: with AVX2 all runs but the last few in one pass
-// (runMaxBitsAVX2), which takes 44 samples for each run (one more sample
-// can only make the skip test more cautious), elsewhere maxAbs run by run.
-func runMaxBits(w []float64, runMax []float64, runs int) {
-	n := len(w) - history
-	r := 0
-	if kernels >= avx2Kernels && len(w) >= 44 {
-		full := min(runs, (len(w)-44)/skipRun+1)
-		var bits [chunkFrames/skipRun + 1]uint64
-		runMaxBitsAVX2(w, bits[:full])
-		for ; r < full; r++ {
-			runMax[r] = float64frombits(bits[r])
+// fill sets the detector's input sample i to src[i·stride] for i < n ≤
+// chunkFrames, its float32 copy and the blocks' maxima, as fillGo does,
+// and returns the largest bit pattern of |x| over the n samples: with AVX2
+// the whole skipRun-sample blocks in one pass (fillAVX2, or fillAVX512 on
+// the avx512 set; copies, exact conversions and integer maxima, so
+// fillGo's result bit for bit), the rest in Go. len(src) must be at least (n−1)·stride+1.
+func (t *TruePeak) fill(src []float64, stride, n int) uint64 {
+	if n <= 0 {
+		return 0
+	}
+	_ = src[(n-1)*stride]
+	blocks := 0
+	if kernels >= avx2Kernels {
+		blocks = n / skipRun
+	}
+	var peak uint64
+	if blocks > 0 {
+		fillKernel := fillAVX2
+		if kernels >= avx512Kernels {
+			fillKernel = fillAVX512
+		}
+		fillKernel(&src[0], stride*8, blocks, &t.buf[history], &t.w32[history], &t.blocks[0])
+		for _, b := range t.blocks[:blocks] {
+			peak = max(peak, b[0])
 		}
 	}
-	for ; r < runs; r++ {
-		runMax[r] = maxAbs(w[r*skipRun : min((r+1)*skipRun, n)+history])
+	if done := blocks * skipRun; done < n {
+		peak = max(peak, t.fillGo(src, stride, done, n))
 	}
+	return peak
 }
 
-// runMaxBitsAVX2 sets out[r] to the largest bit pattern of |x| over
-// w[32r : 32r+44] for every r < len(out); 32·(len(out)−1)+44 ≤ len(w)
-// (truepeak_avx2_amd64.s).
+// fillAVX2 is fillGo over the first blocks·skipRun samples src[0],
+// src[stride/8], … (stride in bytes) into dst, dst32 and blocks, four
+// samples a register (split_avx2_amd64.s).
 //
 //go:noescape
-func runMaxBitsAVX2(w []float64, out []uint64)
+func fillAVX2(src *float64, stride, blocks int, dst *float64, dst32 *float32, out *[2]uint64)
+
+// fillAVX512 is fillAVX2 with the maxima by AVX-512 VL's VPMAXUQ
+// (split_avx2_amd64.s).
+//
+//go:noescape
+func fillAVX512(src *float64, stride, blocks int, dst *float64, dst32 *float32, out *[2]uint64)
 
 // peak4PairsSSE2 is peak4SquaresGo over the first 2·⌊(len(w)−11)/2⌋
 // windows of w (truepeak_amd64.s).
@@ -156,27 +173,8 @@ func peak2Max32(w []float32) float32 {
 //go:noescape
 func peak2Max32AVX2(w []float32) float32
 
-// narrow is narrowGo, with AVX2 eight elements at a time (narrowAVX2).
-func narrow(dst []float32, src []float64) {
-	if kernels < avx2Kernels {
-		narrowGo(dst, src)
-		return
-	}
-	dst = dst[:len(src)]
-	narrowAVX2(dst, src)
-	if k := len(src) &^ 7; k < len(src) {
-		narrowGo(dst[k:], src[k:])
-	}
-}
-
 // peak4Max32AVX2 is peak4Max32Go over the first 8·⌊(len(w)−11)/8⌋
 // windows of w (truepeak32_avx2_amd64.s).
 //
 //go:noescape
 func peak4Max32AVX2(w []float32) float32
-
-// narrowAVX2 is narrowGo over the first 8·⌊len(src)/8⌋ elements;
-// len(dst) ≥ len(src) (truepeak32_avx2_amd64.s).
-//
-//go:noescape
-func narrowAVX2(dst []float32, src []float64)
