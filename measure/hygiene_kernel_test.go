@@ -106,23 +106,51 @@ func samePair(a, b pairSums) bool {
 }
 
 // TestStereoKernelMatchesGo checks stereoStretchAVX2 against its Go twin
-// (through stereoStretch, the AVX2 path switched on).
+// (through stereoStretch, the AVX2 path switched on): every frame count up
+// to 70 (both sides of the two-frame steps) and longer stretches, with and
+// without NaN and infinities; subnormals; values whose squares overflow,
+// with ±full scale and signed zeros; a NaN running maximum of |L−R|; and
+// clipping levels from 0 (every sample flagged, unless there is none) to
+// the bits just above +Inf (only NaN flagged). Every level the probes pass
+// is the bit pattern of a non-negative float64 (hygiene.fullBits), the
+// range the kernel's signed comparison with full−1 is exact in.
 func TestStereoKernelMatchesGo(t *testing.T) {
 	if !haveHygieneAVX2 {
 		t.Skip("no AVX2 kernels in this build or on this CPU")
 	}
 	useHygieneAVX2(t, true)
+	check := func(what string, buf []float64, start pairSums, full uint64) {
+		t.Helper()
+		a, b := start, start
+		ha := stereoStretchGo(buf, &a, full)
+		hb := stereoStretch(buf, &b, full)
+		if ha != hb || !samePair(a, b) {
+			t.Errorf("%s, %d frames: Go %v %+v, AVX2 %v %+v", what, len(buf)/2, ha, a, hb, b)
+		}
+	}
 	full := math.Float64bits((math.Ldexp(1, 23) - 1) / math.Ldexp(1, 23))
-	for _, n := range probeLengths {
+	lengths := append([]int{4095, 4096, 4097}, make([]int, 71)...)
+	for i := range 71 {
+		lengths[3+i] = i
+	}
+	for _, n := range lengths {
 		for _, bad := range []bool{false, true} {
 			buf := probeSignal(n, 2, uint64(n), bad)
-			start := pairSums{0.25, -0.5, 3, 4, -1, 0.125}
-			a, b := start, start
-			ha := stereoStretchGo(buf, &a, full)
-			hb := stereoStretch(buf, &b, full)
-			if ha != hb || !samePair(a, b) {
-				t.Errorf("%d frames (bad %v): Go %v %+v, AVX2 %v %+v", n, bad, ha, a, hb, b)
-			}
+			check(fmt.Sprintf("bad %v", bad), buf, pairSums{0.25, -0.5, 3, 4, -1, 0.125}, full)
+		}
+	}
+	sub, big := make([]float64, 2*70), make([]float64, 2*70)
+	for i := range sub {
+		sub[i] = math.Ldexp(float64(i%13)-6, -1070) // subnormals, both signs
+		big[i] = []float64{1e200, -1e300, 1, -1, 0, math.Copysign(0, -1)}[i%6]
+	}
+	x := probeSignal(70, 2, 7, true)
+	for n := range 71 {
+		check("subnormal", sub[:2*n], pairSums{}, full)
+		check("squares overflow", big[:2*n], pairSums{}, full)
+		check("NaN maximum", x[:2*n], pairSums{1, 2, 3, 4, 5, math.NaN()}, full)
+		for _, level := range []uint64{0, 1, math.Float64bits(0.3), math.Float64bits(math.Inf(1)), math.Float64bits(math.Inf(1)) + 1} {
+			check(fmt.Sprintf("level %#x", level), x[:2*n], pairSums{}, level)
 		}
 	}
 	// Nothing at full scale: no flag.
