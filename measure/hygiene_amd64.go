@@ -17,9 +17,23 @@ var hygieneAVX2 = cpu.X86.HasAVX2 && loudness.KernelsAtLeastAVX2()
 // haveHygieneAVX2 says whether this build and CPU can run the kernels.
 var haveHygieneAVX2 = cpu.X86.HasAVX2
 
-// stereoStretch is stereoStretchGo, on AVX2 where it runs.
+// hygieneAVX512 says whether the probes that have an AVX-512 kernel (the
+// stereo one) run it; hygieneAVX2 must be set too. It is set where the
+// engine runs its avx512 set, which it chooses only on CPUs with AVX-512
+// F, DQ, BW and VL, so KWEIGH_KERNELS=avx2 turns it off as well. Tests
+// switch it.
+var hygieneAVX512 = haveHygieneAVX512 && loudness.Kernels() == "avx512"
+
+// haveHygieneAVX512 says whether this build and CPU can run the AVX-512
+// kernels (the subsets the engine's avx512 set asks for).
+var haveHygieneAVX512 = cpu.X86.HasAVX2 && cpu.X86.HasAVX512F && cpu.X86.HasAVX512DQ && cpu.X86.HasAVX512BW && cpu.X86.HasAVX512VL
+
+// stereoStretch is stereoStretchGo, on AVX-512 or AVX2 where they run.
 func stereoStretch(seg []float64, s *pairSums, full uint64) bool {
-	if hygieneAVX2 {
+	switch {
+	case hygieneAVX2 && hygieneAVX512:
+		return stereoStretchAVX512(seg[:len(seg)&^1], s, full)
+	case hygieneAVX2:
 		return stereoStretchAVX2(seg[:len(seg)&^1], s, full)
 	}
 	return stereoStretchGo(seg, s, full)
@@ -46,3 +60,9 @@ func stereoStretchAVX2(seg []float64, s *pairSums, full uint64) bool
 //
 //go:noescape
 func anyStretchAVX2(buf, out []float64, frames int, st *frameState) bool
+
+// stereoStretchAVX512 is stereoStretchGo (hygiene_avx512_amd64.s, AVX-512
+// F, DQ and VL on Y registers); len(seg) is even.
+//
+//go:noescape
+func stereoStretchAVX512(seg []float64, s *pairSums, full uint64) bool

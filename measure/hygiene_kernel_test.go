@@ -39,27 +39,42 @@ func TestFrameStateLayout(t *testing.T) {
 	}
 }
 
+// hygienePath is one way of running the probes' kernels: the Go loops,
+// the AVX2 kernels, or the AVX-512 ones where a kernel has them (the AVX2
+// ones elsewhere).
+type hygienePath int
+
+const (
+	goPath hygienePath = iota
+	avx2Path
+	avx512Path
+)
+
+func (p hygienePath) String() string { return [...]string{"go", "avx2", "avx512"}[p] }
+
 // kernelPaths are the probe paths this build and CPU run: Go, and AVX2
-// where present.
-func kernelPaths() []bool {
+// and AVX-512 where present.
+func kernelPaths() []hygienePath {
+	paths := []hygienePath{goPath}
 	if haveHygieneAVX2 {
-		return []bool{false, true}
+		paths = append(paths, avx2Path)
 	}
-	return []bool{false}
+	if haveHygieneAVX512 {
+		paths = append(paths, avx512Path)
+	}
+	return paths
 }
 
-// useHygieneAVX2 switches the probes' kernels for a test.
-func useHygieneAVX2(t *testing.T, on bool) {
-	old := hygieneAVX2
-	hygieneAVX2 = on
-	t.Cleanup(func() { hygieneAVX2 = old })
-}
+// simdPaths are kernelPaths without the Go loops: the kernels to check
+// against them.
+func simdPaths() []hygienePath { return kernelPaths()[1:] }
 
-func pathName(avx2 bool) string {
-	if avx2 {
-		return "avx2"
-	}
-	return "go"
+// useHygienePath switches the probes' kernels to path p for a test (until
+// its cleanup).
+func useHygienePath(t testing.TB, p hygienePath) {
+	oldAVX2, oldAVX512 := hygieneAVX2, hygieneAVX512
+	hygieneAVX2, hygieneAVX512 = p >= avx2Path, p >= avx512Path
+	t.Cleanup(func() { hygieneAVX2, hygieneAVX512 = oldAVX2, oldAVX512 })
 }
 
 // probeSignal returns frames of nc channels: noise at programme level with
@@ -105,9 +120,10 @@ func samePair(a, b pairSums) bool {
 		sameFloat(a.srr, b.srr) && sameFloat(a.slr, b.slr) && sameFloat(a.maxDiff, b.maxDiff)
 }
 
-// TestStereoKernelMatchesGo checks stereoStretchAVX2 against its Go twin
-// (through stereoStretch, the AVX2 path switched on): every frame count up
-// to 70 (both sides of the two-frame steps) and longer stretches, with and
+// TestStereoKernelMatchesGo checks stereoStretchAVX2 and
+// stereoStretchAVX512 against their Go twin (through stereoStretch, each
+// path switched on): every frame count up to 70 (both sides of the
+// two-frame steps) and longer stretches, with and
 // without NaN and infinities; subnormals; values whose squares overflow,
 // with ±full scale and signed zeros; a NaN running maximum of |L−R|; and
 // clipping levels from 0 (every sample flagged, unless there is none) to
@@ -115,17 +131,25 @@ func samePair(a, b pairSums) bool {
 // is the bit pattern of a non-negative float64 (hygiene.fullBits), the
 // range the kernel's signed comparison with full−1 is exact in.
 func TestStereoKernelMatchesGo(t *testing.T) {
-	if !haveHygieneAVX2 {
-		t.Skip("no AVX2 kernels in this build or on this CPU")
+	if len(simdPaths()) == 0 {
+		t.Skip("no SIMD kernels in this build or on this CPU")
 	}
-	useHygieneAVX2(t, true)
+	for _, p := range simdPaths() {
+		t.Run(p.String(), func(t *testing.T) {
+			useHygienePath(t, p)
+			testStereoKernelMatchesGo(t)
+		})
+	}
+}
+
+func testStereoKernelMatchesGo(t *testing.T) {
 	check := func(what string, buf []float64, start pairSums, full uint64) {
 		t.Helper()
 		a, b := start, start
 		ha := stereoStretchGo(buf, &a, full)
 		hb := stereoStretch(buf, &b, full)
 		if ha != hb || !samePair(a, b) {
-			t.Errorf("%s, %d frames: Go %v %+v, AVX2 %v %+v", what, len(buf)/2, ha, a, hb, b)
+			t.Errorf("%s, %d frames: Go %v %+v, kernel %v %+v", what, len(buf)/2, ha, a, hb, b)
 		}
 	}
 	full := math.Float64bits((math.Ldexp(1, 23) - 1) / math.Ldexp(1, 23))
@@ -161,13 +185,23 @@ func TestStereoKernelMatchesGo(t *testing.T) {
 	}
 }
 
-// TestAnyKernelMatchesGo checks anyStretchAVX2 (through anyStretch) against its Go twin for
-// every channel count it takes, with and without the pair and the
-// fold-down.
+// TestAnyKernelMatchesGo checks anyStretchAVX2 (through anyStretch, on
+// every SIMD path: the avx512 path runs the AVX2 kernel) against its Go
+// twin for every channel count it takes, with and without the pair and
+// the fold-down.
 func TestAnyKernelMatchesGo(t *testing.T) {
-	if !haveHygieneAVX2 {
-		t.Skip("no AVX2 kernels in this build or on this CPU")
+	if len(simdPaths()) == 0 {
+		t.Skip("no SIMD kernels in this build or on this CPU")
 	}
+	for _, p := range simdPaths() {
+		t.Run(p.String(), func(t *testing.T) {
+			useHygienePath(t, p)
+			testAnyKernelMatchesGo(t)
+		})
+	}
+}
+
+func testAnyKernelMatchesGo(t *testing.T) {
 	full := math.Float64bits(1)
 	for nc := 1; nc <= maxKernelChannels; nc++ {
 		// {0, 1} with the fold-down at six channels is the 5.1 loop that
@@ -199,19 +233,19 @@ func TestAnyKernelMatchesGo(t *testing.T) {
 					ha := anyStretchGo(buf, outA, sums, gains, &p, pair[0], pair[1], full)
 					hb := anyStretch(buf, outB, &st)
 					if ha != hb {
-						t.Errorf("%s: full-scale flag Go %v, AVX2 %v", name, ha, hb)
+						t.Errorf("%s: full-scale flag Go %v, kernel %v", name, ha, hb)
 					}
 					for c := range nc {
 						if !sameFloat(sums[c], st.sums[c]) {
-							t.Errorf("%s: channel %d sum Go %v, AVX2 %v", name, c, sums[c], st.sums[c])
+							t.Errorf("%s: channel %d sum Go %v, kernel %v", name, c, sums[c], st.sums[c])
 						}
 					}
 					if pair[0] >= 0 && !samePair(p, st.pair) {
-						t.Errorf("%s: pair Go %+v, AVX2 %+v", name, p, st.pair)
+						t.Errorf("%s: pair Go %+v, kernel %+v", name, p, st.pair)
 					}
 					for i := range outA {
 						if !sameFloat(outA[i], outB[i]) {
-							t.Fatalf("%s: fold-down sample %d Go %v, AVX2 %v", name, i, outA[i], outB[i])
+							t.Fatalf("%s: fold-down sample %d Go %v, kernel %v", name, i, outA[i], outB[i])
 						}
 					}
 				}
@@ -222,7 +256,8 @@ func TestAnyKernelMatchesGo(t *testing.T) {
 
 // BenchmarkProbes runs the probes alone over one second of 48 kHz
 // programme in 4 096-frame blocks (stereo; 5.1 with its fold-down made in
-// the same pass), on every kernel path. Metric x-realtime: seconds of
+// the same pass), on every kernel path (avx512: the stereo kernel on
+// AVX-512, 5.1 on AVX2). Metric x-realtime: seconds of
 // audio per second.
 //
 //	go test -run '^$' -bench Probes -benchtime 20x -cpu 1 ./measure
@@ -234,11 +269,9 @@ func BenchmarkProbes(b *testing.B) {
 		{"stereo", []string{"L", "R"}},
 		{"5.1", []string{"L", "R", "C", "LFE", "Ls", "Rs"}},
 	} {
-		for _, avx2 := range kernelPaths() {
-			b.Run(c.name+"/"+pathName(avx2), func(b *testing.B) {
-				old := hygieneAVX2
-				hygieneAVX2 = avx2
-				defer func() { hygieneAVX2 = old }()
+		for _, p := range kernelPaths() {
+			b.Run(c.name+"/"+p.String(), func(b *testing.B) {
+				useHygienePath(b, p)
 				nc := len(c.layout)
 				buf := probeSignal(48000, nc, 1, false)
 				for i := range buf {
