@@ -46,6 +46,13 @@ func anyStretch(buf, out []float64, st *frameState) bool {
 	if out != nil {
 		out = out[:2*frames] // the kernel writes two samples per frame
 	}
+	if hygieneAVX512 && out != nil && st.channels == 6 && st.left == 0 && st.right == 1 && frames >= 4 {
+		// 5.1 with its fold-down: four frames per step on AVX-512, the
+		// last one to three on AVX2, which go on from the sums in st.
+		n := frames &^ 3
+		hit := anyStretch51AVX512(buf[:6*n], out[:2*n], n, st)
+		return anyStretchAVX2(buf[6*n:6*frames], out[2*n:], frames-n, st) || hit
+	}
 	return anyStretchAVX2(buf[:frames*int(st.channels)], out, frames, st)
 }
 
@@ -66,3 +73,11 @@ func anyStretchAVX2(buf, out []float64, frames int, st *frameState) bool
 //
 //go:noescape
 func stereoStretchAVX512(seg []float64, s *pairSums, full uint64) bool
+
+// anyStretch51AVX512 is anyStretchGo for 5.1 with L, R first and the
+// fold-down (st.channels 6, st.left 0, st.right 1) over frames frames, a
+// positive multiple of 4 (len(buf) = 6·frames, len(out) = 2·frames;
+// hygiene_avx512_amd64.s).
+//
+//go:noescape
+func anyStretch51AVX512(buf, out []float64, frames int, st *frameState) bool

@@ -109,7 +109,10 @@ func probeSignal(frames, nc int, seed uint64, bad bool) []float64 {
 	return buf
 }
 
-var probeLengths = []int{0, 1, 2, 3, 4, 5, 7, 64, 4095, 4096, 4097}
+// probeLengths are the frame counts the kernel tests run: around the two-
+// and four-frame steps (every remainder of four from 4 frames on) and a
+// block.
+var probeLengths = []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 64, 4095, 4096, 4097}
 
 func sameFloat(a, b float64) bool {
 	return math.Float64bits(a) == math.Float64bits(b) || a != a && b != b
