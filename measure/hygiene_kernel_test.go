@@ -6,6 +6,8 @@ import (
 	"math/rand/v2"
 	"testing"
 	"unsafe"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // The probes' kernels claim the very floating-point operations of the Go
@@ -297,5 +299,53 @@ func BenchmarkProbes(b *testing.B) {
 				b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "x-realtime")
 			})
 		}
+	}
+}
+
+// BenchmarkProbeKernels runs the probes' kernels alone on one 4 096-frame
+// block of programme-level noise (no clipping): the stereo kernel
+// (stereoStretch) and the 5.1 pass with its fold-down (anyStretch), on
+// every path (avx512: stereoStretchAVX512, anyStretch51AVX512 with AVX2
+// for the last frames). Compare the paths' x-realtime-cpu (the thread's
+// CPU time, fair on a busy machine) within one run:
+//
+//	go test -run '^$' -bench ProbeKernels -benchtime 20000x -count 5 -cpu 1 ./measure
+func BenchmarkProbeKernels(b *testing.B) {
+	const frames = 4096
+	stereo := probeSignal(frames, 2, 1, false)
+	surround := probeSignal(frames, 6, 2, false)
+	for _, x := range [][]float64{stereo, surround} {
+		for i := range x {
+			x[i] *= 0.5 // no clipping: the common case
+		}
+	}
+	full := math.Float64bits(1)
+	gains := newDownmixer([]string{"L", "R", "C", "LFE", "Ls", "Rs"}, 48000).gains
+	out := make([]float64, 2*frames)
+	for _, p := range kernelPaths() {
+		b.Run("stereo/"+p.String(), func(b *testing.B) {
+			useHygienePath(b, p)
+			var s pairSums
+			clock := audiotest.StartRealtimeThread(b)
+			for range b.N {
+				stereoStretch(stereo, &s, full)
+			}
+			clock.Report(frames / 48000.0)
+		})
+		b.Run("5.1-fold/"+p.String(), func(b *testing.B) {
+			useHygienePath(b, p)
+			st := newFrameState(6, 0, 1, 1)
+			st.setGains(gains)
+			sums := make([]float64, 6)
+			clock := audiotest.StartRealtimeThread(b)
+			for range b.N {
+				if p == goPath {
+					anyStretchGo(surround, out, sums, gains, &st.pair, 0, 1, full)
+				} else {
+					anyStretch(surround, out, &st)
+				}
+			}
+			clock.Report(frames / 48000.0)
+		})
 	}
 }
