@@ -17,8 +17,8 @@ var hygieneAVX2 = cpu.X86.HasAVX2 && loudness.KernelsAtLeastAVX2()
 // haveHygieneAVX2 says whether this build and CPU can run the kernels.
 var haveHygieneAVX2 = cpu.X86.HasAVX2
 
-// hygieneAVX512 says whether the probes that have an AVX-512 kernel (the
-// stereo one) run it; hygieneAVX2 must be set too. It is set where the
+// hygieneAVX512 says whether the probes that have AVX-512 kernels (stereo,
+// and 5.1 with its fold-down) run them; hygieneAVX2 must be set too. It is set where the
 // engine runs its avx512 set, which it chooses only on CPUs with AVX-512
 // F, DQ, BW and VL, so KWEIGH_KERNELS=avx2 turns it off as well. Tests
 // switch it.
@@ -40,7 +40,8 @@ func stereoStretch(seg []float64, s *pairSums, full uint64) bool {
 }
 
 // anyStretch runs the AVX2 kernel on the state block st (channels at most
-// maxKernelChannels; see hygiene.stretch).
+// maxKernelChannels; see hygiene.stretch), or for 5.1 with L, R first and
+// the fold-down, where hygieneAVX512 is set, the AVX-512 one.
 func anyStretch(buf, out []float64, st *frameState) bool {
 	frames := len(buf) / int(st.channels)
 	if out != nil {

@@ -2,17 +2,19 @@
 
 #include "textflag.h"
 
-// The hygiene probes' AVX-512 kernels (see hygiene_kernel.go). They use
-// AVX-512's masks and EVEX forms on Y registers only (AVX-512 VL): the
-// probe sums are running sums in frame order, one addition per frame each,
-// so their cost is the latency of that addition, and on the project's
-// machine a 512-bit addition's is about 3.4 cycles against 2 for a
-// 256-bit one (a Z-register version of the stereo kernel was 0.83× the
-// AVX2 one). What AVX-512 buys here is fewer shuffles: a frame's
-// (l, r, l², r²) comes from one broadcast load and one merge-masked
-// multiply. As in the AVX2 kernels, every running sum lives in its own
-// lane and takes one addition per frame, in frame order, exactly as the Go
-// loop adds it; products are rounded before they are added (no FMA).
+// The hygiene probes' AVX-512 kernels (see hygiene_kernel.go). The probe
+// sums are running sums in frame order, one addition per frame each, so
+// their cost is the latency of that addition, and on the project's machine
+// a 512-bit addition's is about 3.4 cycles against 2 for a 256-bit one
+// (with a Z-register stereo kernel the probes ran at 0.83× their speed
+// with the AVX2 one): the sums stay in Y and X registers, and what AVX-512
+// buys for them is fewer shuffles (a frame's (l, r, l², r²) from one
+// broadcast load and one merge-masked multiply, AVX-512 VL). Z registers
+// carry only work that is no chain from frame to frame: the 5.1 fold-down
+// of four frames at once and the full-scale test. As in the AVX2 kernels,
+// every running sum lives in its own lane and takes one addition per
+// frame, in frame order, exactly as the Go loop adds it; products are
+// rounded before they are added (no FMA).
 
 // FRAMEVL adds the L/R frame at off(SI) to the window sums: Y7 =
 // (l r l r) from memory, squared in lanes 2–3 only (K3) to
