@@ -1,4 +1,4 @@
-//go:build linux && amd64 && !purego
+//go:build linux && !purego
 
 package loudness
 
@@ -8,6 +8,9 @@ import (
 	"testing"
 	"unsafe"
 )
+
+// The amd64 kernels' tests and benchmarks that need Linux (mmap) or call
+// the assembly directly.
 
 // guardedFloat32s returns a slice of n float32 values that ends exactly
 // where an inaccessible page begins, so that a kernel reading one byte past
@@ -49,4 +52,41 @@ func TestPeakMax32StaysInBounds(t *testing.T) {
 			}
 		}
 	})
+}
+
+// BenchmarkNextTo512 times AVX2 code next to 512-bit arithmetic: the
+// float64 AVX2 interpolator (peak4QuadsAVX2) on a chunk alone, then each
+// call followed by the float32 one on AVX2 and on AVX-512. Where the
+// AVX-512 pair takes longer than the AVX-512 kernel alone
+// (BenchmarkTruePeak32Kernel) plus the AVX2 code alone, the difference is
+// what the AVX2 code loses next to 512-bit arithmetic. Compare ns/op
+// within one run:
+//
+//	go test -run '^$' -bench 'NextTo512|TruePeak32Kernel/4x' -benchtime 20000x -count 3 -cpu 1 ./loudness
+func BenchmarkNextTo512(b *testing.B) {
+	if bestKernels() < avx512Kernels {
+		b.Skip("no AVX-512 here")
+	}
+	w := denseFullScale(5, history+chunkFrames)
+	w32 := make([]float32, len(w))
+	narrowGo(w32, w)
+	var sink float64
+	b.Run("avx2-float64-alone", func(b *testing.B) {
+		for range b.N {
+			sink += peak4QuadsAVX2(w, 0)
+		}
+	})
+	b.Run("avx2-float64+avx2-float32", func(b *testing.B) {
+		for range b.N {
+			sink += peak4QuadsAVX2(w, 0) + float64(peak4Max32AVX2(w32))
+		}
+	})
+	b.Run("avx2-float64+avx512-float32", func(b *testing.B) {
+		for range b.N {
+			sink += peak4QuadsAVX2(w, 0) + float64(peak4Max32AVX512(w32))
+		}
+	})
+	if sink == 0 {
+		b.Fatal("no peak")
+	}
 }
