@@ -165,29 +165,24 @@ GLOBL fold51Index<>(SB), RODATA|NOPTR, $384
 
 // FRAME51 adds the 5.1 frame at off(SI) to its running sums: channels 0–3
 // into Y0 and 4–5 into X1; the L/R pair (channels 0 and 1) as FRAMEVL
-// into Y2 = (sl, sr, sll, srr) and X3 = slr; |l−r| into the running
-// maximum mx (X4 for even frames, X6 for odd ones: two chains, the
-// maximum being exact in any order).
-#define FRAME51(off, mx) \
+// into Y2 = (sl, sr, sll, srr) and X3 = slr.
+#define FRAME51(off) \
 	VADDPD         off(SI), Y0, Y0 \
 	VADDPD         (off+32)(SI), X1, X1 \
 	VBROADCASTF128 off(SI), Y7 \
 	VMULPD         Y7, Y7, K3, Y7 \
 	VADDPD         Y7, Y2, Y2 \
 	VMULSD         (off+8)(SI), X7, X8 \
-	VADDSD         X8, X3, X3 \
-	VSUBSD         (off+8)(SI), X7, X9 \
-	VANDPD         X14, X9, X9 \
-	VMAXSD         mx, X9, mx
+	VADDSD         X8, X3, X3
 
 // FOLD51 adds channel c's products, gain times sample, to the four
-// frames' (Lo, Ro) in Z13: the channel's samples gathered by two permutes
-// (fold51Index), its gains (Lo, Ro four times) in G.
-#define FOLD51(c, G) \
-	VMOVDQU64 fold51Index<>+(64*c)(SB), Z15 \
-	VPERMI2PD Z11, Z10, K1, Z15 \
-	VPERMI2PD Z12, Z11, K2, Z15 \
-	VMULPD    Z15, G, Z9 \
+// frames' (Lo, Ro) in Z13: the channel's samples gathered into D by two
+// permutes (fold51Index), its gains (Lo, Ro four times) in G.
+#define FOLD51(c, G, D) \
+	VMOVDQU64 fold51Index<>+(64*c)(SB), D \
+	VPERMI2PD Z11, Z10, K1, D \
+	VPERMI2PD Z12, Z11, K2, D \
+	VMULPD    D, G, Z9 \
 	VADDPD    Z9, Z13, Z13
 
 // func anyStretch51AVX512(buf, out []float64, frames int, st *frameState) bool
@@ -199,10 +194,13 @@ GLOBL fold51Index<>(SB), RODATA|NOPTR, $384
 // is made in Z registers (lanes Lo, Ro of frames f, g, h, i), each
 // channel's products added from 0 in channel order (FOLD51); the
 // full-scale test takes the four frames' 24 samples in three Z registers
-// (Z5 the largest bit pattern of |x|, compared with full at the end).
-// Registers: SI buf, DI out, CX frames left, BX st; Z16–Z21 the gains;
-// Z14 the mask of all but the sign bit; K1 lanes 0–3, K2 lanes 4–7, K3
-// lanes 2–3.
+// (Z5 the largest bit pattern of |x|, compared with full at the end);
+// |l−r| of the four frames from the fold-down's gathered L and R (Z22,
+// Z23: each frame's value twice), into the running maxima Z4 (every
+// lane; the maximum is exact in any order, and NaN is never taken, as in
+// Go). Registers: SI buf, DI out, CX frames left, BX st; Z16–Z21 the
+// gains; Z14 the mask of all but the sign bit; K1 lanes 0–3, K2 lanes
+// 4–7, K3 lanes 2–3.
 TEXT ·anyStretch51AVX512(SB), NOSPLIT, $0-65
 	MOVQ            buf_base+0(FP), SI
 	MOVQ            out_base+24(FP), DI
@@ -226,8 +224,7 @@ TEXT ·anyStretch51AVX512(SB), NOSPLIT, $0-65
 	VMOVUPD         (ST_SUMS+32)(BX), X1
 	VMOVUPD         ST_PAIR(BX), Y2
 	VMOVSD          (ST_PAIR+32)(BX), X3
-	VMOVSD          (ST_PAIR+40)(BX), X4
-	VMOVSD          (ST_PAIR+40)(BX), X6
+	VBROADCASTSD    (ST_PAIR+40)(BX), Z4
 	VPXORQ          Z5, Z5, Z5
 
 four51:
@@ -240,24 +237,32 @@ four51:
 	VPMAXUQ Z9, Z5, Z5
 	VPANDQ  Z14, Z12, Z9
 	VPMAXUQ Z9, Z5, Z5
-	FRAME51(0, X4)
-	FRAME51(48, X6)
-	FRAME51(96, X4)
-	FRAME51(144, X6)
+	FRAME51(0)
+	FRAME51(48)
+	FRAME51(96)
+	FRAME51(144)
 	VPXORQ  Z13, Z13, Z13
-	FOLD51(0, Z16)
-	FOLD51(1, Z17)
-	FOLD51(2, Z18)
-	FOLD51(3, Z19)
-	FOLD51(4, Z20)
-	FOLD51(5, Z21)
+	FOLD51(0, Z16, Z22)       // Z22 = L of the four frames, each twice
+	FOLD51(1, Z17, Z23)       // Z23 = R
+	FOLD51(2, Z18, Z15)
+	FOLD51(3, Z19, Z15)
+	FOLD51(4, Z20, Z15)
+	FOLD51(5, Z21, Z15)
+	VSUBPD  Z23, Z22, Z24     // l−r
+	VANDPD  Z14, Z24, Z24
+	VMAXPD  Z4, Z24, Z4       // |l−r| > md ? |l−r| : md
 	VMOVUPD Z13, (DI)
 	ADDQ    $64, DI
 	ADDQ    $192, SI
 	SUBQ    $4, CX
 	JGT     four51
 
-	VMAXSD       X6, X4, X4
+	VEXTRACTF64X4 $1, Z4, Y6
+	VMAXPD        Y6, Y4, Y4
+	VEXTRACTF128  $1, Y4, X6
+	VMAXPD        X6, X4, X4
+	VPERMILPD     $1, X4, X6
+	VMAXPD        X6, X4, X4
 	VMOVUPD      Y0, ST_SUMS(BX)
 	VMOVUPD      X1, (ST_SUMS+32)(BX)
 	VMOVUPD      Y2, ST_PAIR(BX)
