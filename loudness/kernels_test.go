@@ -58,7 +58,8 @@ func sameBits(a, b float64) bool {
 }
 
 // forEachKernelSet runs f once on every kernel set this build and CPU can
-// run (go, then sse2 and avx2 where present), as a subtest named after it.
+// run (go, then sse2, avx2 and avx512 where present), as a subtest named
+// after it.
 func forEachKernelSet(t *testing.T, f func(t *testing.T)) {
 	t.Helper()
 	for _, k := range availableKernels() {
@@ -431,8 +432,8 @@ func testSplit6MatchesGo(t *testing.T) {
 // TestTruePeakSameOnEverySet runs the whole detector (pre-scan, skip,
 // stretches of runs, kernels, tails, flush) over signals in 100 ms writes
 // at 48 and 96 kHz on every kernel set and demands the go set's peak of
-// every write bit for bit (the sse2 set, float64 where go and avx2 are
-// float32, within peak32Error): programme, dense noise, spikes, and a periodic
+// every write bit for bit (the sse2 set, float64 where go, avx2 and
+// avx512 are float32, within peak32Error): programme, dense noise, spikes, and a periodic
 // signal whose every run peaks at about the same height (so that the skip
 // test decides at the margin).
 func TestTruePeakSameOnEverySet(t *testing.T) {

@@ -14,8 +14,10 @@ import "math"
 // peak stay float64; the float32 maximum converts exactly.
 //
 // Where the sets use them: the go set (peak4Max32Go, peak2Max32Go, the
-// references) and the avx2 set (peak4Max32AVX2, peak2Max32AVX2, bit for bit
-// the same), so the go and avx2 sets give the same bits on every platform;
+// references), the avx2 set (peak4Max32AVX2, peak2Max32AVX2, bit for bit
+// the same) and the avx512 set (peak4Max32AVX512, peak2Max32AVX512, the
+// same again), so the go, avx2 and avx512 sets give the same bits on every
+// platform;
 // the sse2 set keeps the float64 kernels, whose peaks differ from the
 // float32 ones by no more than peak32Error allows. A chunk whose largest
 // |x| lies outside [2⁻⁶⁰, 2⁶⁰] (or is not finite) goes to the float64
@@ -208,6 +210,6 @@ func peak4Narrow(w []float32, floor float64) float64 {
 }
 
 // narrow32 reports whether the detector's interpolator (4× or 2×) runs in
-// float32: on the go and avx2 sets, unless a test asked for the float64
+// float32: on the go, avx2 and avx512 sets, unless a test asked for the float64
 // one (wide).
 func (t *TruePeak) narrow32() bool { return !t.wide && kernels != sse2Kernels }

@@ -25,9 +25,11 @@ var float32Kernels = []struct {
 
 // TestPeakMax32MatchesGo checks the float32 interpolators in use
 // (peak4Max32, peak2Max32: the AVX2 kernels with the Go loop for the
-// windows left over) against their Go twins bit for bit, on every kernel
-// set: whole signals at every start offset within 32 bytes, then window by
-// window in groups of up to 17 (every lane of both groups of eight and the
+// windows left over, or the AVX-512 ones with their masked last group)
+// against their Go twins bit for bit, on every kernel set: whole signals
+// at every start offset within 32 bytes, then window by window in groups
+// of up to 48 (every lane of both groups of sixteen, of a group of sixteen
+// alone and of every masked tail; for AVX2 of both groups of eight and the
 // leftovers), so that no difference hides behind a larger maximum.
 func TestPeakMax32MatchesGo(t *testing.T) {
 	forEachKernelSet(t, func(t *testing.T) {
@@ -45,8 +47,8 @@ func TestPeakMax32MatchesGo(t *testing.T) {
 			}
 			for name, x := range kernelSignals(2400) {
 				w := narrowed(x)
-				for i := 0; i+interpolatorTaps+16 <= len(w); i++ {
-					for extra := range 17 {
+				for i := 0; i+interpolatorTaps+48 <= len(w); i++ {
+					for extra := range 49 {
 						v := w[i : i+interpolatorTaps+extra]
 						if got, want := k.kernel(v), k.ref(v); math.Float32bits(got) != math.Float32bits(want) {
 							t.Fatalf("%s %s, %d samples at %d: kernel %.9g, Go %.9g", k.name, name, len(v), i, got, want)
@@ -59,6 +61,51 @@ func TestPeakMax32MatchesGo(t *testing.T) {
 				if got := k.kernel(narrowed(denseFullScale(uint64(n), n))); got != 0 {
 					t.Errorf("%s, %d samples: %v, want 0", k.name, n, got)
 				}
+			}
+		}
+	})
+}
+
+// TestPeakMax32EdgeInputs checks the float32 interpolators in use
+// against their Go twins bit for bit on the inputs where SIMD and scalar
+// arithmetic could part: float32 subnormals alone (every product and sum
+// subnormal or zero, no flush to zero allowed), ±full scale (±1, and the
+// alternating ±1 of a Nyquist square, the largest interpolated values),
+// values near the float32 maximum (sums that overflow to ±Inf and
+// differences Inf − Inf = NaN, which the maximum must skip), signed zeros,
+// and NaN and ±Inf among programme; every length up to 80 windows (every
+// remainder of 8, 16 and 32) at every start offset within 64 bytes, on
+// every kernel set.
+func TestPeakMax32EdgeInputs(t *testing.T) {
+	const n = 80 + interpolatorTaps + 16
+	sub, full, square, huge, zeros, bad := make([]float32, n), make([]float32, n), make([]float32, n), make([]float32, n), make([]float32, n), narrowed(kernelSignals(n)["programme"])
+	for i := range n {
+		// Subnormals: multiples of 2⁻¹⁴⁹ up to about 2⁻¹²⁷, both signs.
+		sub[i] = float32(math.Ldexp(float64((i*7919)%(1<<22)-(1<<21)), -149))
+		full[i] = float32([]float64{1, -1, 1, 1, -1, -1, 0.5}[i%7])
+		square[i] = float32(1 - 2*(i%2))
+		huge[i] = float32([]float64{math.MaxFloat32, -math.MaxFloat32, math.MaxFloat32 / 3, 1}[(i/3)%4])
+		zeros[i] = float32(math.Copysign(0, float64(1-2*(i%3%2))))
+	}
+	for i, v := range []float32{float32(math.NaN()), float32(math.Inf(1)), float32(math.Inf(-1)), float32(math.Copysign(0, -1))} {
+		bad[17*i+5] = v
+	}
+	sigs := map[string][]float32{"subnormal": sub, "full-scale": full, "nyquist-square": square, "near-max": huge, "signed-zeros": zeros, "non-finite": bad}
+	forEachKernelSet(t, func(t *testing.T) {
+		for _, k := range float32Kernels {
+			for name, w := range sigs {
+				for offset := range 16 {
+					for windows := range 81 {
+						v := w[offset : offset+windows+history]
+						if got, want := k.kernel(v), k.ref(v); math.Float32bits(got) != math.Float32bits(want) {
+							t.Fatalf("%s %s, %d windows at offset %d: kernel %v (%#x), Go %v (%#x)", k.name, name, windows, offset, got, math.Float32bits(got), want, math.Float32bits(want))
+						}
+					}
+				}
+			}
+			// The subnormal signal's peak is subnormal, not flushed.
+			if p := k.kernel(sub); !(p > 0 && p < 0x1p-126) {
+				t.Errorf("%s subnormal: peak %v, want a subnormal above 0", k.name, p)
 			}
 		}
 	})

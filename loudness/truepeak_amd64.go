@@ -139,11 +139,15 @@ func peak2QuadsAVX2(w []float64, sq float64) float64
 //go:noescape
 func maxAbsBitsAVX2(x []float64) uint64
 
-// peak4Max32 is peak4Max32Go, with AVX2 eight windows at a time
-// (peak4Max32AVX2, the same operations in every lane; the maximum does not
-// depend on the order the windows are visited in); the windows left over
-// go to the Go loop.
+// peak4Max32 is peak4Max32Go, with AVX-512 sixteen windows at a time
+// (peak4Max32AVX512, which takes the last few in a masked group as well),
+// with AVX2 eight at a time (peak4Max32AVX2, the same operations in every
+// lane; the maximum does not depend on the order the windows are visited
+// in) and the windows left over in the Go loop.
 func peak4Max32(w []float32) float32 {
+	if kernels >= avx512Kernels {
+		return peak4Max32AVX512(w)
+	}
 	if kernels < avx2Kernels {
 		return peak4Max32Go(w)
 	}
@@ -154,9 +158,12 @@ func peak4Max32(w []float32) float32 {
 	return max(peak4Max32AVX2(w), peak4Max32Go(w[done:]))
 }
 
-// peak2Max32 is peak2Max32Go, with AVX2 eight windows at a time
-// (peak2Max32AVX2), as peak4Max32.
+// peak2Max32 is peak2Max32Go, with AVX-512 sixteen windows at a time
+// (peak2Max32AVX512) or AVX2 eight (peak2Max32AVX2), as peak4Max32.
 func peak2Max32(w []float32) float32 {
+	if kernels >= avx512Kernels {
+		return peak2Max32AVX512(w)
+	}
 	if kernels < avx2Kernels {
 		return peak2Max32Go(w)
 	}
@@ -172,6 +179,18 @@ func peak2Max32(w []float32) float32 {
 //
 //go:noescape
 func peak2Max32AVX2(w []float32) float32
+
+// peak4Max32AVX512 is peak4Max32Go over every window of w
+// (truepeak32_avx512_amd64.s; AVX-512 F and DQ).
+//
+//go:noescape
+func peak4Max32AVX512(w []float32) float32
+
+// peak2Max32AVX512 is peak2Max32Go over every window of w
+// (truepeak32_avx512_amd64.s).
+//
+//go:noescape
+func peak2Max32AVX512(w []float32) float32
 
 // peak4Max32AVX2 is peak4Max32Go over the first 8·⌊(len(w)−11)/8⌋
 // windows of w (truepeak32_avx2_amd64.s).

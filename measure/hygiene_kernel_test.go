@@ -6,6 +6,8 @@ import (
 	"math/rand/v2"
 	"testing"
 	"unsafe"
+
+	"github.com/kweigh/kweigh/internal/audiotest"
 )
 
 // The probes' kernels claim the very floating-point operations of the Go
@@ -39,27 +41,42 @@ func TestFrameStateLayout(t *testing.T) {
 	}
 }
 
+// hygienePath is one way of running the probes' kernels: the Go loops,
+// the AVX2 kernels, or the AVX-512 ones where a kernel has them (the AVX2
+// ones elsewhere).
+type hygienePath int
+
+const (
+	goPath hygienePath = iota
+	avx2Path
+	avx512Path
+)
+
+func (p hygienePath) String() string { return [...]string{"go", "avx2", "avx512"}[p] }
+
 // kernelPaths are the probe paths this build and CPU run: Go, and AVX2
-// where present.
-func kernelPaths() []bool {
+// and AVX-512 where present.
+func kernelPaths() []hygienePath {
+	paths := []hygienePath{goPath}
 	if haveHygieneAVX2 {
-		return []bool{false, true}
+		paths = append(paths, avx2Path)
 	}
-	return []bool{false}
+	if haveHygieneAVX512 {
+		paths = append(paths, avx512Path)
+	}
+	return paths
 }
 
-// useHygieneAVX2 switches the probes' kernels for a test.
-func useHygieneAVX2(t *testing.T, on bool) {
-	old := hygieneAVX2
-	hygieneAVX2 = on
-	t.Cleanup(func() { hygieneAVX2 = old })
-}
+// simdPaths are kernelPaths without the Go loops: the kernels to check
+// against them.
+func simdPaths() []hygienePath { return kernelPaths()[1:] }
 
-func pathName(avx2 bool) string {
-	if avx2 {
-		return "avx2"
-	}
-	return "go"
+// useHygienePath switches the probes' kernels to path p for a test (until
+// its cleanup).
+func useHygienePath(t testing.TB, p hygienePath) {
+	oldAVX2, oldAVX512 := hygieneAVX2, hygieneAVX512
+	hygieneAVX2, hygieneAVX512 = p >= avx2Path, p >= avx512Path
+	t.Cleanup(func() { hygieneAVX2, hygieneAVX512 = oldAVX2, oldAVX512 })
 }
 
 // probeSignal returns frames of nc channels: noise at programme level with
@@ -94,7 +111,10 @@ func probeSignal(frames, nc int, seed uint64, bad bool) []float64 {
 	return buf
 }
 
-var probeLengths = []int{0, 1, 2, 3, 4, 5, 7, 64, 4095, 4096, 4097}
+// probeLengths are the frame counts the kernel tests run: around the two-
+// and four-frame steps (every remainder of four from 4 frames on) and a
+// block.
+var probeLengths = []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 64, 4095, 4096, 4097}
 
 func sameFloat(a, b float64) bool {
 	return math.Float64bits(a) == math.Float64bits(b) || a != a && b != b
@@ -105,24 +125,61 @@ func samePair(a, b pairSums) bool {
 		sameFloat(a.srr, b.srr) && sameFloat(a.slr, b.slr) && sameFloat(a.maxDiff, b.maxDiff)
 }
 
-// TestStereoKernelMatchesGo checks stereoStretchAVX2 against its Go twin
-// (through stereoStretch, the AVX2 path switched on).
+// TestStereoKernelMatchesGo checks stereoStretchAVX2 and
+// stereoStretchAVX512 against their Go twin (through stereoStretch, each
+// path switched on): every frame count up to 70 (both sides of the
+// two-frame steps) and longer stretches, with and
+// without NaN and infinities; subnormals; values whose squares overflow,
+// with ±full scale and signed zeros; a NaN running maximum of |L−R|; and
+// clipping levels from 0 (every sample flagged, unless there is none) to
+// the bits just above +Inf (only NaN flagged). Every level the probes pass
+// is the bit pattern of a non-negative float64 (hygiene.fullBits), the
+// range the kernel's signed comparison with full−1 is exact in.
 func TestStereoKernelMatchesGo(t *testing.T) {
-	if !haveHygieneAVX2 {
-		t.Skip("no AVX2 kernels in this build or on this CPU")
+	if len(simdPaths()) == 0 {
+		t.Skip("no SIMD kernels in this build or on this CPU")
 	}
-	useHygieneAVX2(t, true)
+	for _, p := range simdPaths() {
+		t.Run(p.String(), func(t *testing.T) {
+			useHygienePath(t, p)
+			testStereoKernelMatchesGo(t)
+		})
+	}
+}
+
+func testStereoKernelMatchesGo(t *testing.T) {
+	check := func(what string, buf []float64, start pairSums, full uint64) {
+		t.Helper()
+		a, b := start, start
+		ha := stereoStretchGo(buf, &a, full)
+		hb := stereoStretch(buf, &b, full)
+		if ha != hb || !samePair(a, b) {
+			t.Errorf("%s, %d frames: Go %v %+v, kernel %v %+v", what, len(buf)/2, ha, a, hb, b)
+		}
+	}
 	full := math.Float64bits((math.Ldexp(1, 23) - 1) / math.Ldexp(1, 23))
-	for _, n := range probeLengths {
+	lengths := append([]int{4095, 4096, 4097}, make([]int, 71)...)
+	for i := range 71 {
+		lengths[3+i] = i
+	}
+	for _, n := range lengths {
 		for _, bad := range []bool{false, true} {
 			buf := probeSignal(n, 2, uint64(n), bad)
-			start := pairSums{0.25, -0.5, 3, 4, -1, 0.125}
-			a, b := start, start
-			ha := stereoStretchGo(buf, &a, full)
-			hb := stereoStretch(buf, &b, full)
-			if ha != hb || !samePair(a, b) {
-				t.Errorf("%d frames (bad %v): Go %v %+v, AVX2 %v %+v", n, bad, ha, a, hb, b)
-			}
+			check(fmt.Sprintf("bad %v", bad), buf, pairSums{0.25, -0.5, 3, 4, -1, 0.125}, full)
+		}
+	}
+	sub, big := make([]float64, 2*70), make([]float64, 2*70)
+	for i := range sub {
+		sub[i] = math.Ldexp(float64(i%13)-6, -1070) // subnormals, both signs
+		big[i] = []float64{1e200, -1e300, 1, -1, 0, math.Copysign(0, -1)}[i%6]
+	}
+	x := probeSignal(70, 2, 7, true)
+	for n := range 71 {
+		check("subnormal", sub[:2*n], pairSums{}, full)
+		check("squares overflow", big[:2*n], pairSums{}, full)
+		check("NaN maximum", x[:2*n], pairSums{1, 2, 3, 4, 5, math.NaN()}, full)
+		for _, level := range []uint64{0, 1, math.Float64bits(0.3), math.Float64bits(math.Inf(1)), math.Float64bits(math.Inf(1)) + 1} {
+			check(fmt.Sprintf("level %#x", level), x[:2*n], pairSums{}, level)
 		}
 	}
 	// Nothing at full scale: no flag.
@@ -133,13 +190,23 @@ func TestStereoKernelMatchesGo(t *testing.T) {
 	}
 }
 
-// TestAnyKernelMatchesGo checks anyStretchAVX2 (through anyStretch) against its Go twin for
-// every channel count it takes, with and without the pair and the
-// fold-down.
+// TestAnyKernelMatchesGo checks anyStretchAVX2 (through anyStretch, on
+// every SIMD path: the avx512 path runs the AVX2 kernel) against its Go
+// twin for every channel count it takes, with and without the pair and
+// the fold-down.
 func TestAnyKernelMatchesGo(t *testing.T) {
-	if !haveHygieneAVX2 {
-		t.Skip("no AVX2 kernels in this build or on this CPU")
+	if len(simdPaths()) == 0 {
+		t.Skip("no SIMD kernels in this build or on this CPU")
 	}
+	for _, p := range simdPaths() {
+		t.Run(p.String(), func(t *testing.T) {
+			useHygienePath(t, p)
+			testAnyKernelMatchesGo(t)
+		})
+	}
+}
+
+func testAnyKernelMatchesGo(t *testing.T) {
 	full := math.Float64bits(1)
 	for nc := 1; nc <= maxKernelChannels; nc++ {
 		// {0, 1} with the fold-down at six channels is the 5.1 loop that
@@ -171,19 +238,19 @@ func TestAnyKernelMatchesGo(t *testing.T) {
 					ha := anyStretchGo(buf, outA, sums, gains, &p, pair[0], pair[1], full)
 					hb := anyStretch(buf, outB, &st)
 					if ha != hb {
-						t.Errorf("%s: full-scale flag Go %v, AVX2 %v", name, ha, hb)
+						t.Errorf("%s: full-scale flag Go %v, kernel %v", name, ha, hb)
 					}
 					for c := range nc {
 						if !sameFloat(sums[c], st.sums[c]) {
-							t.Errorf("%s: channel %d sum Go %v, AVX2 %v", name, c, sums[c], st.sums[c])
+							t.Errorf("%s: channel %d sum Go %v, kernel %v", name, c, sums[c], st.sums[c])
 						}
 					}
 					if pair[0] >= 0 && !samePair(p, st.pair) {
-						t.Errorf("%s: pair Go %+v, AVX2 %+v", name, p, st.pair)
+						t.Errorf("%s: pair Go %+v, kernel %+v", name, p, st.pair)
 					}
 					for i := range outA {
 						if !sameFloat(outA[i], outB[i]) {
-							t.Fatalf("%s: fold-down sample %d Go %v, AVX2 %v", name, i, outA[i], outB[i])
+							t.Fatalf("%s: fold-down sample %d Go %v, kernel %v", name, i, outA[i], outB[i])
 						}
 					}
 				}
@@ -194,7 +261,8 @@ func TestAnyKernelMatchesGo(t *testing.T) {
 
 // BenchmarkProbes runs the probes alone over one second of 48 kHz
 // programme in 4 096-frame blocks (stereo; 5.1 with its fold-down made in
-// the same pass), on every kernel path. Metric x-realtime: seconds of
+// the same pass), on every kernel path (avx512: the stereo kernel on
+// AVX-512, 5.1 on AVX2). Metric x-realtime: seconds of
 // audio per second.
 //
 //	go test -run '^$' -bench Probes -benchtime 20x -cpu 1 ./measure
@@ -206,11 +274,9 @@ func BenchmarkProbes(b *testing.B) {
 		{"stereo", []string{"L", "R"}},
 		{"5.1", []string{"L", "R", "C", "LFE", "Ls", "Rs"}},
 	} {
-		for _, avx2 := range kernelPaths() {
-			b.Run(c.name+"/"+pathName(avx2), func(b *testing.B) {
-				old := hygieneAVX2
-				hygieneAVX2 = avx2
-				defer func() { hygieneAVX2 = old }()
+		for _, p := range kernelPaths() {
+			b.Run(c.name+"/"+p.String(), func(b *testing.B) {
+				useHygienePath(b, p)
 				nc := len(c.layout)
 				buf := probeSignal(48000, nc, 1, false)
 				for i := range buf {
@@ -233,5 +299,53 @@ func BenchmarkProbes(b *testing.B) {
 				b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "x-realtime")
 			})
 		}
+	}
+}
+
+// BenchmarkProbeKernels runs the probes' kernels alone on one 4 096-frame
+// block of programme-level noise (no clipping): the stereo kernel
+// (stereoStretch) and the 5.1 pass with its fold-down (anyStretch), on
+// every path (avx512: stereoStretchAVX512, anyStretch51AVX512 with AVX2
+// for the last frames). Compare the paths' x-realtime-cpu (the thread's
+// CPU time, fair on a busy machine) within one run:
+//
+//	go test -run '^$' -bench ProbeKernels -benchtime 20000x -count 5 -cpu 1 ./measure
+func BenchmarkProbeKernels(b *testing.B) {
+	const frames = 4096
+	stereo := probeSignal(frames, 2, 1, false)
+	surround := probeSignal(frames, 6, 2, false)
+	for _, x := range [][]float64{stereo, surround} {
+		for i := range x {
+			x[i] *= 0.5 // no clipping: the common case
+		}
+	}
+	full := math.Float64bits(1)
+	gains := newDownmixer([]string{"L", "R", "C", "LFE", "Ls", "Rs"}, 48000).gains
+	out := make([]float64, 2*frames)
+	for _, p := range kernelPaths() {
+		b.Run("stereo/"+p.String(), func(b *testing.B) {
+			useHygienePath(b, p)
+			var s pairSums
+			clock := audiotest.StartRealtimeThread(b)
+			for range b.N {
+				stereoStretch(stereo, &s, full)
+			}
+			clock.Report(frames / 48000.0)
+		})
+		b.Run("5.1-fold/"+p.String(), func(b *testing.B) {
+			useHygienePath(b, p)
+			st := newFrameState(6, 0, 1, 1)
+			st.setGains(gains)
+			sums := make([]float64, 6)
+			clock := audiotest.StartRealtimeThread(b)
+			for range b.N {
+				if p == goPath {
+					anyStretchGo(surround, out, sums, gains, &st.pair, 0, 1, full)
+				} else {
+					anyStretch(surround, out, &st)
+				}
+			}
+			clock.Report(frames / 48000.0)
+		})
 	}
 }

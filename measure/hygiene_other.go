@@ -8,6 +8,9 @@ var hygieneAVX2 = false
 // haveHygieneAVX2 is false: no assembly here.
 var haveHygieneAVX2 = false
 
+// hygieneAVX512 and haveHygieneAVX512 are false: no assembly here.
+var hygieneAVX512, haveHygieneAVX512 = false, false
+
 // stereoStretch is stereoStretchGo.
 func stereoStretch(seg []float64, s *pairSums, full uint64) bool {
 	return stereoStretchGo(seg, s, full)

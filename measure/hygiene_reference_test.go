@@ -141,12 +141,12 @@ func TestProbesMatchReference(t *testing.T) {
 		{"L", "R", "C", "LFE", "Ls", "Rs", "A1", "A2", "A3", "A4"},
 	}
 	sizes := []int{1, 7, 4096, 333, 1200, 2, 5000}
-	for _, avx2 := range kernelPaths() {
-		useHygieneAVX2(t, avx2)
+	for _, path := range kernelPaths() {
+		useHygienePath(t, path)
 		for _, layout := range layouts {
 			nc := len(layout)
 			for _, bits := range []int{16, 24} {
-				name := fmt.Sprintf("%s/%v/%d-bit", pathName(avx2), layout, bits)
+				name := fmt.Sprintf("%s/%v/%d-bit", path, layout, bits)
 				frames := 20000
 				buf := probeSignal(frames, nc, uint64(nc*bits), false)
 				// A stretch of silence at both ends, a long run at full
