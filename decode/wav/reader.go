@@ -131,10 +131,11 @@ func rawSize(blockAlign int) int { return max(readBlock/blockAlign, 1) * blockAl
 // short it returns the last whole frames together with a
 // *decode.IntegrityError, and io.EOF after that.
 //
-// The file is read readBlock bytes at a time and converted from there, a
-// call's worth at a time; a call that asks for more than readBlock of
-// audio at once has it read straight into dst and converted in place
-// (see convertInPlace), without the buffer.
+// A regular file's audio is converted straight from a mapping of the file
+// (readMapped). Other sources are read readBlock bytes at a time and
+// converted from there, a call's worth at a time; a call that asks for
+// more than readBlock of audio at once has it read straight into dst and
+// converted in place (see convertInPlace), without the buffer.
 func (d *decoder) ReadFrames(dst []float64) (int, error) {
 	if len(dst)%d.channels != 0 {
 		return 0, fmt.Errorf("wav: ReadFrames buffer of %d samples is not a multiple of %d channels", len(dst), d.channels)
