@@ -265,3 +265,70 @@ func TestMappedFileShrinks(t *testing.T) {
 		}
 	}
 }
+
+// TestMappedSectionsShrink cuts a file opened with decode.Open while two
+// sections of it are being read, each through its own mapping (as package
+// measure reads a long file on two cores): the section the cut falls in
+// ends there with the damage, the one wholly past the cut delivers nothing
+// more and says which delivered audio the file no longer holds; both
+// report instead of crashing, and Close unmaps.
+func TestMappedSectionsShrink(t *testing.T) {
+	const header = 44
+	path := writeTemp(t, "sections.wav", shrinkFile())
+	f, err := decode.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	sp, ok := decode.Splittable(f)
+	if !ok {
+		t.Fatal("not splittable")
+	}
+	half := sp.SplitFrames() / 2
+	var sections []decode.Decoder
+	for _, r := range [][2]int64{{0, half}, {half, sp.SplitFrames()}} {
+		s, err := sp.Section(r[0], r[1])
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !wav.Mapped(s) {
+			t.Fatal("a section reads instead of mapping")
+		}
+		sections = append(sections, s)
+	}
+	buf := make([]float64, 4096*2)
+	for _, s := range sections {
+		for range 10 {
+			if _, err := s.ReadFrames(buf); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	const cut = 1 << 20
+	if err := os.Truncate(path, cut); err != nil {
+		t.Fatal(err)
+	}
+	for i, s := range sections {
+		frames := int64(10 * 4096)
+		var err error
+		for err == nil {
+			var n int
+			n, err = s.ReadFrames(buf)
+			frames += int64(n)
+		}
+		var ie *decode.IntegrityError
+		if !errors.As(err, &ie) || !strings.Contains(err.Error(), path) {
+			t.Fatalf("section %d: error %v, want a *decode.IntegrityError naming the file", i, err)
+		}
+		switch i {
+		case 0: // the cut is inside it: its frames up to the cut
+			if want := int64(cut-header) / 6; frames != want || ie.Offset != header+want*6 {
+				t.Errorf("section 0: %d frames, damage at byte %d; want %d frames, byte %d", frames, ie.Offset, want, header+want*6)
+			}
+		case 1: // wholly past the cut: nothing after what it had delivered
+			if frames != 10*4096 || ie.Offset != cut || !strings.Contains(err.Error(), "no longer holds") {
+				t.Errorf("section 1: %d frames, %v; want %d frames and the audio it no longer holds", frames, err, 10*4096)
+			}
+		}
+	}
+}
