@@ -332,3 +332,20 @@ func TestMappedSectionsShrink(t *testing.T) {
 		}
 	}
 }
+
+// TestMappedFallsBackToReads: when a window cannot be mapped (here the
+// file was closed under the decoder, so mmap has no descriptor), the
+// decoder hands over to the read calls, which report the failure with
+// its byte; nothing panics and no wrong sample is delivered.
+func TestMappedFallsBackToReads(t *testing.T) {
+	path := writeTemp(t, "closed.wav", shrinkFile())
+	f, d := openMapped(t, path)
+	f.Close()
+	n, err := d.ReadFrames(make([]float64, 4096*2))
+	if n != 0 || err == nil || !strings.Contains(err.Error(), "reading audio at byte 44") || !errors.Is(err, os.ErrClosed) {
+		t.Fatalf("ReadFrames on a closed file = %d, %v; want 0 and the read error at byte 44", n, err)
+	}
+	if wav.Mapped(d) {
+		t.Error("still mapped after the mapping failed")
+	}
+}
