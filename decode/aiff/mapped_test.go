@@ -207,3 +207,23 @@ func TestMappedFileShrinks(t *testing.T) {
 		err = nil
 	}
 }
+
+// TestMappedFallsBackToReads: when a window cannot be mapped (the file was
+// closed under the decoder), the read calls take over and report the
+// failure as the damage, naming its cause; nothing panics.
+func TestMappedFallsBackToReads(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "closed.aif")
+	if err := os.WriteFile(path, mappedAIFF(aiffSpec{channels: 2, bits: 16}), 0o600); err != nil {
+		t.Fatal(err)
+	}
+	f, d := openMapped(t, path)
+	f.Close()
+	n, err := d.ReadFrames(make([]float64, 4096*2))
+	var ie *decode.IntegrityError
+	if n != 0 || !errors.As(err, &ie) || !strings.Contains(err.Error(), "file already closed") {
+		t.Fatalf("ReadFrames on a closed file = %d, %v; want 0 and the damage with the read error", n, err)
+	}
+	if d.view != nil {
+		t.Error("still mapped after the mapping failed")
+	}
+}

@@ -55,7 +55,7 @@ func openMapped(t *testing.T, path string) (*os.File, decode.Decoder) {
 // mappedFiles are files of every sample coding, each a few MiB (more than
 // the least stretch worth mapping) and of a frame size that divides
 // neither a page nor a mapping window; the 6-channel 24-bit one is longer
-// than one 16 MiB window.
+// than one 16 MiB window, and one is an RF64.
 func mappedFiles() map[string][]byte {
 	files := map[string][]byte{}
 	for _, c := range []struct {
@@ -78,6 +78,10 @@ func mappedFiles() map[string][]byte {
 	f64[9], f64[10] = math.Inf(-1), math.Float64frombits(1)
 	files["2ch-float32"] = wavFile("RIFF", fmtChunk(3, 2, 48000, 32), chunk("data", encodeFloat32(f32)))
 	files["5ch-float64"] = wavFile("RIFF", fmtChunk(3, 5, 48000, 64), chunk("data", encodeFloat64(f64)))
+	// RF64 (EBU Tech 3306): the data size in ds64, the chunk's own 0xFFFFFFFF.
+	rf := encodeInts(testInts(2*(3<<20/6+1), 24), 24, 24)
+	files["rf64-2ch-int24"] = wavFile("RF64", ds64Chunk(0, uint64(len(rf)), uint64(len(rf)/6), nil), fmtChunk(1, 2, 48000, 24),
+		chunk("data", rf).declaring(0xFFFFFFFF))
 	return files
 }
 
