@@ -25,8 +25,8 @@ GLOBL scale32x4<>(SB), RODATA|NOPTR, $32
 // Each group also asks the cache for the bytes one page (4 KiB) ahead
 // (PREFETCHT0): raw is often a mapping of the page cache (decode/wav
 // mapped.go), read from memory, and the hardware prefetcher stops at page
-// boundaries; the hint took the conversion of a 345 MB mapped file from
-// about 50 to 35 ms of CPU time (BenchmarkReadLongFile) and does nothing to
+// boundaries; the hint took the user time of reading a 345 MB mapped file
+// from about 50 to about 40 ms (BenchmarkReadLongFile) and does nothing to
 // the values. A prefetch never faults, so reaching past raw, or into a
 // page a truncation removed, is harmless.
 TEXT ·convertInt24AVX2(SB), NOSPLIT, $0-56
