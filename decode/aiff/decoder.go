@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/filemap"
 )
 
 // readBufferSize bounds the bytes read from the file per conversion step,
@@ -26,6 +27,9 @@ type Decoder struct {
 	errSent    bool
 	readErr    error // a failed read of sample data, nil if none
 	notes      []string
+	// view maps the sound data of a regular file (nil: read calls); see
+	// readMapped.
+	view *filemap.View
 }
 
 // NewDecoder reads the header of the AIFF or AIFF-C file in src (size bytes
@@ -68,6 +72,7 @@ func NewDecoder(src io.ReaderAt, size int64) (*Decoder, error) {
 		d.present = h.frames // COMM's count decides what is played
 	}
 	d.info.Undeclared = d.undeclared(size)
+	d.mapSound(filemap.Open(src, h.dataOff, h.dataOff+d.present*d.frameBytes))
 	return d, nil
 }
 
@@ -109,6 +114,34 @@ func (d *Decoder) Notes() []string { return append([]string(nil), d.notes...) }
 func (d *Decoder) ReadFrames(dst []float64) (int, error) {
 	ch := d.h.channels
 	want := min(int64(len(dst)/ch), d.present-d.pos)
+	var n int64
+	if d.view != nil {
+		n = d.readMapped(dst, want)
+	} else {
+		n = d.readCalls(dst, want)
+	}
+	if d.pos < d.present {
+		return int(n), nil
+	}
+	if !d.errSent && (d.readErr != nil || d.h.frames > 0 && d.pos < d.h.frames) {
+		d.errSent = true
+		return int(n), &decode.IntegrityError{
+			Format: d.h.container,
+			Offset: d.h.dataOff + d.pos*d.frameBytes,
+			Problem: fmt.Sprintf("the sound data ends after %d of the %d sample frames COMM declares (SSND chunk %s)",
+				d.pos, d.h.frames, d.shortfall()),
+		}
+	}
+	if n > 0 {
+		return int(n), nil
+	}
+	return 0, io.EOF
+}
+
+// readCalls converts up to want frames into dst through read calls of at
+// most readBufferSize bytes and returns the frames it converted.
+func (d *Decoder) readCalls(dst []float64, want int64) int64 {
+	ch := d.h.channels
 	if d.buf == nil && want > 0 {
 		d.buf = make([]byte, max(readBufferSize/d.frameBytes, 1)*d.frameBytes)
 	}
@@ -136,22 +169,7 @@ func (d *Decoder) ReadFrames(dst []float64) (int, error) {
 			break
 		}
 	}
-	if d.pos < d.present {
-		return int(n), nil
-	}
-	if !d.errSent && (d.readErr != nil || d.h.frames > 0 && d.pos < d.h.frames) {
-		d.errSent = true
-		return int(n), &decode.IntegrityError{
-			Format: d.h.container,
-			Offset: d.h.dataOff + d.pos*d.frameBytes,
-			Problem: fmt.Sprintf("the sound data ends after %d of the %d sample frames COMM declares (SSND chunk %s)",
-				d.pos, d.h.frames, d.shortfall()),
-		}
-	}
-	if n > 0 {
-		return int(n), nil
-	}
-	return 0, io.EOF
+	return n
 }
 
 // shortfall says why the sound data is short.

@@ -20,7 +20,9 @@
 // callers fall back to decode.DefaultLayout.
 //
 // Decoding streams: ReadFrames converts the sample frames of the SSND chunk
-// block by block through a fixed-size buffer. A file whose SSND chunk holds
+// straight from a read-only mapping of a regular file, a bounded window at
+// a time, and block by block through a fixed-size buffer from other
+// sources. A file whose SSND chunk holds
 // fewer frames than COMM declares yields the frames it has, then a
 // *decode.IntegrityError.
 package aiff

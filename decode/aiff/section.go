@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/filemap"
 )
 
 // SplitFrames returns the number of frames when the sound data holds every
@@ -29,7 +30,7 @@ func (d *Decoder) Section(from, to int64) (decode.Decoder, error) {
 	if h.frames > 0 {
 		h.frames = to
 	}
-	return &Decoder{
+	s := &Decoder{
 		src:        d.src,
 		h:          &h,
 		info:       d.info,
@@ -37,5 +38,7 @@ func (d *Decoder) Section(from, to int64) (decode.Decoder, error) {
 		frameBytes: d.frameBytes,
 		present:    to,
 		pos:        from,
-	}, nil
+	}
+	s.mapSound(filemap.Open(d.src, h.dataOff+from*d.frameBytes, h.dataOff+to*d.frameBytes))
+	return s, nil
 }

@@ -10,9 +10,11 @@
 // The reader is hand-written and streaming. New walks the chunk list once,
 // reading only chunk headers and the small fmt, ds64 and bext chunks; it
 // seeks over everything else (audio included), so chunks may come in any
-// order. ReadFrames then reads the data chunk in blocks through one reusable
-// byte buffer and converts straight from those bytes, so memory does not
-// depend on the length of the file.
+// order. ReadFrames then converts the data chunk of a regular file straight
+// from a read-only mapping of it, a bounded window at a time (a file that
+// shrinks while mapped is reported as damage, not a crash), and reads other
+// sources in blocks through one reusable byte buffer; either way memory
+// does not depend on the length of the file.
 //
 // Supported codings: PCM integer with 8 (unsigned), 16, 24 and 32-bit
 // containers (any number of valid bits inside, e.g. 20-in-24), IEEE float

@@ -3,9 +3,11 @@ package wav
 import (
 	"fmt"
 	"io"
+	"runtime"
 	"unsafe"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/filemap"
 )
 
 // readBlock is how many bytes the decoder asks the file for at once: a
@@ -37,6 +39,9 @@ type decoder struct {
 	next   int    // raw[next:have] are read but not yet converted
 	have   int
 	notes  []string
+	// view maps the audio of a regular file (nil: read calls); see
+	// readMapped.
+	view *filemap.View
 }
 
 // New reads the header of a WAVE-family file of the given size from src
@@ -95,7 +100,19 @@ func New(src decode.Source, size int64) (decode.Decoder, error) {
 			"data chunk size %d is not a whole number of %d-byte frames: the last %d bytes are a partial frame",
 			h.dataSize, frameSize, h.dataSize%frameSize)}
 	}
+	d.mapAudio(filemap.Open(src, h.dataOffset, h.dataOffset+d.readable))
 	return d, nil
+}
+
+// mapAudio makes d convert from view when there is one. A decoder that is
+// dropped before its end without Close (a section abandoned after an
+// error) unmaps when it is collected.
+func (d *decoder) mapAudio(view *filemap.View) {
+	if view == nil {
+		return
+	}
+	d.view = view
+	runtime.AddCleanup(d, func(v *filemap.View) { v.Close() }, view)
 }
 
 // Info returns the stream description read from the header.
@@ -114,16 +131,20 @@ func rawSize(blockAlign int) int { return max(readBlock/blockAlign, 1) * blockAl
 // short it returns the last whole frames together with a
 // *decode.IntegrityError, and io.EOF after that.
 //
-// The file is read readBlock bytes at a time and converted from there, a
-// call's worth at a time; a call that asks for more than readBlock of
-// audio at once has it read straight into dst and converted in place
-// (see convertInPlace), without the buffer.
+// A regular file's audio is converted straight from a mapping of the file
+// (readMapped). Other sources are read readBlock bytes at a time and
+// converted from there, a call's worth at a time; a call that asks for
+// more than readBlock of audio at once has it read straight into dst and
+// converted in place (see convertInPlace), without the buffer.
 func (d *decoder) ReadFrames(dst []float64) (int, error) {
 	if len(dst)%d.channels != 0 {
 		return 0, fmt.Errorf("wav: ReadFrames buffer of %d samples is not a multiple of %d channels", len(dst), d.channels)
 	}
 	if d.err != nil {
 		return 0, d.err
+	}
+	if d.view != nil {
+		return d.readMapped(dst)
 	}
 	frames := 0
 	want := len(dst) / d.channels

@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"github.com/kweigh/kweigh/decode"
+	"github.com/kweigh/kweigh/internal/filemap"
 )
 
 // SplitFrames returns the number of frames when the data chunk is whole,
@@ -32,5 +33,6 @@ func (d *decoder) Section(from, to int64) (decode.Decoder, error) {
 		pos:        from * d.blockAlign,
 		readable:   to * d.blockAlign,
 	}
+	s.mapAudio(filemap.Open(d.src, d.dataOffset+s.pos, d.dataOffset+s.readable))
 	return s, nil
 }
