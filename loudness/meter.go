@@ -152,7 +152,25 @@ type Meter struct {
 	origin, originFrame int64
 	logging             bool
 	log                 []float64
+
+	// streamPeakOnly: only the stream's highest true peak is wanted
+	// (StreamTruePeakOnly), so the search may skip what cannot beat it.
+	streamPeakOnly bool
 }
+
+// StreamTruePeakOnly tells the meter that of the true peak only the
+// stream's highest, per channel (Result.TruePeak), is wanted, not each
+// 100 ms block's: the true-peak search then skips every stretch that
+// cannot beat the highest peak found so far in the stream, not only the
+// block's so far, which on programme skips most of the interpolation
+// once the loudest passage is behind. Result.TruePeak and
+// Result.MaxTruePeak are the same bits as without it (the skip test is
+// exact, TestStreamTruePeakOnlySameResult); the true-peak series
+// (Result.Series.TruePeak) then holds the running maximum instead of each
+// block's peak. A surround file's stereo fold-down, of which only the
+// highest true peak is reported, is metered so. It is configuration, kept
+// by Reset; set it before writing.
+func (m *Meter) StreamTruePeakOnly() { m.streamPeakOnly = true }
 
 // NewMeter returns a meter for interleaved frames of len(weights) channels at
 // sampleRate Hz (8 000 to 384 000). weights are the BS.1770 channel weights
@@ -262,7 +280,11 @@ func (m *Meter) process(frames []float64, n int) {
 	}
 	m.addEnergy(n)
 	for c, tp := range m.peaks {
-		m.blockTrue[c] = tp.peakBuffered(n, m.blockTrue[c])
+		floor := m.blockTrue[c]
+		if m.streamPeakOnly {
+			floor = max(floor, m.streamTrue[c])
+		}
+		m.blockTrue[c] = tp.peakBuffered(n, floor)
 	}
 }
 

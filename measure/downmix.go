@@ -69,6 +69,9 @@ func newDownmixer(layout []string, sampleRate int) *downmixer {
 	if err != nil {
 		return nil
 	}
+	// Only the fold-down's highest true peak is reported (Downmix), so
+	// its search skips whatever cannot beat the highest so far.
+	meter.StreamTruePeakOnly()
 	d.meter = meter
 	return d
 }
