@@ -273,18 +273,119 @@ func (m *Meter) Write(frames []float64) {
 // maxima the detector's skip test needs made in the same pass, then weighs
 // and peaks every channel.
 func (m *Meter) process(frames []float64, n int) {
+	m.split(frames, n)
+	m.addEnergy(n)
+	m.peakAll(n)
+}
+
+// split copies each channel of the n frames into its true-peak detector's
+// input (process's first step).
+func (m *Meter) split(frames []float64, n int) {
 	if !m.splitFast(frames, n) && !m.split6(frames, n) {
 		for c := range m.channels {
 			m.splitChannel(frames, n, c)
 		}
 	}
-	m.addEnergy(n)
+}
+
+// peakAll raises each channel's block true peak by the n samples waiting
+// in its detector (process's last step).
+func (m *Meter) peakAll(n int) {
 	for c, tp := range m.peaks {
 		floor := m.blockTrue[c]
 		if m.streamPeakOnly {
 			floor = max(floor, m.streamTrue[c])
 		}
 		m.blockTrue[c] = tp.peakBuffered(n, floor)
+	}
+}
+
+// WriteBeside is m.Write(frames) and g.Write(gframes) for a meter g of a
+// signal derived frame by frame from m's (a surround file's stereo
+// fold-down beside the surround mix): the same number of frames, the same
+// rate, g at m's position on the same block grid. Where the kernel set
+// has the eight-lane K-weighting and the two meters weigh eight channels
+// or fewer in all, both meters' channels go through it in one call
+// instead of one call each: the K-weighting is latency-bound, so g's
+// channels then cost almost nothing. Each channel's filter performs the
+// same operations as alone and each meter adds its channels' energies in
+// its own channel order, so both meters' results are the same bits as
+// with two Writes (TestWriteBesideSameBits); elsewhere it is two Writes.
+// It panics as Write does.
+func (m *Meter) WriteBeside(frames []float64, g *Meter, gframes []float64) {
+	nch, gch := m.channels, g.channels
+	if len(frames)%nch != 0 || len(gframes)%gch != 0 || len(frames)/nch != len(gframes)/gch ||
+		g.rate != m.rate || g.frames != m.frames || g.nextBoundary != m.nextBoundary ||
+		!octEnergy() || m.weighted()+g.weighted() > 8 {
+		m.Write(frames)
+		g.Write(gframes)
+		return
+	}
+	for len(frames) > 0 {
+		if g.nextBoundary != m.nextBoundary || g.frames != m.frames {
+			m.Write(frames)
+			g.Write(gframes)
+			return
+		}
+		n := min(int64(len(frames)/nch), chunkFrames, m.nextBoundary-m.frames)
+		k := int(n)
+		m.split(frames[:k*nch], k)
+		g.split(gframes[:k*gch], k)
+		addEnergyBeside(m, g, k)
+		m.peakAll(k)
+		g.peakAll(k)
+		frames, gframes = frames[k*nch:], gframes[k*gch:]
+		m.frames += n
+		g.frames += n
+		if m.frames == m.nextBoundary {
+			m.finishBlock()
+		}
+		if g.frames == g.nextBoundary {
+			g.finishBlock()
+		}
+	}
+}
+
+// weighted returns how many channels have a weight above 0.
+func (m *Meter) weighted() int {
+	k := 0
+	for _, w := range m.weights {
+		if w > 0 {
+			k++
+		}
+	}
+	return k
+}
+
+// addEnergyBeside is addEnergy for m and g at once, their weighted
+// channels (eight at most in all) in one eight-lane call, each meter's
+// energies then added in its own channel order as addChannelEnergy does.
+func addEnergyBeside(m, g *Meter, n int) {
+	var f [8]*KWeighting
+	var x [8][]float64
+	k := 0
+	for _, mm := range [2]*Meter{m, g} {
+		for c, w := range mm.weights {
+			if w > 0 {
+				f[k], x[k] = &mm.filters[c], mm.peaks[c].input(n)
+				k++
+			}
+		}
+	}
+	var e [8]float64
+	if k >= 5 {
+		e = energyOct(f[:k], x[:k])
+	} else {
+		e = energyGroups(f[:k], x[:k])
+	}
+	i := 0
+	for _, mm := range [2]*Meter{m, g} {
+		for c, w := range mm.weights {
+			if w > 0 {
+				mm.energy += mm.weights[c] * e[i]
+				i++
+			}
+		}
 	}
 }
 

@@ -89,6 +89,22 @@ func (d *downmixer) writeWithProbes(buf []float64, h *hygiene) int {
 	return d.meterFolded(out)
 }
 
+// writeBeside is writeWithProbes with the fold-down metered beside the
+// block itself by main, the surround meter (loudness.Meter.WriteBeside:
+// both meters' K-weighting in one kernel call where the kernel set has
+// the eight-lane one; the same bits as main.Write(buf) and then
+// writeWithProbes). It returns as writeWithProbes.
+func (d *downmixer) writeBeside(main *loudness.Meter, buf []float64, h *hygiene) int {
+	out := d.buffer(len(buf) / d.channels)
+	h.writeFold(buf, out, d.gains)
+	before := d.meter.Rejected()
+	main.WriteBeside(buf, d.meter, out)
+	if d.meter.Rejected() == before {
+		return -1
+	}
+	return firstRejected(out) / 2
+}
+
 // buffer returns the fold-down buffer for frames frames.
 func (d *downmixer) buffer(frames int) []float64 {
 	if cap(d.stereo) < 2*frames {

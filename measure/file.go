@@ -417,32 +417,36 @@ func (s *blockSink) write(block []float64, at int64) error {
 	// loudness.MaxMagnitude) as it goes; only when it has seen one is the
 	// block searched for where.
 	before := s.meter.Rejected()
-	s.meter.Write(block)
-	if s.meter.Rejected() != before {
-		i := firstRejected(block)
-		return unmeasurable(at+int64(i/s.channels), s.layout[i%s.channels], s.rate, block[i])
-	}
 	var clips clipMark
-	if s.ev != nil {
-		clips = s.ev.markClips(s.hyg)
-	}
-	// A surround file's fold-down is made in the probes' pass over the
-	// block (downmixer.writeWithProbes).
 	f := -1
-	if s.fold != nil {
-		f = s.fold.writeWithProbes(block, s.hyg)
-	} else {
+	if s.fold == nil {
+		s.meter.Write(block)
+		if s.meter.Rejected() != before {
+			return s.unmeasurable(block, at)
+		}
+		if s.ev != nil {
+			clips = s.ev.markClips(s.hyg)
+		}
 		s.hyg.write(block)
+	} else {
+		// A surround file's fold-down is made in the probes' pass over
+		// the block, then metered beside the block itself
+		// (downmixer.writeBeside).
+		if s.ev != nil {
+			clips = s.ev.markClips(s.hyg)
+		}
+		f = s.fold.writeBeside(s.meter, block, s.hyg)
+		if s.meter.Rejected() != before {
+			return s.unmeasurable(block, at)
+		}
 	}
 	if s.ev != nil {
 		s.ev.afterBlock(s.hyg, clips, at, len(block)/s.channels, s.rate)
 	}
-	if s.fold != nil {
-		if f >= 0 {
-			at += int64(f)
-			return fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
-				at, float64(at)/float64(s.rate), sci(loudness.MaxMagnitude))
-		}
+	if f >= 0 {
+		at += int64(f)
+		return fmt.Errorf("frame %d (%.3f s) folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
+			at, float64(at)/float64(s.rate), sci(loudness.MaxMagnitude))
 	}
 	for _, p := range s.progs {
 		if err := p.write(block, s.channels, at); err != nil {
@@ -450,4 +454,11 @@ func (s *blockSink) write(block []float64, at int64) error {
 		}
 	}
 	return nil
+}
+
+// unmeasurable is the error for the first sample of block (frame at of
+// the file on) the engine cannot measure.
+func (s *blockSink) unmeasurable(block []float64, at int64) error {
+	i := firstRejected(block)
+	return unmeasurable(at+int64(i/s.channels), s.layout[i%s.channels], s.rate, block[i])
 }
