@@ -76,24 +76,16 @@ func newDownmixer(layout []string, sampleRate int) *downmixer {
 	return d
 }
 
-// writeWithProbes folds and meters one block of interleaved frames in the
-// hygiene probes' pass over it: h takes the block as h.write does, and
+// writeBeside folds one block of interleaved frames in the hygiene probes'
+// pass over it and meters the fold-down beside the block itself by main,
+// the surround meter: h takes the block as h.write does, and
 // hygiene.writeFold makes the fold-down into the meter's buffer with the
 // same operations in the same order as foldAny (TestProbesMatchReference
-// checks it bit for bit), which is then metered. It returns the index of
-// the first frame whose fold-down the meter had to reject (beyond
-// loudness.MaxMagnitude), or -1.
-func (d *downmixer) writeWithProbes(buf []float64, h *hygiene) int {
-	out := d.buffer(len(buf) / d.channels)
-	h.writeFold(buf, out, d.gains)
-	return d.meterFolded(out)
-}
-
-// writeBeside is writeWithProbes with the fold-down metered beside the
-// block itself by main, the surround meter (loudness.Meter.WriteBeside:
-// both meters' K-weighting in one kernel call where the kernel set has
-// the eight-lane one; the same bits as main.Write(buf) and then
-// writeWithProbes). It returns as writeWithProbes.
+// checks it bit for bit); loudness.Meter.WriteBeside then runs both
+// meters' K-weighting in one kernel call where the kernel set has the
+// eight-lane one, with the same bits as main.Write(buf) and a Write of
+// the fold-down. It returns the index of the first frame whose fold-down
+// the meter had to reject (beyond loudness.MaxMagnitude), or -1.
 func (d *downmixer) writeBeside(main *loudness.Meter, buf []float64, h *hygiene) int {
 	out := d.buffer(len(buf) / d.channels)
 	h.writeFold(buf, out, d.gains)
@@ -111,16 +103,6 @@ func (d *downmixer) buffer(frames int) []float64 {
 		d.stereo = make([]float64, 2*frames)
 	}
 	return d.stereo[:2*frames]
-}
-
-// meterFolded meters a folded block and returns as writeWithProbes.
-func (d *downmixer) meterFolded(out []float64) int {
-	before := d.meter.Rejected()
-	d.meter.Write(out)
-	if d.meter.Rejected() == before {
-		return -1
-	}
-	return firstRejected(out) / 2
 }
 
 // result returns the fold-down's figures.

@@ -7,7 +7,7 @@ package measure
 // inner loop than on the arithmetic); it performs the same operations in
 // the same order, so the fold-down is the same bit for bit
 // (TestFoldSixMatchesGeneral). The measuring pass folds in the hygiene
-// probes' kernel instead (writeWithProbes); fold serves the pre-roll of a
+// probes' kernel instead (writeBeside); fold serves the pre-roll of a
 // section (warm) and is the reference the probes' fold-down is checked
 // against.
 func (d *downmixer) fold(out, buf []float64) {

@@ -308,12 +308,12 @@ func (p *programme) write(block []float64, nc int, at int64) error {
 			dst[i] = src[c]
 		}
 	}
-	p.meter.Write(buf)
 	clips := p.ev.markClips(p.hyg)
 	f := -1
 	if p.fold != nil {
-		f = p.fold.writeWithProbes(buf, p.hyg)
+		f = p.fold.writeBeside(p.meter, buf, p.hyg)
 	} else {
+		p.meter.Write(buf)
 		p.hyg.write(buf)
 	}
 	p.ev.afterBlock(p.hyg, clips, at, n, p.rate)
