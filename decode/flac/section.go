@@ -248,7 +248,7 @@ const (
 // (busy is false) no waiting part is one the hash has reached (every
 // place that ends busy, or adds a part, checks reachable under c.mu, and
 // only the holder of busy moves next). Chunks are taken only by
-// md5Part.add in feed, in one of two states:
+// md5Chain.add in feed, in one of two states:
 //
 //   - busy: the section first waits until busy ends or inUse·chunkBytes +
 //     len(data) ≤ maxHeldBytes. The add takes at most ⌈len(data)/chunkBytes⌉
@@ -256,7 +256,7 @@ const (
 //     chunkBytes, and as both sides are whole chunks (maxHeldBytes is one),
 //     inUse ≤ maxHeldBytes/chunkBytes.
 //   - not busy: the sections of earlier rounds have all been read and
-//     cover the stream up to where the current round's start; had any of
+//     cover the stream up to the current round's start; had any of
 //     their bytes not been hashed, the part holding sample next would be
 //     reachable, against the invariant. So every chunk in use (none is in
 //     drain's hands either) belongs to a part of a section of the current
@@ -265,8 +265,10 @@ const (
 //     in all.
 //
 // Chunks are given back only by drain, so inUse never exceeds the larger
-// of the two; the reserve adds maxFreeChunks. Chunks drained beyond the
-// reserve are dropped to the collector and not counted.
+// of the two; the reserve adds maxFreeChunks (drain moves chunks from use
+// to the reserve, add back, so only a new chunk raises the sum). Chunks
+// drained beyond the reserve are dropped to the collector and not
+// counted.
 func chainMemoryBound(sections, sectionBytes int) int {
 	perSection := (sectionBytes + chunkBytes - 1) / chunkBytes
 	inUse := max(maxHeldBytes/chunkBytes, sections*perSection)
