@@ -32,12 +32,15 @@ func (w *worker) wait() error {
 }
 
 // startWorker runs the binary as a worker with short timings and extra
-// environment (the test hooks).
+// environment (the test hooks). The ack wait is 3 s: the worker's
+// heartbeat comes every third of it, and with 1 s a worker starved of the
+// CPU for a second on a loaded machine would lose its job to a
+// redelivery that the tests' delivery counts do not expect.
 func startWorker(t *testing.T, url, prefix, name string, env ...string) *worker {
 	t.Helper()
 	w := &worker{log: &lockedBuffer{}, exited: make(chan struct{})}
 	w.cmd = exec.Command(kweighBinary(t), "worker", "--nats", url, "--queue-prefix", prefix, "--name", name,
-		"--jobs", "1", "--ack-wait", "1s", "--max-deliveries", "2", "--drain", "500ms")
+		"--jobs", "1", "--ack-wait", "3s", "--max-deliveries", "2", "--drain", "500ms")
 	w.cmd.Env = append(os.Environ(), env...)
 	w.cmd.Stderr = w.log
 	if err := w.cmd.Start(); err != nil {
@@ -138,7 +141,7 @@ func TestQueueWorkerKilledMidJob(t *testing.T) {
 		t.Errorf("check --nats: exit %d, records\n%s\nwant exit %d, records\n%s\nstderr %s",
 			got.code, strings.Join(got.lines, "\n"), wantCode, strings.Join(want, "\n"), got.stderr)
 	}
-	rescuer.waitFor(t, "dune-report-2.wav: judging (delivery 2)", 5*time.Second)
+	rescuer.waitFor(t, "dune-report-2.wav: judging (delivery 2)", 30*time.Second)
 }
 
 // TestQueuePoisonFile: a file that makes every worker crash is delivered
@@ -199,7 +202,7 @@ func TestQueueWorkerSIGTERMHandsBack(t *testing.T) {
 	w := startWorker(t, srv.URL, "TERM", "stopping", stallOnEnv+"=heron-hour-1.wav")
 	w.waitFor(t, "heron-hour-1.wav: judging", 30*time.Second)
 	w.cmd.Process.Signal(syscall.SIGTERM)
-	w.waitFor(t, "handed back", 5*time.Second)
+	w.waitFor(t, "handed back", 30*time.Second) // under the stall's minute: --drain, not the job, ended it
 	if err := w.wait(); err != nil {
 		t.Errorf("worker after SIGTERM: %v\n%s", err, w.log.String())
 	}
@@ -209,7 +212,7 @@ func TestQueueWorkerSIGTERMHandsBack(t *testing.T) {
 	if c := <-res; c != 0 {
 		t.Errorf("check --nats exit %d, want 0 (the file passes R 128)", c)
 	}
-	next.waitFor(t, "heron-hour-1.wav: judging (delivery 2)", time.Second)
+	next.waitFor(t, "heron-hour-1.wav: judging (delivery 2)", 30*time.Second)
 }
 
 // TestQueueDetachAndResults: check --nats --detach prints a batch id and

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -79,10 +80,17 @@ func longMP3Folder(t *testing.T, copies int) string {
 	return delivery
 }
 
-// interrupt starts the real binary, sends sig after wait, and returns the
-// exit status, the outputs and how long the process took to end after the
+// interrupt starts the real binary on the files of folder (its last
+// argument), sends sig once the run is under way, and returns the exit
+// status, the outputs and how long the process took to end after the
 // signal.
-func interrupt(t *testing.T, sig syscall.Signal, wait time.Duration, args ...string) (code int, stdout, stderr string, stopped time.Duration) {
+//
+// Under way means the process has opened a second file of the folder (see
+// measuringSecond): it has installed its signal handlers and measured one
+// file, and others are left. A fixed wait instead (700 ms, before) is a
+// guess at the machine's speed: on a loaded one the process may not even
+// have reached main, and the signal's default action then kills it.
+func interrupt(t *testing.T, sig syscall.Signal, args ...string) (code int, stdout, stderr string, stopped time.Duration) {
 	t.Helper()
 	cmd := exec.Command(kweighBinary(t), args...)
 	var out, errOut bytes.Buffer
@@ -90,12 +98,17 @@ func interrupt(t *testing.T, sig syscall.Signal, wait time.Duration, args ...str
 	if err := cmd.Start(); err != nil {
 		t.Fatal(err)
 	}
-	done := make(chan error, 1)
-	go func() { done <- cmd.Wait() }()
+	var waitErr error
+	done := make(chan struct{}) // closed once the process has ended
+	go func() { waitErr = cmd.Wait(); close(done) }()
+	underWay := measuringSecond(cmd.Process.Pid, args[len(args)-1], done)
 	select {
-	case err := <-done:
-		t.Fatalf("kweigh ended before the signal (%v); the files are too short to test interruption\n%s", err, errOut.String())
-	case <-time.After(wait):
+	case <-done:
+		t.Fatalf("kweigh ended before the signal (%v); the files are too short to test interruption\n%s", waitErr, errOut.String())
+	case <-underWay:
+	case <-time.After(time.Minute):
+		cmd.Process.Kill()
+		t.Fatalf("kweigh did not get to the second file within a minute\n%s", errOut.String())
 	}
 	sent := time.Now()
 	if err := cmd.Process.Signal(sig); err != nil {
@@ -108,6 +121,47 @@ func interrupt(t *testing.T, sig syscall.Signal, wait time.Duration, args ...str
 		t.Fatalf("kweigh did not stop within 20 s of %v", sig)
 	}
 	return cmd.ProcessState.ExitCode(), out.String(), errOut.String(), time.Since(sent)
+}
+
+// measuringSecond returns a channel closed once process pid has had two
+// different files of folder open (it reads them one after the other with
+// --jobs 1), as its descriptors in /proc show. Without /proc (not Linux)
+// it is closed after the 700 ms the test used to wait. It stops looking
+// once exited is closed (the caller sees that itself).
+func measuringSecond(pid int, folder string, exited <-chan struct{}) <-chan struct{} {
+	ready := make(chan struct{})
+	fds := fmt.Sprintf("/proc/%d/fd", pid)
+	if _, err := os.Stat("/proc/self/fd"); err != nil {
+		time.AfterFunc(700*time.Millisecond, func() { close(ready) })
+		return ready
+	}
+	abs, _ := filepath.Abs(folder)
+	if real, err := filepath.EvalSymlinks(abs); err == nil {
+		abs = real // /proc shows the resolved path
+	}
+	go func() {
+		seen := map[string]bool{}
+		tick := time.NewTicker(time.Millisecond)
+		defer tick.Stop()
+		for {
+			entries, _ := os.ReadDir(fds)
+			for _, e := range entries {
+				if target, err := os.Readlink(filepath.Join(fds, e.Name())); err == nil && filepath.Dir(target) == abs {
+					seen[target] = true
+				}
+			}
+			if len(seen) >= 2 {
+				close(ready)
+				return
+			}
+			select {
+			case <-tick.C:
+			case <-exited:
+				return
+			}
+		}
+	}()
+	return ready
 }
 
 // stopBound is how soon a run must end after a signal: measuring stops
@@ -125,7 +179,7 @@ func TestSignalsInterruptRun(t *testing.T) {
 	previous := writeTestFile(t, outDir, "results.jsonl", []byte("previous results\n"))
 
 	t.Run("SIGINT json", func(t *testing.T) {
-		code, out, errOut, took := interrupt(t, syscall.SIGINT, 700*time.Millisecond,
+		code, out, errOut, took := interrupt(t, syscall.SIGINT,
 			"check", "--spec", "ebu-r128", "--jobs", "1", "--format", "json", "--report", report, delivery)
 		if code != 130 {
 			t.Errorf("exit %d, want 130; stderr: %s", code, errOut)
@@ -155,7 +209,7 @@ func TestSignalsInterruptRun(t *testing.T) {
 	})
 
 	t.Run("SIGTERM output", func(t *testing.T) {
-		code, out, errOut, took := interrupt(t, syscall.SIGTERM, 700*time.Millisecond,
+		code, out, errOut, took := interrupt(t, syscall.SIGTERM,
 			"measure", "--jobs", "1", "--format", "jsonl", "--output", previous, delivery)
 		if code != 143 {
 			t.Errorf("exit %d, want 143; stderr: %s", code, errOut)
@@ -172,7 +226,7 @@ func TestSignalsInterruptRun(t *testing.T) {
 	})
 
 	t.Run("SIGINT csv", func(t *testing.T) {
-		code, out, errOut, _ := interrupt(t, syscall.SIGINT, 700*time.Millisecond,
+		code, out, errOut, _ := interrupt(t, syscall.SIGINT,
 			"measure", "--jobs", "1", "--format", "csv", delivery)
 		if code != 130 || out != "" || !strings.Contains(errOut, "CSV table is not written") {
 			t.Errorf("exit %d, stdout %q, stderr %q: an interrupted CSV run writes no table", code, out, errOut)
@@ -180,7 +234,7 @@ func TestSignalsInterruptRun(t *testing.T) {
 	})
 
 	t.Run("SIGINT jsonl", func(t *testing.T) {
-		code, out, _, _ := interrupt(t, syscall.SIGINT, 700*time.Millisecond,
+		code, out, _, _ := interrupt(t, syscall.SIGINT,
 			"check", "--spec", "ebu-r128", "--jobs", "1", "--format", "jsonl", delivery)
 		lines := strings.Split(strings.TrimSpace(out), "\n")
 		var last struct {

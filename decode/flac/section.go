@@ -31,9 +31,11 @@ import (
 // hash reaches them, and a goroutine of the chain hashes them then,
 // beside the sections still decoding. Only one goroutine hashes at a time
 // (the chain's busy token). MaxSectionFrames keeps a section to
-// maxSectionBytes of MD5 bytes, and a section waits while more than
-// maxHeldBytes wait and the hash is at work, so memory stays bounded
-// however long the stream. Once every section is read, CheckSections
+// maxSectionBytes of MD5 bytes, only a section's own samples are kept
+// (not those of the frames before its start that it decodes to reach
+// it), and a section waits while the hash is at work and the chunks in
+// use pass maxHeldBytes, so memory stays within chainMemoryBound however
+// long the stream. Once every section is read, CheckSections
 // compares the hash with STREAMINFO and returns exactly the
 // *decode.IntegrityError one pass would have returned at its end.
 
@@ -145,6 +147,7 @@ func (d *Decoder) Section(from, to int64) (decode.Decoder, error) {
 		d.chainOnce.Do(func() { d.chain = newMD5Chain(d.si.channels * d.hash.width) })
 		s.hash = &sampleHash{width: d.hash.width}
 		s.sec.chain = d.chain
+		d.chain.noteSection(uint64(to - from))
 	}
 	return s, nil
 }
@@ -166,14 +169,19 @@ func (s *sectionSpan) within(first uint64, n int) (length, pos int) {
 	return int(end - first), int(start - first)
 }
 
-// feed hands the frame h laid out (n samples from sample first) to the
-// MD5 chain, up to the section's end.
+// feed hands the part of frame h (laid out, n samples from sample first)
+// inside the section to the MD5 chain. The samples before the section's
+// start are left out: the section before it delivers them, and the frame
+// a section starts at may come a probe span of file bytes before its
+// start (locate), which in a stream of tiny frames is minutes of audio
+// whose bytes would otherwise wait beside the section's own.
 func (s *sectionSpan) feed(h *sampleHash, first uint64, n int) {
-	if first >= s.to {
+	start, end := max(first, s.from), min(first+uint64(n), s.to)
+	if start >= end {
 		return
 	}
-	keep := min(uint64(n), s.to-first)
-	s.chain.feed(&s.part, first, h.buf[:int(keep)*s.chain.frameBytes])
+	fb := s.chain.frameBytes
+	s.chain.feed(&s.part, start, h.buf[int(start-first)*fb:int(end-first)*fb])
 }
 
 // md5Chain is the MD5 of a stream decoded in sections (see the top of
@@ -186,19 +194,32 @@ type md5Chain struct {
 	next       uint64    // samples per channel hashed so far
 	busy       bool      // a goroutine is hashing
 	waiting    []*md5Part
-	held       int      // bytes in waiting
+	inUse      int      // chunks in waiting parts and in the hands of drain
 	free       [][]byte // drained chunks, for reuse
+
+	// For the memory bound's tests: the high-water marks of the chunks
+	// held (in use and in reserve) and of a section's MD5 bytes, and the
+	// times a section waited for the hash.
+	chunksMost, sectionMost, waits int
 }
 
-// maxHeldBytes bounds the bytes waiting in a chain while the hash is at
-// work: a section whose bytes would go beyond it waits. Beyond that only
-// the sections of one round (one per core, maxSectionBytes each) wait.
+// maxHeldBytes bounds the chunks in use in a chain while the hash is at
+// work: a section whose bytes would take more waits. When nothing is
+// hashing, only the sections still being read hold chunks (see
+// chainMemoryBound).
 const maxHeldBytes = 2 * maxSectionBytes
 
 func newMD5Chain(frameBytes int) *md5Chain {
 	c := &md5Chain{h: md5.New(), frameBytes: frameBytes}
 	c.cond.L = &c.mu
 	return c
+}
+
+// noteSection records a section of n samples per channel. c.mu is not held.
+func (c *md5Chain) noteSection(n uint64) {
+	c.mu.Lock()
+	c.sectionMost = max(c.sectionMost, int(n)*c.frameBytes)
+	c.mu.Unlock()
 }
 
 // md5Part is the bytes of one section that wait for the hash to reach
@@ -210,25 +231,65 @@ type md5Part struct {
 }
 
 // chunkBytes is the size of the chunks waiting bytes are kept in; at most
-// maxFreeChunks drained ones are kept for reuse, so the memory held is the
-// bytes waiting rounded up to chunks, plus that reserve.
+// maxFreeChunks drained ones are kept for reuse.
 const (
 	chunkBytes    = 1 << 20
 	maxFreeChunks = 8
 )
 
-// add appends data to p's chunks, taking chunks from free or making them.
-func (p *md5Part) add(data []byte, free *[][]byte) {
+// chainMemoryBound is the most memory, in bytes of chunks in use and in
+// reserve, an md5Chain holds while a stream is read the way package
+// measure reads it: in rounds of at most sections sections at once, each
+// round started once every section of the round before has been read, no
+// section of more than sectionBytes MD5 bytes (its samples times
+// frameBytes). It does not grow with the stream's length.
+//
+// Derivation. The chain keeps one invariant: when no goroutine is hashing
+// (busy is false) no waiting part is one the hash has reached (every
+// place that ends busy, or adds a part, checks reachable under c.mu, and
+// only the holder of busy moves next). Chunks are taken only by
+// md5Chain.add in feed, in one of two states:
+//
+//   - busy: the section first waits until busy ends or inUse·chunkBytes +
+//     len(data) ≤ maxHeldBytes. The add takes at most ⌈len(data)/chunkBytes⌉
+//     new chunks, so afterwards inUse·chunkBytes < maxHeldBytes +
+//     chunkBytes, and as both sides are whole chunks (maxHeldBytes is one),
+//     inUse ≤ maxHeldBytes/chunkBytes.
+//   - not busy: the sections of earlier rounds have all been read and
+//     cover the stream up to the current round's start; had any of
+//     their bytes not been hashed, the part holding sample next would be
+//     reachable, against the invariant. So every chunk in use (none is in
+//     drain's hands either) belongs to a part of a section of the current
+//     round, one part per section, filled in order: at most
+//     ⌈sectionBytes/chunkBytes⌉ each, sections·⌈sectionBytes/chunkBytes⌉
+//     in all.
+//
+// Chunks are given back only by drain, so inUse never exceeds the larger
+// of the two; the reserve adds maxFreeChunks (drain moves chunks from use
+// to the reserve, add back, so only a new chunk raises the sum). Chunks
+// drained beyond the reserve are dropped to the collector and not
+// counted.
+func chainMemoryBound(sections, sectionBytes int) int {
+	perSection := (sectionBytes + chunkBytes - 1) / chunkBytes
+	inUse := max(maxHeldBytes/chunkBytes, sections*perSection)
+	return (inUse + maxFreeChunks) * chunkBytes
+}
+
+// add appends data to p's chunks, taking chunks from c's reserve or making
+// them. c.mu is held.
+func (c *md5Chain) add(p *md5Part, data []byte) {
 	p.size += len(data)
 	for len(data) > 0 {
 		if k := len(p.pend); k == 0 || len(p.pend[k-1]) == chunkBytes {
-			var c []byte
-			if f := len(*free); f > 0 {
-				c, *free = (*free)[f-1], (*free)[:f-1]
+			var b []byte
+			if f := len(c.free); f > 0 {
+				b, c.free = c.free[f-1], c.free[:f-1]
 			} else {
-				c = make([]byte, 0, chunkBytes)
+				b = make([]byte, 0, chunkBytes)
 			}
-			p.pend = append(p.pend, c)
+			p.pend = append(p.pend, b)
+			c.inUse++
+			c.chunksMost = max(c.chunksMost, c.inUse+len(c.free))
 		}
 		last := &p.pend[len(p.pend)-1]
 		n := min(len(data), chunkBytes-len(*last))
@@ -243,24 +304,36 @@ func (p *md5Part) add(data []byte, free *[][]byte) {
 // pre-roll overlaps the section before it) are skipped. Parts the hash
 // reaches are hashed by a goroutine of the chain's (drain), so a section
 // that finishes does not wait for the bytes of the next: the hashing goes
-// on beside the sections of the next round. A section whose bytes cannot
-// be hashed yet waits while maxHeldBytes are waiting already and the hash
-// is at work on them.
+// on beside the sections of the next round. While the hash is at work, a
+// section whose bytes would take the chunks in use beyond maxHeldBytes
+// waits first; it waits only while the hash is being worked on (busy
+// always ends), so a section never waits on one that stopped.
+//
+// After that wait the state is looked at afresh: the hash may have gone
+// idle and reached p's bytes meanwhile, and a part left waiting then
+// would have nobody to hash it, so its bytes (and every later section's)
+// would pile up until some section happened to continue the hash itself.
 func (c *md5Chain) feed(p *md5Part, first uint64, data []byte) {
 	c.mu.Lock()
+	for c.busy && c.inUse*chunkBytes+len(data) > maxHeldBytes {
+		c.waits++
+		c.cond.Wait()
+	}
 	if c.busy || len(p.pend) > 0 || first > c.next {
-		// Wait only while the hash is being worked on (busy always
-		// ends), so a section never waits on one that stopped.
-		for c.busy && first > c.next && c.held+len(data) > maxHeldBytes {
-			c.cond.Wait()
-		}
 		if len(p.pend) == 0 {
 			p.first = first
 			c.waiting = append(c.waiting, p)
 		}
-		p.add(data, &c.free)
-		c.held += len(data)
+		c.add(p, data)
+		if c.busy || c.reachable() < 0 {
+			c.mu.Unlock()
+			return
+		}
+		// Nobody is hashing and the hash has reached p (its bytes
+		// waited from before the wait above ended).
+		c.busy = true
 		c.mu.Unlock()
+		go c.drain()
 		return
 	}
 	c.busy = true
@@ -332,7 +405,7 @@ func (c *md5Chain) drain() {
 		c.mu.Unlock()
 		c.write(first, size, chunks...)
 		c.mu.Lock()
-		c.held -= size
+		c.inUse -= len(chunks)
 		for _, b := range chunks {
 			if len(c.free) < maxFreeChunks {
 				c.free = append(c.free, b[:0])

@@ -17,6 +17,7 @@ import (
 
 	"github.com/kweigh/kweigh/decode"
 	"github.com/kweigh/kweigh/internal/audiotest"
+	"github.com/kweigh/kweigh/loudness"
 	kmeasure "github.com/kweigh/kweigh/measure"
 )
 
@@ -292,17 +293,25 @@ func FuzzFLACSections(f *testing.F) {
 }
 
 // TestSectionsMemoryFlat measures a 5-minute and a 25-minute stream on
-// two cores through sections (package measure, MD5 checked across them)
-// and compares the peak live heap sampled every 20 ms while measuring: the
-// bytes that wait for the MD5 are bounded (maxHeldBytes and the section
-// length), not by the file's length.
+// two cores through sections (package measure, MD5 checked across them).
+// Its frames are tiny (a constant subframe per 4096 samples), so they
+// decode far faster than the MD5 runs and the longer file reaches the
+// chain's bound. It checks the design's bound twice: exactly, on the
+// chain's own high-water mark of chunks (chainMemoryBound for the two
+// cores and the largest section measure made, which must be within
+// maxSectionBytes plus the pre-roll), and on the peak live heap sampled
+// every 20 ms, whose growth from the short file to the long one must stay
+// within that same bound. Bytes kept for the MD5 that grew with the
+// file's length (2 B a sample, 115 MB over the 20 minutes) fail both.
 func TestSectionsMemoryFlat(t *testing.T) {
 	if testing.Short() {
 		t.Skip("measures 30 minutes of audio")
 	}
+	const rate, frameBytes = 48000, 2 // constantFLAC: 48 kHz mono 16-bit
 	level := func(i int) int16 { return int16(i%200*100 - 10000) }
-	peak := func(minutes int) uint64 {
-		data, _ := constantFLAC(48000*60*minutes/4096, level)
+	type use struct{ heap, chain, section uint64 }
+	peak := func(minutes int) use {
+		data, _ := constantFLAC(rate*60*minutes/4096, level)
 		path := filepath.Join(t.TempDir(), "long.flac")
 		if err := os.WriteFile(path, data, 0o644); err != nil {
 			t.Fatal(err)
@@ -345,16 +354,83 @@ func TestSectionsMemoryFlat(t *testing.T) {
 		if d.chain == nil || !d.MD5Verified() {
 			t.Fatalf("%d min: not measured in sections with the MD5 checked", minutes)
 		}
-		return most.Load()
+		c := d.chain
+		c.mu.Lock()
+		defer c.mu.Unlock()
+		return use{heap: most.Load(), chain: uint64(c.chunksMost * chunkBytes), section: uint64(c.sectionMost)}
 	}
 	short, long := peak(5), peak(25)
-	// The design's bound on what waits for the MD5: maxHeldBytes while
-	// the hash is at work, plus a section's bytes for each of the two
-	// cores. These frames decode far faster than the MD5 runs, so the
-	// longer file reaches the bound; a longer one still could not pass it.
-	bound := uint64(maxHeldBytes + 2*maxSectionBytes)
-	t.Logf("peak live heap measuring in sections: 5 min %d B, 25 min %d B (bound on the growth %d B)", short, long, bound)
-	if long > short+bound {
-		t.Errorf("peak heap grew from %d B (5 min) to %d B (25 min), more than the %d B bound", short, long, bound)
+	// measure's sections: at most MaxSectionFrames, plus the pre-roll
+	// before each (measure/split.go).
+	largest := uint64(maxSectionBytes + loudness.PreRollSeconds*rate*frameBytes)
+	bound := uint64(chainMemoryBound(2, int(long.section)))
+	t.Logf("5 min: heap %d B, chain %d B; 25 min: heap %d B, chain %d B; bound %d B (sections of up to %d B)",
+		short.heap, short.chain, long.heap, long.chain, bound, long.section)
+	for _, u := range []use{short, long} {
+		if u.section > largest {
+			t.Errorf("a section of %d MD5 bytes, more than the %d B of maxSectionBytes and its pre-roll", u.section, largest)
+		}
+		if b := uint64(chainMemoryBound(2, int(u.section))); u.chain > b {
+			t.Errorf("the MD5 chain held %d B of chunks, more than its bound of %d B", u.chain, b)
+		}
+	}
+	if long.heap > short.heap+bound {
+		t.Errorf("peak heap grew from %d B (5 min) to %d B (25 min), more than the %d B bound", short.heap, long.heap, bound)
+	}
+}
+
+// TestChainHashesAfterWaiting is the hand-over the chain must not miss: a
+// section waits for the hash (busy, chunks in use at maxHeldBytes), and
+// while it waits the hash goes idle having reached the section's bytes.
+// The section must then see them hashed (by itself or by drain), not
+// leave them waiting with nobody hashing, where every later section's
+// bytes would pile up behind them.
+func TestChainHashesAfterWaiting(t *testing.T) {
+	const frameBytes = 2
+	c := newMD5Chain(frameBytes)
+	// Earlier sections own the chain: it is busy and full, the hash at 0.
+	c.mu.Lock()
+	c.busy = true
+	c.inUse = maxHeldBytes / chunkBytes
+	c.mu.Unlock()
+
+	var p md5Part
+	data := make([]byte, 4096*frameBytes)
+	fed := make(chan struct{})
+	go func() {
+		defer close(fed)
+		c.feed(&p, 1000, data) // samples 1000–5095, past the hash
+	}()
+	// Wait (on the chain's own count, not on time) until the section is
+	// waiting in feed.
+	deadline := time.Now().Add(time.Minute)
+	for {
+		c.mu.Lock()
+		w := c.waits
+		c.mu.Unlock()
+		if w > 0 {
+			break
+		}
+		if time.Now().After(deadline) {
+			t.Fatal("the section never waited for the hash")
+		}
+		runtime.Gosched()
+	}
+	// The earlier sections' hashing ends past sample 1000 and frees its
+	// chunks, as drain does.
+	c.mu.Lock()
+	c.next, c.inUse, c.busy = 2000, 0, false
+	c.cond.Broadcast()
+	c.mu.Unlock()
+	select {
+	case <-fed:
+	case <-time.After(time.Minute):
+		t.Fatal("feed did not return once the hash went idle")
+	}
+	c.mu.Lock()
+	c.wait()
+	defer c.mu.Unlock()
+	if len(c.waiting) != 0 || c.next != 5096 {
+		t.Fatalf("after the wait: %d parts left waiting, hash at sample %d, want none and 5096", len(c.waiting), c.next)
 	}
 }
