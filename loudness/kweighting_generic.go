@@ -9,9 +9,6 @@ func energyPair(k, l *KWeighting, a, b []float64) (ea, eb float64) {
 	return k.Energy(a), l.Energy(b)
 }
 
-// quadEnergy reports false: no four-lane kernel here.
-func quadEnergy() bool { return false }
-
 // energyQuad is energyPair twice on platforms without a four-lane kernel.
 func energyQuad(f [4]*KWeighting, x [4][]float64) (e [4]float64) {
 	n := len(x[0])
