@@ -298,23 +298,29 @@ func energyGroups(f []*KWeighting, x [][]float64) (e [8]float64) {
 	return e
 }
 
+// energyUpTo8 returns f[i].Energy(x[i]) (or what the kernel set's
+// kernels return) into e[:len(f)] for 1 to 8 filters: five or more in one
+// eight-lane call where the kernel set has one (energyOct), else four,
+// two and one at a time (energyGroups). Every x[i] must be as long as
+// x[0]. It is the choice Meter.addChannelEnergy and addEnergyBeside share.
+func energyUpTo8(f []*KWeighting, x [][]float64) [8]float64 {
+	if len(f) >= 5 && octEnergy() {
+		return energyOct(f, x)
+	}
+	return energyGroups(f, x)
+}
+
 // addChannelEnergy adds to m.energy the weighted K-filtered energy of the n
 // samples waiting in the inputs of channels ch (1 to 8, in channel order),
-// in that order: five or more in one eight-lane call where the kernel set
-// has one (energyOct), else four, two and one at a time (energyGroups).
-// It is Meter.addEnergy's step, kept here beside the kernels it chooses.
+// in that order, through energyUpTo8. It is Meter.addEnergy's step, kept
+// here beside the kernels it chooses.
 func (m *Meter) addChannelEnergy(ch []int, n int) {
 	var f [8]*KWeighting
 	var x [8][]float64
 	for i, c := range ch {
 		f[i], x[i] = &m.filters[c], m.peaks[c].input(n)
 	}
-	var e [8]float64
-	if len(ch) >= 5 && octEnergy() {
-		e = energyOct(f[:len(ch)], x[:len(ch)])
-	} else {
-		e = energyGroups(f[:len(ch)], x[:len(ch)])
-	}
+	e := energyUpTo8(f[:len(ch)], x[:len(ch)])
 	for i, c := range ch {
 		m.energy += m.weights[c] * e[i]
 	}

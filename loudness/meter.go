@@ -358,8 +358,9 @@ func (m *Meter) weighted() int {
 }
 
 // addEnergyBeside is addEnergy for m and g at once, their weighted
-// channels (eight at most in all) in one eight-lane call, each meter's
-// energies then added in its own channel order as addChannelEnergy does.
+// channels (eight at most in all) in one energyUpTo8 call (one eight-lane
+// kernel call from five on), each meter's energies then added in its own
+// channel order as addChannelEnergy does.
 func addEnergyBeside(m, g *Meter, n int) {
 	var f [8]*KWeighting
 	var x [8][]float64
@@ -372,12 +373,7 @@ func addEnergyBeside(m, g *Meter, n int) {
 			}
 		}
 	}
-	var e [8]float64
-	if k >= 5 {
-		e = energyOct(f[:k], x[:k])
-	} else {
-		e = energyGroups(f[:k], x[:k])
-	}
+	e := energyUpTo8(f[:k], x[:k])
 	i := 0
 	for _, mm := range [2]*Meter{m, g} {
 		for c, w := range mm.weights {
