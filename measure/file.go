@@ -417,24 +417,21 @@ func (s *blockSink) write(block []float64, at int64) error {
 	// loudness.MaxMagnitude) as it goes; only when it has seen one is the
 	// block searched for where.
 	before := s.meter.Rejected()
-	var clips clipMark
+	var clips clipMark // the probes' clipping counts before the block
+	if s.ev != nil {
+		clips = s.ev.markClips(s.hyg)
+	}
 	f := -1
 	if s.fold == nil {
 		s.meter.Write(block)
 		if s.meter.Rejected() != before {
 			return s.unmeasurable(block, at)
 		}
-		if s.ev != nil {
-			clips = s.ev.markClips(s.hyg)
-		}
 		s.hyg.write(block)
 	} else {
 		// A surround file's fold-down is made in the probes' pass over
 		// the block, then metered beside the block itself
 		// (downmixer.writeBeside).
-		if s.ev != nil {
-			clips = s.ev.markClips(s.hyg)
-		}
 		f = s.fold.writeBeside(s.meter, block, s.hyg)
 		if s.meter.Rejected() != before {
 			return s.unmeasurable(block, at)

@@ -317,11 +317,9 @@ func (p *programme) write(block []float64, nc int, at int64) error {
 		p.hyg.write(buf)
 	}
 	p.ev.afterBlock(p.hyg, clips, at, n, p.rate)
-	if p.fold != nil {
-		if f >= 0 {
-			return fmt.Errorf("group %q: frame %d folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
-				p.group.Name, at+int64(f), sci(loudness.MaxMagnitude))
-		}
+	if f >= 0 { // only a fold-down rejects a frame here
+		return fmt.Errorf("group %q: frame %d folds down to a stereo sample beyond ±%s: far beyond full scale, cannot be measured",
+			p.group.Name, at+int64(f), sci(loudness.MaxMagnitude))
 	}
 	return nil
 }
