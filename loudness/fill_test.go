@@ -311,7 +311,7 @@ func windowPeaks(x []float64, factor int, narrow func(i int) bool) []float64 {
 // carried between chunks, flush) as a segment meter that logs every 100 ms
 // block, and demands of every block and channel the true peak of an
 // interpolator that skips nothing, bit for bit: the float32 kernels on the
-// go and avx2 sets where every chunk is narrowable, the float64 kernels on
+// go, avx2 and avx512 sets where every chunk is narrowable, the float64 kernels on
 // the sse2 set and for programme at −420 dBFS or +420 dBFS (outside
 // [2⁻⁶⁰, 2⁶⁰], where peakRuns falls back to float64). Also the sample peaks
 // and the rejection count. Channel counts 1, 2, 3 (the any-channel path),

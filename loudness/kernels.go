@@ -15,7 +15,7 @@ import (
 // machine can run. Two twins differ between sets, each within a stated
 // and tested bound: the K-weighting fuses its multiply-adds on the go,
 // avx2 and avx512 sets and not on the sse2 set (kweighting.go), and the
-// true-peak interpolator is float32 on go and avx2, float64 on sse2
+// true-peak interpolator is float32 on go, avx2 and avx512, float64 on sse2
 // (truepeak32.go).
 type kernelSet int
 

@@ -426,8 +426,8 @@ func (m *Meter) splitChannel(frames []float64, n, c int) {
 // maxMagnitudeBits) makes it report false, having changed nothing that
 // splitChannel does not overwrite; it also reports false for other channel
 // counts. Copies, exact conversions and integer maxima: splitChannel's
-// result bit for bit. With AVX2 split6AVX2 does the whole 32-frame blocks
-// (split6Fast), split6Go the rest.
+// result bit for bit. With AVX2 split6AVX2 (split6AVX512 on the avx512
+// set) does the whole 32-frame blocks (split6Fast), split6Go the rest.
 func (m *Meter) split6(frames []float64, n int) bool {
 	if m.channels != 6 {
 		return false

@@ -9,7 +9,7 @@ import (
 )
 
 // hygieneAVX2 says whether the probes run their AVX2 kernels: where the
-// CPU has AVX2 and the engine runs its AVX2 set, so KWEIGH_KERNELS
+// CPU has AVX2 and the engine runs its avx2 or avx512 set, so KWEIGH_KERNELS
 // (loudness.KernelEnv) caps these kernels as it caps the engine's. Tests
 // switch it to run both paths.
 var hygieneAVX2 = cpu.X86.HasAVX2 && loudness.KernelsAtLeastAVX2()
