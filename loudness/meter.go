@@ -269,9 +269,9 @@ func (m *Meter) Write(frames []float64) {
 
 // process measures n ≤ chunkFrames frames that lie inside one 100 ms
 // block: it copies each channel into its true-peak detector's input (where
-// the K-weighting reads it too), with the float32 copy and the per-run
-// maxima the detector's skip test needs made in the same pass, then weighs
-// and peaks every channel.
+// the K-weighting reads it too), with the float32 copy and the per-block
+// maxima the detector's skip test makes its run maxima from (TruePeak.blocks)
+// in the same pass, then weighs and peaks every channel.
 func (m *Meter) process(frames []float64, n int) {
 	m.split(frames, n)
 	m.addEnergy(n)
