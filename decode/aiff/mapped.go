@@ -2,24 +2,14 @@ package aiff
 
 import (
 	"fmt"
-	"runtime"
 
 	"github.com/kweigh/kweigh/internal/filemap"
 )
 
-// mappedChunk bounds the bytes converted per step from a mapping, so that
-// a step's length fits an int on 32-bit systems whatever dst holds.
-const mappedChunk = 1 << 30
-
-// mapSound makes d convert from view when there is one. A decoder that is
-// dropped before its end without Close (a section abandoned after an
-// error) unmaps when it is collected.
+// mapSound makes d convert from view when there is one (nil: read calls).
 func (d *Decoder) mapSound(view *filemap.View) {
-	if view == nil {
-		return
-	}
 	d.view = view
-	runtime.AddCleanup(d, func(v *filemap.View) { v.Close() }, view)
+	filemap.UnmapWhenCollected(d, view)
 }
 
 // readMapped converts up to want frames into dst straight from the
@@ -32,7 +22,7 @@ func (d *Decoder) readMapped(dst []float64, want int64) int64 {
 	ch := int64(d.h.channels)
 	var n int64
 	for n < want && d.pos < d.present {
-		k := min(want-n, d.present-d.pos, mappedChunk/d.frameBytes)
+		k := min(want-n, d.present-d.pos, filemap.MaxStep/d.frameBytes)
 		raw, err := d.view.Bytes(d.h.dataOff+d.pos*d.frameBytes, int(k*d.frameBytes), int(d.frameBytes))
 		if err != nil {
 			// No mapping here (address space, a system limit): read calls

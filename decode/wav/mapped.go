@@ -8,10 +8,6 @@ import (
 	"github.com/kweigh/kweigh/internal/filemap"
 )
 
-// mappedChunk bounds the bytes converted per step from a mapping, so that
-// a step's length fits an int on 32-bit systems whatever dst holds.
-const mappedChunk = 1 << 30
-
 // readMapped is ReadFrames for a decoder whose audio is mapped (d.view):
 // the samples are converted straight from the page cache, with no copy of
 // the raw bytes. A file that shrinks while mapped (a fault on a page past
@@ -23,7 +19,7 @@ func (d *decoder) readMapped(dst []float64) (int, error) {
 	ch := int64(d.channels)
 	var frames int64
 	for frames < want && d.pos < d.readable {
-		n := min(want-frames, (d.readable-d.pos)/d.blockAlign, mappedChunk/d.blockAlign)
+		n := min(want-frames, (d.readable-d.pos)/d.blockAlign, filemap.MaxStep/d.blockAlign)
 		raw, err := d.view.Bytes(d.dataOffset+d.pos, int(n*d.blockAlign), int(d.blockAlign))
 		if err != nil {
 			// No mapping here (address space, a system limit): read calls

@@ -3,7 +3,6 @@ package wav
 import (
 	"fmt"
 	"io"
-	"runtime"
 	"unsafe"
 
 	"github.com/kweigh/kweigh/decode"
@@ -104,15 +103,10 @@ func New(src decode.Source, size int64) (decode.Decoder, error) {
 	return d, nil
 }
 
-// mapAudio makes d convert from view when there is one. A decoder that is
-// dropped before its end without Close (a section abandoned after an
-// error) unmaps when it is collected.
+// mapAudio makes d convert from view when there is one (nil: read calls).
 func (d *decoder) mapAudio(view *filemap.View) {
-	if view == nil {
-		return
-	}
 	d.view = view
-	runtime.AddCleanup(d, func(v *filemap.View) { v.Close() }, view)
+	filemap.UnmapWhenCollected(d, view)
 }
 
 // Info returns the stream description read from the header.

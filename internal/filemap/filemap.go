@@ -36,6 +36,21 @@ var windowBytes int64 = 16 << 20
 // goroutine fault setting for a saving of well under a millisecond.
 const MinBytes = 1 << 20
 
+// MaxStep bounds the bytes a decoder converts per step from a mapping, so
+// that a step's length fits an int on 32-bit systems whatever its
+// destination holds.
+const MaxStep = 1 << 30
+
+// UnmapWhenCollected makes the garbage collector close view once owner,
+// the decoder reading through it, is unreachable: a decoder dropped before
+// its end without Close (a section abandoned after an error) then does not
+// keep its window mapped. A nil view is ignored.
+func UnmapWhenCollected[T any](owner *T, view *View) {
+	if view != nil {
+		runtime.AddCleanup(owner, func(v *View) { v.Close() }, view)
+	}
+}
+
 // guard runs fn with memory faults turned into a panic it recovers (see
 // runtime/debug.SetPanicOnFault) and returns the faulting address and true
 // when fn touched memory it could not read and inside reports that address
