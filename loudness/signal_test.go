@@ -45,17 +45,6 @@ func interleave(channels ...[]float64) []float64 {
 	return out
 }
 
-// deinterleave splits frames of nch channels.
-func deinterleave(frames []float64, nch int) [][]float64 {
-	out := make([][]float64, nch)
-	for c := range out {
-		for i := c; i < len(frames); i += nch {
-			out[c] = append(out[c], frames[i])
-		}
-	}
-	return out
-}
-
 // musicLike returns n samples of a deterministic noise-like signal with a
 // level that wanders over tens of dB (a crude stand-in for programme
 // material): low-passed noise times a slow envelope, peaking near -3 dBFS.

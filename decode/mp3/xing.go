@@ -65,7 +65,7 @@ type xingHeader struct {
 // 9 average two-pass are "abr", 3 to 6 (the variable-rate methods) are
 // "vbr", anything else "" (unknown). Values from the public LAME-tag
 // description [desc]; checked on lame 3.100's -b, --abr and -V output
-// (TestRateModeFromLame).
+// (TestRateModesAndTagsFromLame).
 func (x xingHeader) rateMode() string {
 	switch x.method {
 	case 1, 8:
