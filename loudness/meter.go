@@ -296,6 +296,14 @@ func (m *Meter) peakAll(n int) {
 		if m.streamPeakOnly {
 			floor = max(floor, m.streamTrue[c])
 		}
+		if tp.factor == 1 {
+			// Without oversampling (176.4 kHz and up) the true peak is
+			// the sample peak, which the split has just raised over the
+			// same samples: no second pass over them.
+			m.blockTrue[c] = max(floor, m.blockPeak[c])
+			tp.keepHistory(n)
+			continue
+		}
 		m.blockTrue[c] = tp.peakBuffered(n, floor)
 	}
 }

@@ -106,3 +106,43 @@ func TestStreamTruePeakOnlySameResult(t *testing.T) {
 		}
 	})
 }
+
+// TestTruePeakWithoutOversamplingIsSamplePeak checks the meter at the
+// rates where BS.1770-5 Annex 2 needs no oversampling (176.4 kHz and up:
+// OversamplingFactor 1): every channel's true peak is its sample peak,
+// bit for bit, and so is every 100 ms value of the two series, on every
+// kernel set, with a rejected (NaN) sample measured as 0, in one pass and
+// with only the stream's highest peak asked for.
+func TestTruePeakWithoutOversamplingIsSamplePeak(t *testing.T) {
+	forEachKernelSet(t, func(t *testing.T) {
+		for _, rate := range []int{176400, 192000, 384000} {
+			for _, only := range []bool{false, true} {
+				n := rate * 2
+				l, r := musicLike(51, n, rate), musicLike(52, n, rate)
+				l[rate/3] = 0.97 // a lone peak
+				r[rate/2] = math.NaN()
+				m, _ := NewMeter(rate, []float64{1, 1})
+				if only {
+					m.StreamTruePeakOnly()
+				}
+				m.Write(interleave(l, r))
+				res := m.Result()
+				for c := range 2 {
+					if math.Float64bits(res.TruePeak[c]) != math.Float64bits(res.SamplePeak[c]) {
+						t.Fatalf("%d Hz channel %d: true peak %v, sample peak %v", rate, c, res.TruePeak[c], res.SamplePeak[c])
+					}
+				}
+				if res.TruePeak[0] != 0.97 {
+					t.Fatalf("%d Hz: left true peak %v, want the 0.97 sample", rate, res.TruePeak[0])
+				}
+				if !only {
+					for i, v := range res.Series.TruePeak {
+						if v != res.Series.SamplePeak[i] {
+							t.Fatalf("%d Hz block %d: true-peak series %v, sample-peak series %v", rate, i, v, res.Series.SamplePeak[i])
+						}
+					}
+				}
+			}
+		}
+	})
+}

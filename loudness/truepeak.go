@@ -259,9 +259,13 @@ func (t *TruePeak) peakBuffered(n int, floor float64) float64 {
 	} else {
 		floor = t.peakRuns(n, floor)
 	}
-	copy(t.buf[:history], w[n:])
+	t.keepHistory(n)
 	return floor
 }
+
+// keepHistory moves the last history samples of the n just measured to
+// the front of the buffer, as the history of the next chunk.
+func (t *TruePeak) keepHistory(n int) { copy(t.buf[:history], t.buf[n:n+history]) }
 
 // Flush returns the largest magnitude among the interpolated values that
 // fall after the last sample written (the filter's tail, computed as if the
